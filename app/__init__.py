@@ -1,0 +1,1 @@
+"""Calorun's desktop front end (Qt). Holds no physics; importing this package imports no Qt."""

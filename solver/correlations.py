@@ -1,0 +1,679 @@
+"""Friction and heat-transfer correlations for the line solver.
+
+Every function takes numpy arrays (or floats), broadcasts its arguments, and
+returns a numpy array; all quantities are SI. Nothing here loops over elements:
+the solver calls these on whole lines (thousands of cells) several times per
+solve. Reference libraries (fluids, ht) are used by the tests only.
+
+Conventions
+-----------
+* ``Re``, ``Pr``, ``Ra``, ``Nu`` are based on the pipe bore (inside) or the
+  outer diameter (outside), as each docstring says.
+* ``f`` is always the Darcy friction factor (four times the Fanning factor).
+* Validity ranges live in :data:`VALIDITY`; :func:`out_of_range` turns them
+  into boolean masks the solver reports as Checks. The functions themselves
+  never refuse a value just because it lies outside the published range; they
+  refuse only values the equation cannot take (Re <= 0, negative x, ...).
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+
+import numpy as np
+
+from solver.errors import InputError
+
+__all__ = [
+    "METHODS",
+    "VALIDITY",
+    "CorrelationInputError",
+    "STEFAN_BOLTZMANN",
+    "RE_LAMINAR_MAX",
+    "RE_TURBULENT_MIN",
+    "RE_COLEBROOK_MIN",
+    "X_OVER_D_MIN",
+    "buried_cylinder_resistance",
+    "colebrook",
+    "cylinder_wall_resistance",
+    "flow_regime",
+    "friction_factor",
+    "nusselt_churchill_bernstein",
+    "nusselt_churchill_chu_cylinder",
+    "nusselt_gnielinski",
+    "nusselt_inside",
+    "nusselt_laminar",
+    "nusselt_mixed",
+    "out_of_range",
+    "radiation_coefficient",
+]
+
+#: Stefan–Boltzmann constant [W/(m² K⁴)], CODATA 2018 (exact in the 2019 SI).
+STEFAN_BOLTZMANN = 5.670374419e-8
+
+#: Upper Reynolds number of laminar pipe flow used throughout (common practice).
+RE_LAMINAR_MAX = 2300.0
+#: Reynolds number from which Gnielinski's transition blend hands over to the
+#: turbulent equation (Gnielinski 1995; VDI Heat Atlas 2010, G1).
+RE_TURBULENT_MIN = 1.0e4
+#: Reynolds number from which the Colebrook equation is used for friction.
+RE_COLEBROOK_MIN = 4000.0
+#: Smallest x/D the entry-length equations are evaluated at. Both the laminar
+#: entry terms and the turbulent entrance factor grow without bound as x -> 0;
+#: clipping keeps the arrays finite when a cell centre sits on the inlet.
+X_OVER_D_MIN = 1.0e-6
+
+_LN10 = math.log(10.0)
+_COLEBROOK_MAX_STEPS = 30
+
+#: One-line citations of every method in this module; the report prints them.
+METHODS: dict[str, str] = {
+    "laminar_friction": "Hagen–Poiseuille: f = 64/Re for fully developed laminar pipe flow (closed form)",
+    "colebrook": (
+        "Colebrook, C. F. (1939) Turbulent flow in pipes, with particular reference to the transition "
+        "region between the smooth and rough pipe laws. J. Inst. Civil Eng. 11, 133–156"
+    ),
+    "friction_transition": (
+        "Engineering bridge (not a correlation): f interpolated linearly in Re between 64/2300 and "
+        "Colebrook at Re = 4000"
+    ),
+    "laminar_entry": (
+        "Gnielinski, V. in VDI Heat Atlas, 2nd ed. (2010), ch. G1: local Nusselt number, simultaneously "
+        "developing laminar pipe flow; limits 3.657 / 4.364 from Shah, R. K. & London, A. L. (1978) "
+        "Laminar Flow Forced Convection in Ducts, Academic Press"
+    ),
+    "gnielinski": (
+        "Gnielinski, V. (1976) New equations for heat and mass transfer in turbulent pipe and channel "
+        "flow. Int. Chem. Eng. 16, 359–368; local entrance factor per VDI Heat Atlas (2010) G1"
+    ),
+    "transition_blend": (
+        "Gnielinski, V. (1995) Ein neues Berechnungsverfahren für die Wärmeübertragung im "
+        "Übergangsbereich zwischen laminarer und turbulenter Rohrströmung. Forsch. Ingenieurwes. 61, 240–248"
+    ),
+    "churchill_chu": (
+        "Churchill, S. W. & Chu, H. H. S. (1975) Correlating equations for laminar and turbulent free "
+        "convection from a horizontal cylinder. Int. J. Heat Mass Transfer 18, 1049–1053"
+    ),
+    "churchill_bernstein": (
+        "Churchill, S. W. & Bernstein, M. (1977) A correlating equation for forced convection from "
+        "gases and liquids to a circular cylinder in crossflow. J. Heat Transfer 99, 300–306"
+    ),
+    "mixed_convection": (
+        "Churchill, S. W. (1977) A comprehensive correlating equation for laminar, assisting, forced "
+        "and free convection. AIChE J. 23, 10–16: Nu = (Nu_F³ + Nu_N³)^(1/3), an approximation"
+    ),
+    "radiation": "Grey-body exchange with large surroundings, h_r = εσ(Ts² + T∞²)(Ts + T∞) (closed form)",
+    "cylinder_wall": "Conduction through a cylindrical wall, R' = ln(Do/Di)/(2πk) (closed form)",
+    "buried_cylinder": (
+        "Conduction shape factor of a cylinder buried in a semi-infinite medium with an isothermal "
+        "surface, S' = 2π/arccosh(2z/D) (Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, "
+        "Table 4.1)"
+    ),
+}
+
+#: Published validity ranges, method -> {dimensionless group: (low, high)}.
+#: Bounds are inclusive. ``out_of_range`` uses these.
+VALIDITY: dict[str, dict[str, tuple[float, float]]] = {
+    # Gnielinski (1976): 2300 < Re < 5e6 and 0.5 < Pr < 2000 (as quoted in Rohsenow, Hartnett & Cho,
+    # Handbook of Heat Transfer 1998, and VDI Heat Atlas G1). Many texts quote Re >= 3000.
+    "gnielinski": {"Re": (2300.0, 5.0e6), "Pr": (0.5, 2000.0)},
+    # Churchill & Chu (1975) recommend Ra >= 1e-5; Incropera gives the upper limit Ra <= 1e12.
+    "churchill_chu": {"Ra": (1.0e-5, 1.0e12)},
+    # Churchill & Bernstein (1977): all Re·Pr >= 0.2.
+    "churchill_bernstein": {"RePr": (0.2, math.inf)},
+    # VDI Heat Atlas (2010) G1 laminar equations: laminar flow Re <= 2300. The Prandtl range
+    # 0.1 <= Pr <= 1000 for the simultaneous-entry term is quoted from memory.
+    "laminar_entry": {"Re": (0.0, RE_LAMINAR_MAX), "Pr": (0.1, 1000.0)},
+    # Colebrook (1939): turbulent flow; the Re and roughness span of the Moody (1944) chart.
+    "colebrook": {"Re": (RE_COLEBROOK_MIN, 1.0e8), "relative_roughness": (0.0, 0.05)},
+}
+
+
+class CorrelationInputError(InputError, ValueError):
+    """A value a correlation cannot take. Both an :class:`InputError` and a ``ValueError``."""
+
+
+# --------------------------------------------------------------------------- helpers
+
+
+def _first_bad(values: np.ndarray, bad: np.ndarray):
+    """The first offending element, as a plain float for the error message."""
+    return float(np.broadcast_to(values, bad.shape)[bad].flat[0])
+
+
+def _require_positive(name: str, values) -> np.ndarray:
+    values = np.asarray(values, dtype=float)
+    bad = ~(values > 0.0)  # also catches NaN
+    if bad.any():
+        raise CorrelationInputError(name, _first_bad(values, bad), "must be > 0")
+    return values
+
+
+def _require_non_negative(name: str, values) -> np.ndarray:
+    values = np.asarray(values, dtype=float)
+    bad = ~(values >= 0.0)
+    if bad.any():
+        raise CorrelationInputError(name, _first_bad(values, bad), "must be >= 0")
+    return values
+
+
+def _x_over_d(x_over_D) -> np.ndarray:
+    """x/D clipped to [X_OVER_D_MIN, inf]; ``None`` or ``inf`` mean fully developed."""
+    if x_over_D is None:
+        return np.asarray(np.inf)
+    x = np.asarray(x_over_D, dtype=float)
+    bad = ~(x >= 0.0)
+    if bad.any():
+        raise CorrelationInputError("x_over_D", _first_bad(x, bad), "must be >= 0 (distance from the inlet)")
+    return np.maximum(x, X_OVER_D_MIN)
+
+
+def _boundary(boundary: str) -> str:
+    if boundary in ("T", "q"):
+        return boundary
+    raise CorrelationInputError(
+        "boundary", boundary, "must be 'T' (uniform wall temperature) or 'q' (uniform heat flux)"
+    )
+
+
+# --------------------------------------------------------------------------- friction
+
+
+def colebrook(Re, relative_roughness):
+    r"""Colebrook–White equation (Colebrook 1939), solved: Darcy friction factor.
+
+    .. math::
+        \frac{1}{\sqrt{f}} = -2\log_{10}\left(\frac{\varepsilon/D}{3.7}
+        + \frac{2.51}{Re\sqrt{f}}\right)
+
+    Solved for :math:`y = 1/\sqrt{f}` by vectorised Newton iteration, started
+    from the Swamee–Jain (1976) explicit approximation. Newton converges
+    quadratically here: the next step is smaller than 0.2·(step/y)² relative (for f < 0.15),
+    so iteration stops once the largest relative step is below 1e-6, which
+    leaves a relative error below ~2e-13 in 1/sqrt(f) (typically 3 steps).
+
+    Parameters
+    ----------
+    Re : array_like — Reynolds number based on the bore [-], > 0
+    relative_roughness : array_like — absolute roughness / bore, ε/D [-], >= 0
+
+    Returns
+    -------
+    f : ndarray — Darcy friction factor [-]
+
+    Validity
+    --------
+    Turbulent flow, Re >= ~4000; the Moody chart covers 4e3 <= Re <= 1e8,
+    0 <= ε/D <= 0.05 (``VALIDITY['colebrook']``). The equation is solved at
+    any Re > 0 it is given; below 4000 it is not physical.
+    """
+    Re = _require_positive("Re", Re)
+    eD = _require_non_negative("relative_roughness", relative_roughness)
+    return _colebrook(Re, eD)
+
+
+def _colebrook(Re: np.ndarray, eD: np.ndarray) -> np.ndarray:
+    """Newton solution of Colebrook–White on checked arrays (see colebrook)."""
+    a = eD / 3.7
+    b = 2.51 / Re
+    c = 2.0 / _LN10
+    cb = c * b
+    # Swamee–Jain (1976) start: 1/sqrt(f) = -2 log10(eD/3.7 + 5.74/Re^0.9), within ~1 % of f.
+    y = np.log(a + 5.74 * Re**-0.9)
+    y *= -c
+    for _ in range(_COLEBROOK_MAX_STEPS):
+        s = b * y
+        s += a
+        g = np.log(s)
+        g *= c
+        g += y
+        s = cb / s
+        s += 1.0
+        g /= s  # Newton step: g(y) / g'(y)
+        y -= g
+        # Newton converges quadratically here (the next step is below 0.2·(step/y)² relative),
+        # so |step/y| < 1e-6 means the remaining relative error in 1/sqrt(f) is < ~2e-13.
+        g /= y
+        if max(-np.min(g, initial=0.0), np.max(g, initial=0.0)) < 1e-6:
+            break
+    return 1.0 / (y * y)
+
+
+@functools.lru_cache(maxsize=256)
+def _colebrook_at_1e4(relative_roughness: float) -> float:
+    """colebrook(1e4, ε/D) for one roughness; cached (a pure function of its argument)."""
+    return float(colebrook(RE_TURBULENT_MIN, relative_roughness))
+
+
+def friction_factor(Re, relative_roughness):
+    """Darcy friction factor for every regime of pipe flow.
+
+    * Re <= 2300: laminar, f = 64/Re (Hagen–Poiseuille, closed form).
+    * Re >= 4000: Colebrook–White (1939), solved; see :func:`colebrook`.
+    * 2300 < Re < 4000: linear interpolation in Re between 64/2300 and the
+      Colebrook value at Re = 4000 (same ε/D). This is an engineering bridge
+      that keeps f continuous, not a correlation: friction in this range is not
+      predictable, and the solver flags the regime.
+
+    Parameters
+    ----------
+    Re : array_like — Reynolds number based on the bore [-], must be > 0
+    relative_roughness : array_like — ε/D [-], >= 0 (ignored in laminar flow)
+
+    Returns
+    -------
+    f : ndarray — Darcy friction factor [-]
+
+    Validity
+    --------
+    Laminar: Re <= 2300. Colebrook: as :func:`colebrook`.
+    """
+    Re = _require_positive("Re", Re)
+    eD = _require_non_negative("relative_roughness", relative_roughness)
+    f = _colebrook(np.maximum(Re, RE_COLEBROOK_MIN), eD)  # Colebrook at 4000 wherever Re <= 4000
+    f_laminar = 64.0 / np.minimum(Re, RE_LAMINAR_MAX)
+    weight = np.clip((Re - RE_LAMINAR_MAX) * (1.0 / (RE_COLEBROOK_MIN - RE_LAMINAR_MAX)), 0.0, 1.0)
+    f -= f_laminar
+    f *= weight
+    f += f_laminar
+    return f
+
+
+# --------------------------------------------------------------------------- inside heat transfer
+
+
+def flow_regime(Re):
+    """Flow regime code: 0 laminar (Re <= 2300), 1 transitional, 2 turbulent (Re >= 1e4).
+
+    Parameters
+    ----------
+    Re : array_like — Reynolds number based on the bore [-]
+
+    Returns
+    -------
+    regime : ndarray of int8
+    """
+    Re = np.asarray(Re, dtype=float)
+    return (Re > RE_LAMINAR_MAX).astype(np.int8) + (Re >= RE_TURBULENT_MIN).astype(np.int8)
+
+
+def nusselt_laminar(Re, Pr, x_over_D, boundary):
+    r"""Local Nusselt number, simultaneously developing laminar flow in a circular pipe.
+
+    Method: Gnielinski's superposition in VDI Heat Atlas, 2nd ed. (2010),
+    chapter G1, local forms (the mean forms use other constants). With
+    :math:`Gz_x = Re\,Pr\,D/x`:
+
+    Uniform wall temperature (``boundary='T'``):
+
+    .. math::
+        Nu_x = \left[3.657^3 + 0.7^3 + (Nu_2 - 0.7)^3 + Nu_3^3\right]^{1/3},\quad
+        Nu_2 = 1.077\,Gz_x^{1/3},\quad
+        Nu_3 = \tfrac{1}{2}\left(\frac{2}{1+22Pr}\right)^{1/6} Gz_x^{1/2}
+
+    Uniform heat flux (``boundary='q'``):
+
+    .. math::
+        Nu_x = \left[4.364^3 + 0.6^3 + (Nu_2 - 0.6)^3 + Nu_3^3\right]^{1/3},\quad
+        Nu_2 = 1.302\,Gz_x^{1/3},\quad
+        Nu_3 = 0.462\,Pr^{1/3}\,(Re\,D/x)^{1/2}
+
+    The first terms are the fully developed values of Shah & London (1978),
+    3.657 and 48/11 = 4.364, which the equation tends to as x/D -> ∞. The
+    second terms are the Lévêque thermal-entry asymptotes (1.077 and 1.302 are
+    2/3 of the mean-value constants 1.615 and 1.953); the third are the
+    developing-velocity (flat-plate-like) terms (0.462 is half of the mean 0.924;
+    the 'T' term is half of the mean term). The 'q' form was checked against
+    Shah & London's local thermal-entry equations; see the tests.
+
+    Parameters
+    ----------
+    Re : array_like — Reynolds number based on the bore [-], > 0
+    Pr : array_like — Prandtl number [-], > 0
+    x_over_D : array_like — distance from the heated inlet / bore [-], >= 0;
+        clipped to at least ``X_OVER_D_MIN`` = 1e-6 (the entry terms are
+        infinite at x = 0). ``np.inf`` gives the fully developed value.
+    boundary : {'T', 'q'} — uniform wall temperature or uniform heat flux
+
+    Returns
+    -------
+    Nu : ndarray — local Nusselt number based on the bore [-]
+
+    Validity
+    --------
+    Laminar, Re <= 2300; Pr 0.1–1000 (``VALIDITY['laminar_entry']``).
+    """
+    boundary = _boundary(boundary)
+    Re = np.asarray(Re, dtype=float)
+    Pr = np.asarray(Pr, dtype=float)
+    d_over_x = 1.0 / _x_over_d(x_over_D)
+    return _laminar(Re, Pr, d_over_x, np.cbrt(Pr), boundary)
+
+
+def _laminar(Re, Pr, d_over_x, cbrt_Pr, boundary):
+    """VDI G1 local laminar Nusselt number on checked arrays (see nusselt_laminar)."""
+    re_d_over_x = Re * d_over_x
+    cbrt_graetz = np.cbrt(re_d_over_x) * cbrt_Pr
+    if boundary == "T":
+        nu_1, b = 3.657, 0.7
+        nu_2 = 1.077 * cbrt_graetz
+        # (2/(1+22Pr))^(1/6) (Re Pr D/x)^(1/2) = sqrt(cbrt(2/(1+22Pr)) Re Pr D/x)
+        nu_3 = 0.5 * np.sqrt(np.cbrt(2.0 / (1.0 + 22.0 * Pr)) * (re_d_over_x * Pr))
+    else:
+        nu_1, b = 48.0 / 11.0, 0.6
+        nu_2 = 1.302 * cbrt_graetz
+        nu_3 = 0.462 * cbrt_Pr * np.sqrt(re_d_over_x)
+    nu_2 -= b
+    return np.cbrt((nu_1**3 + b**3) + nu_2 * nu_2 * nu_2 + nu_3 * nu_3 * nu_3)
+
+
+def nusselt_gnielinski(Re, Pr, f_darcy, x_over_D=None):
+    r"""Gnielinski (1976) turbulent pipe-flow Nusselt number, optionally local in the entrance.
+
+    .. math::
+        Nu = \frac{(f/8)(Re - 1000)\,Pr}{1 + 12.7\sqrt{f/8}\,(Pr^{2/3} - 1)}
+        \left[1 + \tfrac{1}{3}\left(\frac{D}{x}\right)^{2/3}\right]
+
+    The bracket is the local entrance factor of VDI Heat Atlas (2010) G1; its
+    mean over a length L is the familiar :math:`1 + (D/L)^{2/3}`. Without
+    ``x_over_D`` the factor is 1 (fully developed).
+
+    Parameters
+    ----------
+    Re : array_like — Reynolds number based on the bore [-]
+    Pr : array_like — Prandtl number [-]
+    f_darcy : array_like — Darcy friction factor [-] (e.g. from :func:`friction_factor`)
+    x_over_D : array_like or None — distance from the inlet / bore [-], >= 0,
+        clipped to at least ``X_OVER_D_MIN``; ``None`` for fully developed flow
+
+    Returns
+    -------
+    Nu : ndarray — Nusselt number based on the bore [-]
+
+    Validity
+    --------
+    2300 < Re < 5e6 (3000 in many texts), 0.5 < Pr < 2000 (``VALIDITY['gnielinski']``).
+    """
+    Re = np.asarray(Re, dtype=float)
+    Pr = np.asarray(Pr, dtype=float)
+    d_over_x = 0.0 if x_over_D is None else 1.0 / _x_over_d(x_over_D)
+    return _gnielinski(Re, Pr, np.asarray(f_darcy, dtype=float), np.cbrt(Pr), d_over_x)
+
+
+def _gnielinski(Re, Pr, f_darcy, cbrt_Pr, d_over_x):
+    """Gnielinski with the local entrance factor on checked arrays (see nusselt_gnielinski)."""
+    f8 = f_darcy / 8.0
+    nu = f8 * (Re - 1000.0) * Pr / (1.0 + 12.7 * np.sqrt(f8) * (cbrt_Pr * cbrt_Pr - 1.0))
+    if np.ndim(d_over_x) == 0 and d_over_x == 0.0:
+        return nu
+    entry = np.cbrt(d_over_x)
+    return nu * (1.0 + (1.0 / 3.0) * entry * entry)
+
+
+def nusselt_inside(Re, Pr, f_darcy, x_over_D, boundary, relative_roughness=0.0):
+    r"""Local inside Nusselt number of a circular pipe in every flow regime.
+
+    * Re <= 2300: :func:`nusselt_laminar` (simultaneously developing, local).
+    * Re >= 1e4: :func:`nusselt_gnielinski` with ``f_darcy`` and the local
+      entrance factor.
+    * 2300 < Re < 1e4: Gnielinski's (1995) transition blend, as in VDI Heat
+      Atlas (2010) G1:
+
+      .. math::
+          Nu = (1-\gamma)\,Nu_{lam}(Re{=}2300) + \gamma\,Nu_{turb}(Re{=}10^4),\quad
+          \gamma = \frac{Re - 2300}{10^4 - 2300}
+
+      Both end values at the same x/D, Pr and boundary condition;
+      :math:`Nu_{turb}(10^4)` uses f = ``friction_factor(1e4, relative_roughness)``.
+      The blend is continuous at both ends by construction; at Re = 1e4 it
+      meets the turbulent branch exactly when ``f_darcy`` there is also
+      ``friction_factor(1e4, relative_roughness)``.
+
+    Parameters
+    ----------
+    Re : array_like — Reynolds number based on the bore [-], > 0
+    Pr : array_like — Prandtl number [-], > 0
+    f_darcy : array_like — Darcy friction factor at Re [-] (used only where Re >= 1e4)
+    x_over_D : array_like — distance from the heated inlet / bore [-], >= 0;
+        clipped to at least ``X_OVER_D_MIN``; ``np.inf`` for fully developed
+    boundary : {'T', 'q'} — laminar wall condition: uniform temperature or heat flux
+        (turbulent Nusselt numbers do not depend on it noticeably for Pr > 0.5)
+    relative_roughness : array_like — ε/D [-] for the friction factor at Re = 1e4
+
+    Returns
+    -------
+    Nu : ndarray — local Nusselt number based on the bore [-]
+
+    Validity
+    --------
+    As the three parts: ``VALIDITY['laminar_entry']`` and ``VALIDITY['gnielinski']``;
+    transitional results carry the uncertainty of the regime itself.
+    """
+    boundary = _boundary(boundary)
+    Re = _require_positive("Re", Re)
+    Pr = _require_positive("Pr", Pr)
+    d_over_x = 1.0 / _x_over_d(x_over_D)
+    cbrt_Pr = np.cbrt(Pr)
+    nu_laminar = _laminar(np.minimum(Re, RE_LAMINAR_MAX), Pr, d_over_x, cbrt_Pr, boundary)
+    turbulent = Re >= RE_TURBULENT_MIN
+    relative_roughness = np.asarray(relative_roughness, dtype=float)
+    if relative_roughness.ndim == 0:
+        f_at_1e4 = _colebrook_at_1e4(float(relative_roughness))  # one value: skip the array machinery
+    else:
+        f_at_1e4 = colebrook(RE_TURBULENT_MIN, relative_roughness)
+    f_turb = np.where(turbulent, f_darcy, f_at_1e4)
+    nu_turbulent = _gnielinski(np.maximum(Re, RE_TURBULENT_MIN), Pr, f_turb, cbrt_Pr, d_over_x)
+    gamma = np.clip((Re - RE_LAMINAR_MAX) * (1.0 / (RE_TURBULENT_MIN - RE_LAMINAR_MAX)), 0.0, 1.0)
+    nu_turbulent -= nu_laminar
+    nu_turbulent *= gamma
+    nu_turbulent += nu_laminar
+    return nu_turbulent
+
+
+# --------------------------------------------------------------------------- outside heat transfer
+
+
+def nusselt_churchill_chu_cylinder(Ra, Pr):
+    r"""Churchill & Chu (1975): natural convection from an isothermal horizontal cylinder.
+
+    .. math::
+        Nu_D = \left\{0.60 + \frac{0.387\,Ra_D^{1/6}}
+        {\left[1 + (0.559/Pr)^{9/16}\right]^{8/27}}\right\}^2
+
+    Parameters
+    ----------
+    Ra : array_like — Rayleigh number based on the outer diameter, g β ΔT D³/(ν α) [-], >= 0
+    Pr : array_like — Prandtl number at the film temperature [-], > 0
+
+    Returns
+    -------
+    Nu : ndarray — mean Nusselt number based on the outer diameter [-]
+
+    Validity
+    --------
+    1e-5 <= Ra <= 1e12, all Pr (``VALIDITY['churchill_chu']``).
+    """
+    Ra = np.asarray(Ra, dtype=float)
+    Pr = np.asarray(Pr, dtype=float)
+    root = 0.60 + 0.387 * Ra ** (1.0 / 6.0) / (1.0 + (0.559 / Pr) ** (9.0 / 16.0)) ** (8.0 / 27.0)
+    return root * root
+
+
+def nusselt_churchill_bernstein(Re, Pr):
+    r"""Churchill & Bernstein (1977): forced convection, circular cylinder in cross-flow.
+
+    .. math::
+        Nu_D = 0.3 + \frac{0.62\,Re_D^{1/2}\,Pr^{1/3}}{\left[1 + (0.4/Pr)^{2/3}\right]^{1/4}}
+        \left[1 + \left(\frac{Re_D}{282000}\right)^{5/8}\right]^{4/5}
+
+    Parameters
+    ----------
+    Re : array_like — Reynolds number based on the outer diameter and free-stream velocity [-]
+    Pr : array_like — Prandtl number at the film temperature [-], > 0
+
+    Returns
+    -------
+    Nu : ndarray — mean Nusselt number based on the outer diameter [-]
+
+    Validity
+    --------
+    Re·Pr >= 0.2 (``VALIDITY['churchill_bernstein']``, group ``RePr``).
+    """
+    Re = np.asarray(Re, dtype=float)
+    Pr = np.asarray(Pr, dtype=float)
+    return 0.3 + (0.62 * np.sqrt(Re) * np.cbrt(Pr) / (1.0 + (0.4 / Pr) ** (2.0 / 3.0)) ** 0.25) * (
+        1.0 + (Re / 282000.0) ** 0.625
+    ) ** 0.8
+
+
+def nusselt_mixed(Nu_forced, Nu_natural):
+    r"""Churchill (1977) combination of forced and natural convection.
+
+    .. math::
+        Nu = \left(Nu_F^3 + Nu_N^3\right)^{1/3}
+
+    An approximation commonly used for assisting and transverse flow (wind
+    across a horizontal pipe); for opposing flow it overestimates.
+
+    Parameters
+    ----------
+    Nu_forced : array_like — forced-convection Nusselt number [-], >= 0
+    Nu_natural : array_like — natural-convection Nusselt number [-], >= 0
+
+    Returns
+    -------
+    Nu : ndarray — combined Nusselt number [-]
+    """
+    Nu_forced = np.asarray(Nu_forced, dtype=float)
+    Nu_natural = np.asarray(Nu_natural, dtype=float)
+    return np.cbrt(Nu_forced**3 + Nu_natural**3)
+
+
+def radiation_coefficient(T_surface_K, T_surroundings_K, emissivity):
+    r"""Linearised radiation coefficient of a grey surface in large surroundings.
+
+    .. math::
+        h_r = \varepsilon\,\sigma\,(T_s^2 + T_\infty^2)(T_s + T_\infty)
+
+    so that :math:`q'' = h_r (T_s - T_\infty)` equals
+    :math:`\varepsilon\sigma(T_s^4 - T_\infty^4)` exactly.
+
+    Parameters
+    ----------
+    T_surface_K : array_like — surface temperature [K], > 0
+    T_surroundings_K : array_like — temperature of the surroundings [K], > 0
+    emissivity : array_like — hemispherical emissivity of the surface [-], 0..1
+
+    Returns
+    -------
+    h_r : ndarray — radiation heat-transfer coefficient [W/(m² K)]
+    """
+    Ts = _require_positive("T_surface_K", T_surface_K)
+    Tinf = _require_positive("T_surroundings_K", T_surroundings_K)
+    eps = np.asarray(emissivity, dtype=float)
+    bad = ~((eps >= 0.0) & (eps <= 1.0))
+    if bad.any():
+        raise CorrelationInputError("emissivity", _first_bad(eps, bad), "must lie between 0 and 1")
+    return eps * STEFAN_BOLTZMANN * (Ts * Ts + Tinf * Tinf) * (Ts + Tinf)
+
+
+def cylinder_wall_resistance(D_inner_m, D_outer_m, conductivity):
+    r"""Conduction resistance of a cylindrical wall per unit length (closed form).
+
+    .. math::
+        R' = \frac{\ln(D_o/D_i)}{2\pi k}
+
+    Parameters
+    ----------
+    D_inner_m : array_like — inner diameter [m], > 0
+    D_outer_m : array_like — outer diameter [m], >= D_inner_m (equal gives 0)
+    conductivity : array_like — thermal conductivity of the wall [W/(m K)], > 0
+
+    Returns
+    -------
+    R : ndarray — resistance per metre of pipe [K m/W]
+    """
+    Di = _require_positive("D_inner_m", D_inner_m)
+    Do = _require_positive("D_outer_m", D_outer_m)
+    k = _require_positive("conductivity", conductivity)
+    shape = np.broadcast(Di, Do).shape
+    bad = np.broadcast_to(Do < Di, shape)
+    if bad.any():
+        raise CorrelationInputError(
+            "D_outer_m", _first_bad(Do, bad), f"must not be smaller than D_inner_m = {_first_bad(Di, bad)!r} m"
+        )
+    return np.log(Do / Di) / (2.0 * math.pi * k)
+
+
+def buried_cylinder_resistance(D_outer_m, depth_m, soil_conductivity):
+    r"""Conduction resistance per unit length between a buried cylinder and the ground surface.
+
+    Conduction shape factor of an isothermal cylinder of diameter D with its
+    centreline at depth z in a semi-infinite medium whose surface is
+    isothermal (Incropera & DeWitt, Table 4.1):
+
+    .. math::
+        R' = \frac{\operatorname{arccosh}(2z/D)}{2\pi k_{soil}}
+
+    Parameters
+    ----------
+    D_outer_m : array_like — outer diameter of the buried pipe or its insulation [m], > 0
+    depth_m : array_like — depth of the pipe centreline below the surface [m], > D/2
+    soil_conductivity : array_like — thermal conductivity of the soil [W/(m K)], > 0
+
+    Returns
+    -------
+    R : ndarray — resistance per metre of pipe [K m/W]
+
+    Raises
+    ------
+    CorrelationInputError (a ValueError) when the depth does not exceed D/2,
+    naming the depth and the diameter.
+    """
+    D = _require_positive("D_outer_m", D_outer_m)
+    z = np.asarray(depth_m, dtype=float)
+    k = _require_positive("soil_conductivity", soil_conductivity)
+    bad = ~(2.0 * z > D)
+    if np.any(bad):
+        shape = np.broadcast(z, D).shape
+        bad = np.broadcast_to(bad, shape)
+        raise CorrelationInputError(
+            "depth_m",
+            _first_bad(z, bad),
+            f"centreline depth must exceed half the outer diameter D_outer_m = {_first_bad(D, bad)!r} m",
+        )
+    return np.arccosh(2.0 * z / D) / (2.0 * math.pi * k)
+
+
+# --------------------------------------------------------------------------- validity
+
+
+def out_of_range(method: str, **groups) -> np.ndarray:
+    """Boolean mask, True where any given group lies outside ``VALIDITY[method]``.
+
+    Bounds are inclusive; NaN counts as out of range. Groups not given are not
+    checked.
+
+    Parameters
+    ----------
+    method : str — a key of :data:`VALIDITY`
+    **groups : array_like — dimensionless groups by the names used in
+        ``VALIDITY[method]`` (e.g. ``Re=..., Pr=...``)
+
+    Returns
+    -------
+    mask : ndarray of bool, the broadcast shape of the groups
+    """
+    try:
+        ranges = VALIDITY[method]
+    except KeyError:
+        raise CorrelationInputError("method", method, f"unknown; known methods: {sorted(VALIDITY)}") from None
+    mask = np.asarray(False)
+    for name, values in groups.items():
+        if name not in ranges:
+            raise CorrelationInputError("groups", name, f"not a group of {method!r}; its groups: {sorted(ranges)}")
+        low, high = ranges[name]
+        values = np.asarray(values, dtype=float)
+        mask = mask | ~((values >= low) & (values <= high))
+    return mask
