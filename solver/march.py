@@ -175,7 +175,7 @@ def solve(
     refine: float = 1.0,
     cells_per_segment: int | None = None,
     max_iterations: int = 60,
-    tolerance_K: float = 1e-7,
+    tolerance_K: float = 1e-6,
 ) -> Result:
     """Solve one alternative and return its :class:`~solver.results.Result`.
 
@@ -268,7 +268,7 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
             wind_speed[sel] = s.surroundings.wind_speed_m_per_s
         if isinstance(s.surroundings, (StillAir, Wind)):
             emissivity[sel] = s.surroundings.emissivity
-    air = fluid_model(PureFluid(name="Air")) if film_mask.any() else None
+    air = _AirAtOneAtmosphere.get() if film_mask.any() else None
 
     # fittings: K(Re) = A/Re + B per segment (both 2-K and 3-K methods have this form at a fixed bore)
     seg_first_cell = np.cumsum([0] + [s.n_cells for s in setups[:-1]])
@@ -299,11 +299,27 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
     area_film = math.pi * d_film
     converged = False
     last_change = math.inf
+    h_target = None
+    dT_heat = None
     for iteration in range(max_iterations):
+        # properties at the nodes; cell values are the means of their two nodes (second order)
+        pn = fluid.props(np.clip(T, t_lo, t_hi), p)
+        if h_target is not None:
+            # temperature from (h, p): a Newton step on h(T, p) = h_target; the part of the temperature
+            # change not explained by Q/(m cp) (pressure effect, cp curvature) feeds the recurrence
+            T_true = T + (h_target - pn.h) / pn.cp
+            e_corr = np.diff(T_true) - dT_heat
+            change = max(float(np.max(np.abs(T_true - T))), last_step)
+            if change < tol:
+                converged = True
+                T = T_true
+                break
+            last_change = change
+        rho = 0.5 * (pn.rho[:-1] + pn.rho[1:])
+        cp = 0.5 * (pn.cp[:-1] + pn.cp[1:])
+        mu = np.sqrt(pn.mu[:-1] * pn.mu[1:])  # viscosity varies exponentially with T
+        k = 0.5 * (pn.k[:-1] + pn.k[1:])
         Tc = 0.5 * (T[:-1] + T[1:])
-        pc = 0.5 * (p[:-1] + p[1:])
-        pr = fluid.props(np.clip(Tc, t_lo, t_hi), pc)
-        rho, cp, mu, k = pr.rho, pr.cp, pr.mu, pr.k
         velocity = m_dot / (rho * area)
         Re = m_dot * D / (area * mu)
         Pr = cp * mu / k
@@ -366,34 +382,28 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
                 alternative=alt.name, segment=seg_bad.name, x_m=float(x_node[i_bad]),
             )
 
-        # temperature from enthalpy and pressure; the part not explained by Q/(m cp) feeds back
-        T_true = fluid.temperature(h_nodes, np.maximum(p_new, 1.0))
-        e_corr = (T_true[1:] - T_true[:-1]) - dT_heat
-
         # outer surface temperature for the film coefficient
         if air is not None:
             q_loss = q_in[film_mask] - Q_cell[film_mask] / dx[film_mask]
             r_film = r_out_total[film_mask] - r_ins_film
             T_surface[film_mask] = t_inf[film_mask] + q_loss * r_film
-        change = max(float(np.max(np.abs(T_true - T))), float(np.max(np.abs(p_new - p))) * 1e-5)
-        T = np.clip(T_true, t_lo, t_hi)
+        last_step = max(float(np.max(np.abs(T_new - T))), float(np.max(np.abs(p_new - p))) * 1e-5)
+        T = np.clip(T_new, t_lo - 50.0, t_hi + 50.0)
         p = p_new
-        last_change = change
-        if change < tol:
-            converged = True
-            break
+        h_target = h_nodes
+
     if not converged:
         raise SolverError(
             f"the march did not settle (last change {last_change:.2g} K after {max_iterations} passes); "
             "the flow may be near choking or the line near a phase change",
             alternative=alt.name,
         )
-    if np.any(T_true <= t_lo) or np.any(T_true >= t_hi):
-        i_bad = int(np.argmax((T_true <= t_lo) | (T_true >= t_hi)))
+    if np.any(T < t_lo) or np.any(T > t_hi):
+        i_bad = int(np.argmax((T < t_lo) | (T > t_hi)))
         seg_bad = setups[int(seg_of_cell[min(i_bad, n - 1)])]
         raise SolverError(
             f"bulk temperature leaves the range of the fluid data ({t_lo - 273.15:.1f} to {t_hi - 273.15:.1f} °C) "
-            f"at {T_true[i_bad] - 273.15:.1f} °C",
+            f"at {T[i_bad] - 273.15:.1f} °C",
             alternative=alt.name, segment=seg_bad.name, x_m=float(x_node[i_bad]),
         )
 
@@ -532,14 +542,41 @@ def _node_density(fluid, T, p, rho_cells):
     return fluid.props(T, p).rho
 
 
+class _AirAtOneAtmosphere:
+    """Air properties at 1 atm on 1 K knots from 150 K to 900 K, from the CoolProp air model.
+
+    Built once per process (the knots are fixed, so it cannot change an answer);
+    linear interpolation in temperature is well within 0.1 % for these smooth functions.
+    """
+
+    _instance = None
+
+    def __init__(self):
+        air = fluid_model(PureFluid(name="Air"))
+        self.t_knots = np.arange(150.0, 901.0, 1.0)
+        ap = air.props(self.t_knots, np.full(self.t_knots.shape, AMBIENT_PRESSURE_PA))
+        self.nu = ap.mu / ap.rho  # kinematic viscosity [m²/s]
+        self.alpha = ap.k / (ap.rho * ap.cp)  # thermal diffusivity [m²/s]
+        self.k = ap.k
+        self.T_min_K, self.T_max_K = 150.0, 900.0
+
+    @classmethod
+    def get(cls) -> "_AirAtOneAtmosphere":
+        if cls._instance is None:
+            cls._instance = cls()
+        return cls._instance
+
+    def at(self, t):
+        t = np.clip(t, self.T_min_K, self.T_max_K)
+        tk = self.t_knots
+        return np.interp(t, tk, self.nu), np.interp(t, tk, self.alpha), np.interp(t, tk, self.k)
+
+
 def _air_film(air, t_surface, t_air, d_outer, wind_speed, emissivity):
     """Outer film coefficient in air [W/m²K]: natural (Churchill–Chu) and forced (Churchill–Bernstein)
     convection combined by Churchill's cube rule, plus radiation to surroundings at air temperature."""
     t_film = 0.5 * (t_surface + t_air)
-    pa = np.full(t_film.shape, AMBIENT_PRESSURE_PA)
-    ap = air.props(t_film, pa)
-    nu_kin = ap.mu / ap.rho
-    alpha = ap.k / (ap.rho * ap.cp)
+    nu_kin, alpha, k_air = air.at(t_film)
     pr = nu_kin / alpha
     beta = 1.0 / t_film  # ideal gas
     dT = np.maximum(np.abs(t_surface - t_air), 1e-3)
@@ -548,7 +585,7 @@ def _air_film(air, t_surface, t_air, d_outer, wind_speed, emissivity):
     re = wind_speed * d_outer / nu_kin
     nu_forced = np.where(wind_speed > 0, correlations.nusselt_churchill_bernstein(np.maximum(re, 1e-9), pr), 0.0)
     nu = np.where(wind_speed > 0, correlations.nusselt_mixed(nu_forced, nu_nat), nu_nat)
-    h_conv = nu * ap.k / d_outer
+    h_conv = nu * k_air / d_outer
     h_rad = correlations.radiation_coefficient(t_surface, t_air, emissivity)
     return h_conv + h_rad
 
@@ -756,11 +793,14 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
                 out.append(Check("warning", "VELOCITY_HIGH",
                                  f"Liquid velocity {v.max():.2f} m/s exceeds about 3 m/s (common practice): erosion, noise "
                                  "and pressure surge on valve closure.", segment=s.index, x_m=float(x_mid[i])))
-            elif v.min() < 0.3:
+            elif v.min() < 0.3 and not any(ch.code == "VELOCITY_LOW" for ch in out):
+                # one note for the line is enough: slow flow is usually a design choice, not a fault
                 i = sel[int(np.argmin(v))]
+                slow = sum(1 for t in setups if velocity[seg_of_cell == t.index].min() < 0.3)
+                more = f" ({slow} of {len(setups)} segments)" if len(setups) > 1 else ""
                 out.append(Check("info", "VELOCITY_LOW",
-                                 f"Liquid velocity {v.min():.2f} m/s is below about 0.3 m/s (common practice): settling, "
-                                 "fouling and poor heat transfer.", segment=s.index, x_m=float(x_mid[i])))
+                                 f"Liquid velocity {v.min():.2f} m/s is below about 0.3 m/s{more} (common practice): "
+                                 "settling, fouling and poor heat transfer.", segment=s.index, x_m=float(x_mid[i])))
 
     # surfaces people can touch
     for s, (a, b) in zip(setups, spans):
@@ -802,9 +842,7 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
                                  segment=s.index, x_m=float(x_mid[sel[0]])))
     if air is not None and film_mask.any():
         t_film = 0.5 * (T_surface + np.nan_to_num(t_inf, nan=293.15))
-        ap = air.props(np.clip(t_film, air.T_min_K, air.T_max_K), np.full(t_film.shape, AMBIENT_PRESSURE_PA))
-        nu_kin = ap.mu / ap.rho
-        alpha = ap.k / (ap.rho * ap.cp)
+        nu_kin, alpha, _ = air.at(t_film)
         ra = GRAVITY / t_film * np.abs(T_surface - np.nan_to_num(t_inf, nan=293.15)) * d_outer**3 / (nu_kin * alpha)
         bad_cc = film_mask & (ra > correlations.VALIDITY["churchill_chu"]["Ra"][1])
         for s in setups:

@@ -1,0 +1,193 @@
+"""Checks: the findings of the current result, most severe first.
+
+Each row shows a severity mark (shape + colour + word, so colour is never the only cue), the
+message and where it applies (segment name, position in display units). Clicking a row selects
+the segment and marks the position on the Profiles. An empty list says so plainly.
+"""
+
+from __future__ import annotations
+
+import html
+import math
+
+from PySide6.QtCore import Qt
+from PySide6.QtGui import QBrush, QFont
+from PySide6.QtWidgets import (
+    QAbstractItemView,
+    QHeaderView,
+    QLabel,
+    QTreeWidget,
+    QTreeWidgetItem,
+    QVBoxLayout,
+    QWidget,
+)
+
+from app import style
+from app.units import format_value
+
+COLUMNS = ("Severity", "Finding", "Segment", "Position")
+ROLE_CHECK = Qt.UserRole + 1
+
+
+def sorted_checks(checks) -> list:
+    """Most severe first; within a severity in flow order (checks without a position last)."""
+    return sorted(
+        checks,
+        key=lambda c: (
+            -style.severity_rank(c.severity),
+            c.x_m if c.x_m is not None and math.isfinite(c.x_m) else math.inf,
+            c.segment if c.segment is not None else 1 << 30,
+        ),
+    )
+
+
+class ChecksPanel(QWidget):
+    """``ChecksPanel(doc)``: a list of the current result's findings; observes the Document.
+
+    Public: ``tree`` (QTreeWidget; each row's check object under ``ROLE_CHECK`` in column 0),
+    ``header`` (QLabel with counts), :meth:`activate_row`.
+    """
+
+    def __init__(self, doc, parent=None):
+        super().__init__(parent)
+        self.doc = doc
+        self.setObjectName("Checks")
+        self.setWindowTitle("Checks")
+        self._result = getattr(doc, "result", None)
+        self._stale = False
+
+        self.header = QLabel("")
+        self.header.setTextFormat(Qt.RichText)
+        self.header.setStyleSheet(f"color: {style.INK}; padding: 3px 6px;")
+
+        self.tree = QTreeWidget(self)
+        self.tree.setColumnCount(len(COLUMNS))
+        self.tree.setHeaderLabels(list(COLUMNS))
+        self.tree.setRootIsDecorated(False)
+        self.tree.setUniformRowHeights(False)
+        self.tree.setWordWrap(True)
+        self.tree.setAlternatingRowColors(True)
+        self.tree.setSelectionMode(QAbstractItemView.SingleSelection)
+        self.tree.setAllColumnsShowFocus(True)
+        self.tree.setAccessibleName("Checks")
+        h = self.tree.header()
+        h.setStretchLastSection(False)
+        h.setSectionResizeMode(0, QHeaderView.ResizeToContents)
+        h.setSectionResizeMode(1, QHeaderView.Stretch)
+        h.setSectionResizeMode(2, QHeaderView.ResizeToContents)
+        h.setSectionResizeMode(3, QHeaderView.ResizeToContents)
+        self.tree.itemClicked.connect(lambda item, _col: self.activate_row(item))
+        self.tree.itemActivated.connect(lambda item, _col: self.activate_row(item))
+
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(0, 0, 0, 0)
+        lay.setSpacing(0)
+        lay.addWidget(self.header)
+        lay.addWidget(self.tree, 1)
+        # the full text of the current finding (rows elide long messages)
+        self.detail = QLabel("")
+        self.detail.setWordWrap(True)
+        self.detail.setTextInteractionFlags(Qt.TextSelectableByMouse)
+        self.detail.setStyleSheet(
+            f"color: {style.INK}; background: {style.CANVAS_BG}; border-top: 1px solid {style.GRID}; padding: 4px 6px;"
+        )
+        self.detail.hide()
+        lay.addWidget(self.detail)
+        self.tree.currentItemChanged.connect(self._show_detail)
+
+        doc.result_ready.connect(self._on_result)
+        doc.solve_failed.connect(self._on_failed)
+        doc.units_changed.connect(lambda _s: self.refresh())
+        doc.project_changed.connect(self.refresh)  # segment names may change
+        doc.project_replaced.connect(self._on_replaced)
+        doc.current_alternative_changed.connect(lambda _i: self._on_replaced())
+        self.refresh()
+
+    def _on_result(self, result) -> None:
+        self._result = result
+        self._stale = False
+        self.refresh()
+
+    def _on_failed(self, _message: str) -> None:
+        self._stale = True
+        self.refresh()
+
+    def _on_replaced(self) -> None:
+        self._result = getattr(self.doc, "result", None)
+        self._stale = False
+        self.refresh()
+
+    def _segment_name(self, index) -> str:
+        if index is None:
+            return "whole line"
+        segs = self.doc.current_alternative.segments
+        if 0 <= index < len(segs):
+            return segs[index].name
+        if self._result is not None and 0 <= index < len(self._result.segments):
+            return self._result.segments[index].name
+        return f"segment {index + 1}"
+
+    def refresh(self) -> None:
+        self.tree.clear()
+        self.detail.hide()
+        system = self.doc.unit_system
+        res = self._result
+        if res is None:
+            self.header.setText(f"<span style='color:{style.INK_MUTED}'>Checks appear once the line is solved.</span>")
+            return
+        checks = sorted_checks(res.checks)
+        counts = {k: sum(1 for c in checks if c.severity == k) for k in ("danger", "warning", "info")}
+        parts = [
+            f"<span style='color:{style.SEVERITIES[k].colour}'><b>{n}</b></span> "
+            f"{style.SEVERITIES[k].word.lower()}{'s' if n != 1 and k != 'info' else ''}"
+            for k, n in counts.items()
+            if n
+        ]
+        head = " · ".join(parts) if parts else "No findings"
+        if self._stale:
+            head += f" &nbsp;<span style='color:{style.INK_MUTED}'>(stale: the last edit could not be solved)</span>"
+        self.header.setText(head)
+
+        bold = QFont(self.tree.font())
+        bold.setBold(True)
+        if not checks:
+            item = QTreeWidgetItem(["OK", "No findings: every check passed for this alternative.", "", ""])
+            item.setIcon(0, style.severity_icon("ok"))
+            item.setForeground(1, QBrush(style.qcolor(style.INK_MUTED)))
+            item.setFlags(Qt.ItemIsEnabled)
+            self.tree.addTopLevelItem(item)
+            return
+        for c in checks:
+            sev = style.severity_style(c.severity)
+            pos = format_value(c.x_m, "length", system) if c.x_m is not None else "—"
+            item = QTreeWidgetItem([sev.word, c.message, self._segment_name(c.segment), pos])
+            item.setIcon(0, style.severity_icon(c.severity))
+            item.setFont(0, bold)
+            item.setForeground(0, QBrush(style.qcolor(sev.colour).darker(125)))
+            item.setToolTip(1, c.message)
+            item.setToolTip(0, f"{sev.word} ({c.code})")
+            item.setTextAlignment(3, Qt.AlignRight | Qt.AlignVCenter)
+            item.setData(0, ROLE_CHECK, c)
+            self.tree.addTopLevelItem(item)
+
+    def _show_detail(self, item, _previous=None) -> None:
+        check = item.data(0, ROLE_CHECK) if item is not None else None
+        if check is None:
+            self.detail.hide()
+            return
+        sev = style.severity_style(check.severity)
+        self.detail.setText(f"<b style='color:{style.qcolor(sev.colour).darker(125).name()}'>{sev.word}</b> — {html.escape(check.message)}")
+        self.detail.show()
+
+    def activate_row(self, item: QTreeWidgetItem) -> None:
+        """Select the finding's segment and mark its position on the Profiles."""
+        check = item.data(0, ROLE_CHECK)
+        if check is None:
+            return
+        if check.segment is not None:
+            self.doc.select_segment(check.segment)
+        x = check.x_m
+        if x is None and check.segment is not None and self._result is not None and check.segment < len(self._result.segments):
+            span = self._result.segments[check.segment]
+            x = 0.5 * (span.x_start_m + span.x_end_m)
+        self.doc.mark_position(float(x) if x is not None else math.nan)

@@ -1,0 +1,178 @@
+"""Key Figures: the headline numbers of the current result in the chosen unit system.
+
+A three-column table (figure, value with unit, where/remark), grouped into outlet, pressure,
+heat and wall/flow. Values come straight from the Result (SI) through ``app.units``; nothing
+is computed here beyond picking and formatting.
+"""
+
+from __future__ import annotations
+
+from PySide6.QtCore import Qt
+from PySide6.QtGui import QBrush, QFont
+from PySide6.QtWidgets import (
+    QAbstractItemView,
+    QHeaderView,
+    QLabel,
+    QTableWidget,
+    QTableWidgetItem,
+    QVBoxLayout,
+    QWidget,
+)
+
+from app import style
+from app.units import format_value
+
+
+def _range(lo: float, hi: float, quantity: str, system: str, digits: int = 3) -> str:
+    a = format_value(lo, quantity, system, digits=digits, with_unit=False)
+    b = format_value(hi, quantity, system, digits=digits)
+    return f"{a} – {b}"
+
+
+def key_figure_rows(result, system: str) -> list[tuple[str, str, str, str]]:
+    """Rows of (key, label, value text, remark) for ``result`` in ``system``.
+
+    Group headings have key ``""`` and empty value. Keys match ``Result.key_figures()`` where
+    one exists, so tests and exports can find a row.
+    """
+    r = result
+    pd = r.pressure_drop
+    at = lambda x: "at " + format_value(x, "length", system)  # noqa: E731
+    rows: list[tuple[str, str, str, str]] = [
+        ("", "Outlet", "", ""),
+        ("outlet_temperature_K", "Outlet temperature", format_value(r.outlet_temperature_K, "temperature", system),
+         "inlet " + format_value(r.inlet_temperature_K, "temperature", system)),
+        ("outlet_pressure_Pa", "Outlet pressure", format_value(r.outlet_pressure_Pa, "pressure", system),
+         "inlet " + format_value(r.inlet_pressure_Pa, "pressure", system)),
+        ("", "Pressure drop", "", ""),
+        ("pressure_drop_Pa", "Pressure drop", format_value(r.pressure_drop_Pa, "pressure_difference", system), "inlet − outlet"),
+        ("pressure_drop_friction_Pa", "   friction", format_value(pd.friction_Pa, "pressure_difference", system), ""),
+        ("pressure_drop_fittings_Pa", "   fittings", format_value(pd.fittings_Pa, "pressure_difference", system), ""),
+        ("pressure_drop_elevation_Pa", "   elevation", format_value(pd.elevation_Pa, "pressure_difference", system),
+         "negative = gained going down"),
+        ("pressure_drop_acceleration_Pa", "   acceleration", format_value(pd.acceleration_Pa, "pressure_difference", system), ""),
+        ("pump_power_W", "Pump power (hydraulic)", format_value(r.pump_power_W, "power", system), "flow × pressure drop"),
+        ("", "Heat", "", ""),
+        ("duty_W", "Duty (heat to fluid)", format_value(r.duty_W, "power", system), "negative = fluid cooled"),
+        ("heat_input_W", "Heat input", format_value(r.heat_input_W, "power", system), "tracing"),
+        ("heat_loss_W", "Heat loss", format_value(r.heat_loss_W, "power", system), "to the surroundings"),
+        ("energy_balance_residual_W", "Energy balance residual", format_value(r.energy_balance_residual_W, "power", system),
+         "duty − (input − loss)"),
+        ("", "Wall and flow", "", ""),
+        ("max_inner_wall_temperature_K", "Max inner-wall temperature",
+         format_value(r.max_inner_wall_temperature_K, "temperature", system), at(r.max_inner_wall_position_m)),
+        ("min_inner_wall_temperature_K", "Min inner-wall temperature",
+         format_value(r.min_inner_wall_temperature_K, "temperature", system), at(r.min_inner_wall_position_m)),
+        ("max_outer_surface_temperature_K", "Max outer-surface temperature",
+         format_value(r.max_outer_surface_temperature_K, "temperature", system), at(r.max_outer_surface_position_m)),
+        ("velocity_range", "Velocity", _range(*r.velocity_range_m_per_s, "velocity", system), "min – max"),
+        ("reynolds_range", "Reynolds number", _range(*r.reynolds_range, "dimensionless", system), "min – max"),
+        ("residence_time_s", "Residence time", format_value(r.residence_time_s, "time", system), "inlet to outlet"),
+        ("mass_flow_kg_per_s", "Mass flow", format_value(r.mass_flow_kg_per_s, "mass_flow", system), ""),
+    ]
+    return rows
+
+
+class KeyFiguresPanel(QWidget):
+    """``KeyFiguresPanel(doc)``: a table of headline results; observes the Document.
+
+    Public: ``table`` (QTableWidget), :meth:`value_text` (key -> displayed value text).
+    """
+
+    def __init__(self, doc, parent=None):
+        super().__init__(parent)
+        self.doc = doc
+        self.setObjectName("KeyFigures")
+        self.setWindowTitle("Key Figures")
+        self._result = getattr(doc, "result", None)
+        self._stale = False
+        self._row_of: dict[str, int] = {}
+
+        self.note = QLabel("")
+        self.note.setWordWrap(True)
+        self.note.setStyleSheet(f"color: {style.INK_MUTED}; padding: 3px 6px;")
+
+        self.table = QTableWidget(0, 3, self)
+        self.table.setHorizontalHeaderLabels(["Figure", "Value", "Where / note"])
+        self.table.verticalHeader().hide()
+        self.table.setEditTriggers(QAbstractItemView.NoEditTriggers)
+        self.table.setSelectionBehavior(QAbstractItemView.SelectRows)
+        self.table.setShowGrid(False)
+        self.table.setAlternatingRowColors(False)
+        self.table.setWordWrap(False)
+        h = self.table.horizontalHeader()
+        h.setSectionResizeMode(0, QHeaderView.ResizeToContents)
+        h.setSectionResizeMode(1, QHeaderView.ResizeToContents)
+        h.setSectionResizeMode(2, QHeaderView.Stretch)
+        self.table.verticalHeader().setDefaultSectionSize(22)
+
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(0, 0, 0, 0)
+        lay.setSpacing(0)
+        lay.addWidget(self.note)
+        lay.addWidget(self.table, 1)
+
+        doc.result_ready.connect(self._on_result)
+        doc.solve_failed.connect(self._on_failed)
+        doc.units_changed.connect(lambda _s: self.refresh())
+        doc.project_replaced.connect(self._on_replaced)
+        doc.current_alternative_changed.connect(lambda _i: self._on_replaced())
+        self.refresh()
+
+    def _on_result(self, result) -> None:
+        self._result = result
+        self._stale = False
+        self.refresh()
+
+    def _on_failed(self, message: str) -> None:
+        self._stale = True
+        self.refresh()
+
+    def _on_replaced(self) -> None:
+        self._result = getattr(self.doc, "result", None)
+        self._stale = False
+        self.refresh()
+
+    def refresh(self) -> None:
+        res = self._result
+        if res is None:
+            self.table.setRowCount(0)
+            self._row_of = {}
+            self.note.setText("Key figures appear once the line is solved.")
+            return
+        system = self.doc.unit_system
+        note = f"{res.name} · {res.fluid_label} · {res.cells} cells"
+        if self._stale:
+            note = "Stale: the last edit could not be solved; these figures are from the previous result. " + note
+        self.note.setText(note)
+        self.note.setStyleSheet(
+            f"color: {style.INK if self._stale else style.INK_MUTED}; padding: 3px 6px;"
+            + ("background: #FCF0D8;" if self._stale else "")
+        )
+        rows = key_figure_rows(res, system)
+        self.table.setRowCount(len(rows))
+        self._row_of = {}
+        heading_font = QFont(self.table.font())
+        heading_font.setBold(True)
+        for i, (key, text, value, remark) in enumerate(rows):
+            a, b, c = QTableWidgetItem(text), QTableWidgetItem(value), QTableWidgetItem(remark)
+            if key:  # a narrow dock elides: the whole row stays readable in the tooltip
+                tip = f"{text.strip()}: {value}" + (f" ({remark})" if remark else "")
+                for it in (a, b, c):
+                    it.setToolTip(tip)
+            if not key:
+                a.setFont(heading_font)
+                a.setForeground(QBrush(style.qcolor(style.SELECTION)))
+                for it in (a, b, c):
+                    it.setBackground(QBrush(style.qcolor(style.CANVAS_BG)))
+            else:
+                self._row_of[key] = i
+                b.setTextAlignment(Qt.AlignRight | Qt.AlignVCenter)
+                c.setForeground(QBrush(style.qcolor(style.INK_MUTED)))
+            self.table.setItem(i, 0, a)
+            self.table.setItem(i, 1, b)
+            self.table.setItem(i, 2, c)
+
+    def value_text(self, key: str) -> str:
+        """The displayed value of a figure, e.g. ``value_text('outlet_temperature_K') -> '71.3 °C'``."""
+        return self.table.item(self._row_of[key], 1).text()

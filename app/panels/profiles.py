@@ -1,0 +1,388 @@
+"""Profiles: temperatures and pressure along the line (pyqtgraph), with a hover readout.
+
+Two stacked plots share the position axis: bulk, inner-wall and outer-surface temperature
+(saturation temperature dashed where the fluid has one), and pressure. Segment boundaries are
+vertical lines named after the segment that starts there; the alternative's limits are dashed
+horizontal lines. Curves are created once and updated with ``setData``; arrays are converted
+to the display unit system on the way in. When a solve fails the last curves stay and a note
+says they are stale.
+"""
+
+from __future__ import annotations
+
+import math
+import numpy as np
+import pyqtgraph as pg
+from PySide6.QtCore import Qt
+from PySide6.QtGui import QFontMetrics
+from PySide6.QtWidgets import QLabel, QSizePolicy, QVBoxLayout, QWidget
+
+from app import style
+from app.units import format_value, from_display, label as unit_label, to_display
+
+# curve key -> (legend name, Profile attribute, line style, width)
+TEMPERATURE_CURVES: dict[str, tuple[str, str, str, float]] = {
+    "bulk": ("Bulk", "bulk_temperature_K", "solid", 2.6),
+    "inner_wall": ("Inner wall", "inner_wall_temperature_K", "solid", 1.8),
+    "outer_surface": ("Outer surface", "outer_surface_temperature_K", "dot", 2.0),
+    "saturation": ("Saturation", "saturation_temperature_K", "dash", 1.6),
+}
+
+
+def _display(values, quantity: str, system: str) -> np.ndarray:
+    return to_display(np.asarray(values, dtype=float), quantity, system)
+
+
+class ProfilesPanel(QWidget):
+    """``ProfilesPanel(doc)``: plots of the current result; observes the Document.
+
+    Public for tests and other panels: ``curves`` (dict of PlotDataItem: bulk, inner_wall,
+    outer_surface, saturation, pressure), ``temperature_plot``, ``pressure_plot``,
+    ``readout`` (QLabel), ``stale_note`` (QLabel), ``marker_lines``, ``limit_lines``,
+    :meth:`readout_at` (x_m -> text).
+    """
+
+    def __init__(self, doc, parent=None):
+        super().__init__(parent)
+        self.doc = doc
+        self.setObjectName("Profiles")
+        self.setWindowTitle("Profiles")
+        self._result = None  # the result on screen (may be stale)
+        self._boundaries: list[tuple[pg.InfiniteLine, pg.InfiniteLine]] = []
+        self._hover_x_m: float = math.nan
+        self._boundary_names: list[tuple[float, float, str]] = []
+
+        self.stale_note = QLabel("")
+        self.stale_note.setWordWrap(True)
+        self.stale_note.setStyleSheet(
+            f"background: #FCF0D8; color: {style.INK}; border: 1px solid {style.OKABE_ITO['orange']};"
+            "border-radius: 4px; padding: 4px 8px;"
+        )
+        self.stale_note.hide()
+
+        self.graphics = pg.GraphicsLayoutWidget()
+        self.graphics.setBackground(style.PANEL_BG)
+        self.graphics.ci.setContentsMargins(4, 4, 8, 4)
+        self.graphics.ci.setSpacing(2)
+        # a legend row of its own above the plots, so it never hides a curve
+        self.legend = pg.LegendItem(colCount=6, labelTextColor=style.INK, labelTextSize="9pt",
+                                    horSpacing=18, verSpacing=0)
+        self.graphics.addItem(self.legend, row=0, col=0)
+        self.legend.setMaximumWidth(620)
+        self.graphics.ci.layout.setRowFixedHeight(0, 24)
+        self.temperature_plot: pg.PlotItem = self.graphics.addPlot(row=1, col=0)
+        self.pressure_plot: pg.PlotItem = self.graphics.addPlot(row=2, col=0)
+        self.graphics.ci.layout.setRowStretchFactor(1, 3)
+        self.graphics.ci.layout.setRowStretchFactor(2, 2)
+        self.pressure_plot.setXLink(self.temperature_plot)
+        for plot in (self.temperature_plot, self.pressure_plot):
+            plot.showGrid(x=True, y=True, alpha=0.18)
+            plot.setMenuEnabled(True)
+            plot.hideButtons()
+            for name in ("left", "bottom"):
+                ax = plot.getAxis(name)
+                ax.setPen(pg.mkPen(style.INK_MUTED))
+                ax.setTextPen(pg.mkPen(style.INK))
+                ax.enableAutoSIPrefix(False)
+            plot.getAxis("left").setWidth(64)
+        self.temperature_plot.getAxis("bottom").setStyle(showValues=False)
+        # segment names along the top, centred on each segment (set in _layout_boundary_labels)
+        self.temperature_plot.showAxis("top")
+        self.top_axis = self.temperature_plot.getAxis("top")
+        self.top_axis.setPen(pg.mkPen(style.GRID))
+        self.top_axis.setTextPen(pg.mkPen(style.INK_MUTED))
+        self.top_axis.setStyle(tickLength=0, autoExpandTextSpace=True, hideOverlappingLabels=False)
+        self.top_axis.setGrid(False)
+        self.top_axis.setHeight(22)
+
+        self.curves: dict[str, pg.PlotDataItem] = {}
+        for key, (name, _attr, line, width) in TEMPERATURE_CURVES.items():
+            curve = pg.PlotDataItem([], [], pen=style.curve_pen(key, width, line), name=name, antialias=True)
+            # saturation can sit far from the other curves: show it where in range, never squash the view
+            self.temperature_plot.addItem(curve, ignoreBounds=(key == "saturation"))
+            self.curves[key] = curve
+        self.curves["pressure"] = self.pressure_plot.plot(
+            [], [], pen=style.curve_pen("pressure", 2.2), name="Pressure", antialias=True
+        )
+        for key, curve in self.curves.items():
+            self.legend.addItem(curve, curve.name())
+        # an invisible curve through the limits so auto-range keeps them in view
+        self._limit_extent = pg.PlotCurveItem([], [], pen=pg.mkPen(0, 0, 0, 0))
+        self.temperature_plot.addItem(self._limit_extent)
+
+        self.limit_lines: dict[str, pg.InfiniteLine] = {}
+        for key, colour in (("max_wall", style.CURVE_COLOURS["inner_wall"]), ("min_bulk", style.CURVE_COLOURS["bulk"])):
+            line = pg.InfiniteLine(
+                angle=0,
+                movable=False,
+                pen=pg.mkPen(colour, width=1.3, style=Qt.DashLine),
+                label="",
+                labelOpts={"position": 0.985, "color": colour, "fill": (255, 255, 255, 210), "anchors": [(1, 1), (1, 1)]},
+            )
+            line.hide()
+            self.temperature_plot.addItem(line, ignoreBounds=True)
+            self.limit_lines[key] = line
+
+        cursor_pen = pg.mkPen(style.CURVE_COLOURS["cursor"], width=1, style=Qt.DotLine)
+        self.cursor_lines = [pg.InfiniteLine(angle=90, movable=False, pen=cursor_pen) for _ in range(2)]
+        marker_pen = pg.mkPen(style.CURVE_COLOURS["marker"], width=2)
+        self.marker_lines = [
+            pg.InfiniteLine(
+                angle=90,
+                movable=False,
+                pen=marker_pen,
+                label="",
+                labelOpts={"position": 0.06, "color": style.CURVE_COLOURS["marker"], "fill": (255, 255, 255, 220),
+                           "anchors": [(0, 0), (0, 0)]},
+            ),
+            pg.InfiniteLine(angle=90, movable=False, pen=marker_pen),
+        ]
+        for plot, cursor, marker in zip((self.temperature_plot, self.pressure_plot), self.cursor_lines, self.marker_lines):
+            cursor.hide()
+            marker.hide()
+            plot.addItem(cursor, ignoreBounds=True)
+            plot.addItem(marker, ignoreBounds=True)
+            cursor.setZValue(20)
+            marker.setZValue(19)
+
+        self.readout = QLabel("")
+        self.readout.setTextFormat(Qt.RichText)
+        self.readout.setWordWrap(True)
+        self.readout.setSizePolicy(QSizePolicy.Expanding, QSizePolicy.Fixed)
+        self.readout.setMinimumHeight(36)
+        self.readout.setStyleSheet(
+            f"color: {style.INK}; background: {style.CANVAS_BG}; border-top: 1px solid {style.GRID}; padding: 3px 8px;"
+        )
+
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(0, 0, 0, 0)
+        lay.setSpacing(2)
+        lay.addWidget(self.stale_note)
+        lay.addWidget(self.graphics, 1)
+        lay.addWidget(self.readout)
+
+        self.graphics.scene().sigMouseMoved.connect(self._on_mouse_moved)
+        self.temperature_plot.vb.sigXRangeChanged.connect(self._layout_boundary_labels)
+        self.temperature_plot.vb.sigResized.connect(self._layout_boundary_labels)
+        doc.result_ready.connect(self._on_result)
+        doc.solve_failed.connect(self._on_failed)
+        doc.units_changed.connect(lambda _s: self.refresh())
+        doc.project_changed.connect(self._update_limits)
+        doc.project_replaced.connect(self._on_replaced)
+        doc.current_alternative_changed.connect(lambda _i: self._on_replaced())
+        doc.position_marked.connect(self.mark_position)
+        self._marked_x_m = math.nan
+        self._result = getattr(doc, "result", None)
+        self.refresh()
+
+    # ------------------------------------------------------------------ updates
+
+    def _on_result(self, result) -> None:
+        self._result = result
+        self.stale_note.hide()
+        self.refresh()
+
+    def _on_failed(self, message: str) -> None:
+        if self._result is None:
+            self.stale_note.setText(f"<b>No result.</b> The line could not be solved: {message}")
+        else:
+            self.stale_note.setText(
+                f"<b>Stale:</b> the last edit could not be solved, so the curves show the previous result. {message}"
+            )
+        self.stale_note.show()
+
+    def _on_replaced(self) -> None:
+        self._result = getattr(self.doc, "result", None)
+        self.stale_note.hide()
+        self.mark_position(math.nan)
+        self.refresh()
+
+    def refresh(self) -> None:
+        """Redraw everything from the result on screen in the current unit system."""
+        system = self.doc.unit_system
+        self.temperature_plot.setLabel("left", f"Temperature [{unit_label('temperature', system)}]", color=style.INK)
+        self.pressure_plot.setLabel("left", f"Pressure [{unit_label('pressure', system)}]", color=style.INK)
+        self.pressure_plot.setLabel("bottom", f"Position from inlet [{unit_label('length', system)}]", color=style.INK)
+        res = self._result
+        if res is None:
+            for c in self.curves.values():
+                c.setData([], [])
+            self._set_boundaries([], system)
+            self.readout.setText(f"<span style='color:{style.INK_MUTED}'>No result yet.</span>")
+        else:
+            prof = res.profile
+            x = _display(prof.x_m, "length", system)
+            for key, (_name, attr, _line, _w) in TEMPERATURE_CURVES.items():
+                y = _display(getattr(prof, attr), "temperature", system)
+                if key == "saturation":
+                    finite = np.isfinite(y)
+                    self.curves[key].setVisible(bool(finite.any()))
+                    self.curves[key].setData(x, y, connect="finite")
+                else:
+                    self.curves[key].setData(x, y)
+            self.curves["pressure"].setData(x, _display(prof.pressure_Pa, "pressure", system))
+            self._set_boundaries(res.segments, system)
+            if math.isfinite(self._hover_x_m):
+                self.show_cursor(self._hover_x_m)
+            else:
+                self.readout.setText(
+                    f"<span style='color:{style.INK_MUTED}'>Point at the plots to read the values at a position.</span>"
+                )
+        self._update_limits()
+        self.mark_position(self._marked_x_m)
+
+    def _set_boundaries(self, spans, system: str) -> None:
+        """Vertical lines at each segment start (named) and at the outlet; a pool of lines is reused."""
+        wanted = len(spans) + (1 if spans else 0)
+        while len(self._boundaries) < wanted:
+            pen = pg.mkPen(style.CURVE_COLOURS["boundary"], width=1)
+            top = pg.InfiniteLine(angle=90, movable=False, pen=pen)
+            bottom = pg.InfiniteLine(angle=90, movable=False, pen=pen)
+            self.temperature_plot.addItem(top, ignoreBounds=True)
+            self.pressure_plot.addItem(bottom, ignoreBounds=True)
+            self._boundaries.append((top, bottom))
+        for k, (top, bottom) in enumerate(self._boundaries):
+            if k < len(spans):
+                xd = float(to_display(spans[k].x_start_m, "length", system))
+                text = spans[k].name
+            elif k < wanted:
+                xd = float(to_display(spans[-1].x_end_m, "length", system))
+                text = ""
+            else:
+                top.hide()
+                bottom.hide()
+                continue
+            top.setValue(xd)
+            bottom.setValue(xd)
+            top.show()
+            bottom.show()
+        self._boundary_names = [(float(to_display(sp.x_start_m, "length", system)),
+                                 float(to_display(sp.x_end_m, "length", system)), sp.name) for sp in spans]
+        self._layout_boundary_labels()
+
+    def _layout_boundary_labels(self, *_args) -> None:
+        """Name each segment on the top axis, centred on its span, elided to the room it has."""
+        names = self._boundary_names
+        vb = self.temperature_plot.vb
+        (x0, x1), _ = vb.viewRange()
+        px_per_unit = vb.width() / (x1 - x0) if x1 > x0 and vb.width() > 0 else 0.0
+        fm = QFontMetrics(self.top_axis.style.get("tickFont") or self.font())
+        ticks = []
+        for start, end, name in names:
+            lo, hi = max(start, x0), min(end, x1)
+            if hi <= lo:
+                continue
+            room = int((hi - lo) * px_per_unit) - 10
+            text = fm.elidedText(name, Qt.ElideRight, room) if room > 28 else ""
+            if text and text not in ("…", "..."):
+                ticks.append(((lo + hi) / 2, text))
+        self.top_axis.setTicks([ticks, []])
+
+    def _update_limits(self) -> None:
+        system = self.doc.unit_system
+        try:
+            limits = self.doc.current_alternative.limits
+        except Exception:  # no project yet
+            limits = None
+        items = {
+            "max_wall": (getattr(limits, "max_inner_wall_temperature_K", None), "max inner wall"),
+            "min_bulk": (getattr(limits, "min_bulk_temperature_K", None), "min bulk"),
+        }
+        extent = []
+        for key, (value, text) in items.items():
+            line = self.limit_lines[key]
+            if value is None:
+                line.hide()
+                continue
+            yd = float(to_display(value, "temperature", system))
+            line.setValue(yd)
+            line.label.setFormat(f"{text} {format_value(value, 'temperature', system)}")
+            line.show()
+            extent.append(yd)
+        if extent and self._result is not None:
+            x0 = float(to_display(self._result.profile.x_m[0], "length", system))
+            self._limit_extent.setData([x0] * len(extent), extent)
+        else:
+            self._limit_extent.setData([], [])
+
+    # ------------------------------------------------------------------ position marker and hover
+
+    def mark_position(self, x_m: float) -> None:
+        """Show (or with NaN hide) the marker line at ``x_m`` on both plots."""
+        self._marked_x_m = float(x_m)
+        if not math.isfinite(self._marked_x_m):
+            for m in self.marker_lines:
+                m.hide()
+            return
+        system = self.doc.unit_system
+        xd = float(to_display(self._marked_x_m, "length", system))
+        for m in self.marker_lines:
+            m.setValue(xd)
+            m.show()
+        self.marker_lines[0].label.setFormat(f"▼ {format_value(self._marked_x_m, 'length', system)}")
+
+    def _on_mouse_moved(self, scene_pos) -> None:
+        if self._result is None:
+            return
+        for plot in (self.temperature_plot, self.pressure_plot):
+            if plot.sceneBoundingRect().contains(scene_pos):
+                xd = plot.vb.mapSceneToView(scene_pos).x()
+                x_m = float(from_display(xd, "length", self.doc.unit_system))
+                self.show_cursor(x_m)
+                return
+        for c in self.cursor_lines:
+            c.hide()
+
+    def show_cursor(self, x_m: float) -> None:
+        """Put the hover cursor at ``x_m`` and fill the readout (also used by tests)."""
+        self._hover_x_m = x_m
+        xd = float(to_display(x_m, "length", self.doc.unit_system))
+        for c in self.cursor_lines:
+            c.setValue(xd)
+            c.show()
+        self._show_readout(x_m)
+
+    def _show_readout(self, x_m: float) -> None:
+        self.readout.setText(self.readout_at(x_m))
+
+    def readout_at(self, x_m: float) -> str:
+        """Rich text with every profile value at the node nearest to ``x_m``."""
+        res = self._result
+        if res is None:
+            return ""
+        prof = res.profile
+        xs = np.asarray(prof.x_m, dtype=float)
+        if xs.size == 0:
+            return ""
+        x_m = min(max(x_m, xs[0]), xs[-1])
+        i = int(np.clip(np.searchsorted(xs, x_m), 0, xs.size - 1))
+        if i > 0 and abs(xs[i - 1] - x_m) <= abs(xs[i] - x_m):
+            i -= 1
+        system = self.doc.unit_system
+        seg_name = ""
+        for span in res.segments:
+            if span.node_start <= i <= span.node_end:
+                seg_name = span.name
+                if i < span.node_end:
+                    break
+
+        def sw(key: str) -> str:  # a coloured swatch tying the number to its curve
+            return f"<span style='color:{style.CURVE_COLOURS[key]}'>■</span>"
+
+        parts = [
+            f"<b>x = {format_value(xs[i], 'length', system)}</b>" + (f" ({seg_name})" if seg_name else ""),
+            f"{sw('bulk')} bulk {format_value(prof.bulk_temperature_K[i], 'temperature', system)}",
+            f"{sw('inner_wall')} inner wall {format_value(prof.inner_wall_temperature_K[i], 'temperature', system)}",
+            f"{sw('outer_surface')} outer surface {format_value(prof.outer_surface_temperature_K[i], 'temperature', system)}",
+        ]
+        tsat = float(prof.saturation_temperature_K[i])
+        if math.isfinite(tsat):
+            parts.append(f"{sw('saturation')} saturation {format_value(tsat, 'temperature', system)}")
+        parts += [
+            f"{sw('pressure')} pressure {format_value(prof.pressure_Pa[i], 'pressure', system)}",
+            f"Re {format_value(prof.reynolds[i], 'dimensionless', system, digits=3)}",
+            f"velocity {format_value(prof.velocity_m_per_s[i], 'velocity', system, digits=3)}",
+            f"h {format_value(prof.inside_coefficient_W_per_m2K[i], 'film_coefficient', system, digits=3)}",
+            f"heat flux {format_value(prof.heat_flux_W_per_m2[i], 'heat_flux', system, digits=3)}",
+        ]
+        return " &nbsp;·&nbsp; ".join(parts)
