@@ -44,7 +44,7 @@ from solver.model import (
     StillAir,
     Wind,
 )
-from solver.properties import fluid_model
+from solver.properties import PureFluidModel, fluid_model
 from solver.results import Check, PressureDropBreakdown, Profile, Result, SegmentSpan
 
 GRAVITY = 9.80665  # m/s², standard gravity (CGPM 1901)
@@ -61,6 +61,7 @@ ASSUMPTIONS = [
     "Heat input (tracing) enters at the outer surface of the pipe wall, under the insulation.",
     "With a jacket or fixed wall temperature, insulation layers play no part.",
     "Outer film in air at 1 atm; radiation to surroundings at the air temperature.",
+    "Friction heats the fluid (enthalpy includes flow work), so an adiabatic liquid line warms slightly.",
 ]
 
 
@@ -301,9 +302,23 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
     last_change = math.inf
     h_target = None
     dT_heat = None
+    strikes = 0
+    tsat_in = float(fluid.saturation_temperature(np.array([p_in]))[0])
+    liquid_feed = bool(math.isfinite(tsat_in) and t_in < tsat_in)
+    sat_possible = isinstance(fluid, PureFluidModel) and bool(
+        np.isfinite(fluid.saturation_temperature(np.array([p_in, max(p_in * 0.5, 2e3)]))).any())
     for iteration in range(max_iterations):
         # properties at the nodes; cell values are the means of their two nodes (second order)
-        pn = fluid.props(np.clip(T, t_lo, t_hi), p)
+        T_eval = np.clip(T, t_lo, t_hi)
+        if sat_possible:
+            # keep property look-ups on the feed's side of saturation while a pass overshoots
+            tsat_nodes = fluid.saturation_temperature(p)
+            ok = np.isfinite(tsat_nodes)
+            if liquid_feed:
+                T_eval = np.where(ok, np.minimum(T_eval, tsat_nodes - 0.05), T_eval)
+            else:
+                T_eval = np.where(ok, np.maximum(T_eval, tsat_nodes + 0.05), T_eval)
+        pn = fluid.props(T_eval, p)
         if h_target is not None:
             # temperature from (h, p): a Newton step on h(T, p) = h_target; the part of the temperature
             # change not explained by Q/(m cp) (pressure effect, cp curvature) feeds the recurrence
@@ -388,7 +403,18 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
             r_film = r_out_total[film_mask] - r_ins_film
             T_surface[film_mask] = t_inf[film_mask] + q_loss * r_film
         last_step = max(float(np.max(np.abs(T_new - T))), float(np.max(np.abs(p_new - p))) * 1e-5)
+        # a phase change or a state beyond the fluid data on two passes in a row is real, not a transient
+        problem = _phase_or_range_problem(fluid, T_new, p_new, t_lo, t_hi, liquid_feed)
+        if problem is not None:
+            strikes += 1
+            if strikes >= 2:
+                i_bad, message = problem
+                seg_bad = setups[int(seg_of_cell[min(i_bad, n - 1)])]
+                raise SolverError(message, alternative=alt.name, segment=seg_bad.name, x_m=float(x_node[i_bad]))
+        else:
+            strikes = 0
         T = np.clip(T_new, t_lo - 50.0, t_hi + 50.0)
+        T_surface = np.maximum(T_surface, 1.0)
         p = p_new
         h_target = h_nodes
 
@@ -682,6 +708,40 @@ def prof_spans(setups, prof):
         spans.append((offset, offset + s.n_cells))
         offset += s.n_cells + 1
     return spans
+
+
+def _phase_or_range_problem(fluid, T, p, t_lo, t_hi, liquid_feed):
+    """The first node where the bulk leaves single-phase flow or the fluid data, with a plain message."""
+    c = lambda t: f"{t - 273.15:.1f} °C"  # noqa: E731
+    # only real saturation physics stops the march; a user table's fixed boiling point is a check
+    tsat = fluid.saturation_temperature(p) if isinstance(fluid, PureFluidModel) else np.full(p.shape, np.nan)
+    finite = np.isfinite(tsat)
+    if finite.any():
+        if liquid_feed:
+            bad = finite & (T >= tsat)
+            if bad.any():
+                i = int(np.argmax(bad))
+                return i, (f"the liquid reaches boiling ({c(tsat[i])} at {p[i] / 1e5:.3g} bar(a)): two-phase flow is "
+                           "outside Calorun's scope. Raise the pressure, or lower the heat input or wall temperature.")
+        else:
+            bad = finite & (T <= tsat)
+            if bad.any():
+                i = int(np.argmax(bad))
+                return i, (f"the gas cools to its condensation temperature ({c(tsat[i])} at {p[i] / 1e5:.3g} bar(a)): "
+                           "two-phase flow is outside Calorun's scope. Insulate or heat the line.")
+    low = T < t_lo
+    if low.any():
+        i = int(np.argmax(low))
+        t_freeze = fluid.freezing_temperature(float(p[i]))
+        if t_freeze is not None and math.isfinite(t_freeze) and abs(t_freeze - t_lo) < 0.5:
+            return i, (f"the bulk cools to the freezing point of {fluid.label} ({c(t_freeze)}): the line freezes. "
+                       "Insulate, trace, or raise the flow or the inlet temperature.")
+        return i, f"the bulk cools below the range of the fluid data ({c(t_lo)} for {fluid.label})."
+    high = T > t_hi
+    if high.any():
+        i = int(np.argmax(high))
+        return i, f"the bulk heats above the range of the fluid data ({c(t_hi)} for {fluid.label})."
+    return None
 
 
 def _check_state_in_range(fluid, t, p, alt_name):

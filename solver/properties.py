@@ -410,6 +410,8 @@ class PureFluidModel(FluidModel):
         self._side = None
         self._filled = np.zeros((-(-self._nT // _CHUNK_T), -(-self._nP // _CHUNK_P)), dtype=bool)
         self._sat = None
+        self._sat_arr = None  # saturation temperature at each pressure knot (NaN where none)
+        self._sat_known = None
         nbp = self._tsat_scalar(101325.0)
         self.compressible = bool((nbp if math.isfinite(nbp) else self.T_triple) < 250.0)
 
@@ -645,11 +647,17 @@ class PureFluidModel(FluidModel):
         nearly exact)."""
         p = np.asarray(p, dtype=float)
         kk, wp = self._p_index(np.clip(np.where(np.isfinite(p) & (p > 0), p, 1.0), self.p_min_Pa, self.p_max_Pa))
-        for k0 in np.unique(kk):
-            for k in (k0, k0 + 1):
-                self._sat_T_at_knot(int(k), math.exp(self._lnp0 + k * self._dlnp))
-        t0 = np.array([self._sat[int(k)] for k in kk.ravel()]).reshape(kk.shape)
-        t1 = np.array([self._sat[int(k) + 1] for k in kk.ravel()]).reshape(kk.shape)
+        if self._sat_arr is None:
+            self._sat_arr = np.full(self._nP + 1, np.nan)
+            self._sat_known = np.zeros(self._nP + 1, dtype=bool)
+        k_lo, k_hi = int(kk.min(initial=0)), int(kk.max(initial=0)) + 1
+        if not self._sat_known[k_lo:k_hi + 1].all():
+            for k in range(k_lo, k_hi + 1):
+                if not self._sat_known[k]:
+                    self._sat_arr[k] = self._sat_T_at_knot(k, math.exp(self._lnp0 + k * self._dlnp))
+                    self._sat_known[k] = True
+        t0 = self._sat_arr[kk]
+        t1 = self._sat_arr[kk + 1]
         ts = 1.0 / ((1.0 - wp) / t0 + wp / t1)
         # a pressure interval holding the critical or triple point: direct
         edge = np.isfinite(p) & (np.isnan(t0) | np.isnan(t1)) & (p > 0)

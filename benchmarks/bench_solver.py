@@ -1,0 +1,163 @@
+"""Solver speed and accuracy (DESIGN §6). Run by hand; prints figures, asserts nothing.
+
+    .venv/bin/python benchmarks/bench_solver.py [--repeat 50]
+
+Cases
+1. One alternative, 10 segments, about 2,000 cells, water heated by tracing and
+   losing heat to wind (properties vary along the line): median solve time.
+2. The same line marched by a straightforward per-cell loop that calls CoolProp
+   for every property of every cell (explicit Euler, same correlations): its time,
+   and both outlet temperatures against a fine-grid reference of our solver.
+3. Grid independence: doubling the cells, change of outlet temperature.
+4. Start-up: `calorun solve` of a sample project in a fresh interpreter.
+"""
+
+from __future__ import annotations
+
+import argparse
+import math
+import statistics
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parent.parent
+sys.path.insert(0, str(ROOT))
+
+import numpy as np  # noqa: E402
+
+from solver import correlations  # noqa: E402
+from solver.catalogue import resolve_pipe  # noqa: E402
+from solver.march import solve  # noqa: E402
+from solver.model import Alternative, Feed, Layer, Pipe, PureFluid, Segment, Wind  # noqa: E402
+
+
+def line(n_segments: int = 10) -> Alternative:
+    segs = []
+    for i in range(n_segments):
+        segs.append(Segment(
+            name=f"S{i + 1}", length_m=40.0, pipe=Pipe(nps="2", schedule="40"),
+            heat_input_W_per_m=900.0 if i % 2 == 0 else 0.0,
+            insulation=[Layer(thickness_m=0.03, conductivity_W_per_mK=0.04)],
+            surroundings=Wind(temperature_K=268.15, wind_speed_m_per_s=5.0),
+        ))
+    return Alternative(name="bench", fluid=PureFluid(name="Water"),
+                       feed=Feed(inlet_temperature_K=293.15, inlet_pressure_Pa=6e5, mass_flow_kg_per_s=0.5),
+                       segments=segs)
+
+
+def per_cell_loop(alt: Alternative, cells_per_segment: int) -> float:
+    """The straightforward way: explicit Euler, CoolProp PropsSI for each property of each cell,
+    scalar correlations, outer film from a fixed-point on the surface temperature per cell."""
+    import CoolProp.CoolProp as CP
+
+    m = alt.feed.mass_flow_kg_per_s
+    T = alt.feed.inlet_temperature_K
+    p = alt.feed.inlet_pressure_Pa
+    x = 0.0
+    for seg in alt.segments:
+        rp = resolve_pipe(seg.pipe)
+        D = rp.inner_diameter_m
+        A = math.pi * D * D / 4
+        r_wall = float(correlations.cylinder_wall_resistance(D, rp.outer_diameter_m, rp.wall_conductivity_W_per_mK))
+        d_out = rp.outer_diameter_m + 2 * sum(layer.thickness_m for layer in seg.insulation)
+        r_ins = 0.0
+        d = rp.outer_diameter_m
+        for layer in seg.insulation:
+            r_ins += float(correlations.cylinder_wall_resistance(d, d + 2 * layer.thickness_m, layer.conductivity_W_per_mK))
+            d += 2 * layer.thickness_m
+        sur = seg.surroundings
+        dx = seg.length_m / cells_per_segment
+        t_surf = 0.5 * (T + sur.temperature_K)
+        for _ in range(cells_per_segment):
+            rho = CP.PropsSI("D", "T", T, "P", p, "Water")
+            cp = CP.PropsSI("C", "T", T, "P", p, "Water")
+            mu = CP.PropsSI("V", "T", T, "P", p, "Water")
+            k = CP.PropsSI("L", "T", T, "P", p, "Water")
+            Re = 4 * m / (math.pi * D * mu)
+            Pr = cp * mu / k
+            f = float(correlations.friction_factor(Re, rp.roughness_m / D))
+            Nu = float(correlations.nusselt_inside(Re, Pr, f, (x + dx / 2) / D, "q", relative_roughness=rp.roughness_m / D))
+            h_in = Nu * k / D
+            r_a = 1 / (h_in * math.pi * D) + r_wall
+            t_film = 0.5 * (t_surf + sur.temperature_K)
+            rho_a = CP.PropsSI("D", "T", t_film, "P", 101325.0, "Air")
+            mu_a = CP.PropsSI("V", "T", t_film, "P", 101325.0, "Air")
+            k_a = CP.PropsSI("L", "T", t_film, "P", 101325.0, "Air")
+            cp_a = CP.PropsSI("C", "T", t_film, "P", 101325.0, "Air")
+            nu_a = mu_a / rho_a
+            al_a = k_a / (rho_a * cp_a)
+            ra = 9.80665 / t_film * max(abs(t_surf - sur.temperature_K), 1e-3) * d_out**3 / (nu_a * al_a)
+            nu_n = float(correlations.nusselt_churchill_chu_cylinder(ra, nu_a / al_a))
+            nu_f = float(correlations.nusselt_churchill_bernstein(sur.wind_speed_m_per_s * d_out / nu_a, nu_a / al_a))
+            h_o = float(correlations.nusselt_mixed(nu_f, nu_n)) * k_a / d_out + float(
+                correlations.radiation_coefficient(t_surf, sur.temperature_K, sur.emissivity))
+            r_o = r_ins + 1 / (h_o * math.pi * d_out)
+            u = 1 / (r_a + r_o)
+            q = seg.heat_input_W_per_m * (1 - r_a * u) + u * (sur.temperature_K - T)
+            t_surf = sur.temperature_K + (seg.heat_input_W_per_m - q) * (r_o - r_ins)
+            T += q * dx / (m * cp)
+            p -= f * dx / D * 0.5 * rho * (m / (rho * A)) ** 2
+            x += dx
+    return T
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--repeat", type=int, default=50)
+    args = ap.parse_args()
+
+    alt = line()
+    cps = 200  # 10 segments x 200 = 2,000 cells
+    solve(alt, cells_per_segment=cps)  # warm the property tables once
+    times = []
+    for _ in range(args.repeat):
+        t0 = time.perf_counter()
+        r = solve(alt, cells_per_segment=cps)
+        times.append(time.perf_counter() - t0)
+    ours_ms = statistics.median(times) * 1e3
+    auto = solve(alt)
+    t0 = time.perf_counter()
+    for _ in range(args.repeat):
+        solve(alt)
+    auto_ms = (time.perf_counter() - t0) / args.repeat * 1e3
+
+    ref = solve(alt, cells_per_segment=3200).outlet_temperature_K
+    t0 = time.perf_counter()
+    loop_T = per_cell_loop(alt, cps)
+    loop_ms = (time.perf_counter() - t0) * 1e3
+    fine_loop_cells = 2000
+    t0 = time.perf_counter()
+    loop_T_fine = per_cell_loop(alt, fine_loop_cells)
+    loop_fine_ms = (time.perf_counter() - t0) * 1e3
+
+    doubled = solve(alt, cells_per_segment=2 * cps).outlet_temperature_K
+    auto2 = solve(alt, refine=2.0).outlet_temperature_K
+
+    print("Calorun solver benchmark (10 segments, water, tracing + wind)")
+    print(f"  cells                                   {r.cells}")
+    print(f"  median solve, 2,000 cells               {ours_ms:8.2f} ms   (target <= 5 ms)")
+    print(f"  mean solve, automatic cells ({auto.cells:5d})     {auto_ms:8.2f} ms")
+    print(f"  per-cell CoolProp loop, 2,000 cells     {loop_ms:8.1f} ms   -> ratio {loop_ms / ours_ms:6.0f}x (target >= 50x)")
+    print(f"  per-cell loop, {10 * fine_loop_cells:,} cells            {loop_fine_ms:8.1f} ms   -> ratio {loop_fine_ms / ours_ms:6.0f}x")
+    print(f"  outlet T, fine-grid reference (32,000)  {ref - 273.15:10.5f} °C")
+    print(f"  outlet T, ours at 2,000 cells           {r.outlet_temperature_K - 273.15:10.5f} °C  (diff {r.outlet_temperature_K - ref:+.2e} K, target |diff| <= 0.05 K)")
+    print(f"  outlet T, per-cell loop at 2,000 cells  {loop_T - 273.15:10.5f} °C  (diff {loop_T - ref:+.2e} K)")
+    print(f"  outlet T, per-cell loop at 20,000 cells {loop_T_fine - 273.15:10.5f} °C  (diff {loop_T_fine - ref:+.2e} K)")
+    print(f"  grid: 2,000 -> 4,000 cells              {doubled - r.outlet_temperature_K:+.2e} K  (target |change| < 0.01 K)")
+    print(f"  grid: automatic -> refine 2             {auto2 - auto.outlet_temperature_K:+.2e} K")
+    print(f"  energy-balance residual                 {r.energy_balance_residual_W:+.2e} W of duty {r.duty_W:.1f} W")
+
+    sample = ROOT / "sample_projects" / "glycol_return.json"
+    starts = []
+    for _ in range(3):
+        t0 = time.perf_counter()
+        subprocess.run([sys.executable, "-m", "app.cli", "solve", str(sample)], cwd=ROOT, check=True,
+                       stdout=subprocess.DEVNULL)
+        starts.append(time.perf_counter() - t0)
+    print(f"  `calorun solve` of a sample, start to exit (median of 3)  {statistics.median(starts):.2f} s  (target about 1 s)")
+
+
+if __name__ == "__main__":
+    main()

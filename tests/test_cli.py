@@ -1,0 +1,258 @@
+"""The headless command: `calorun solve` / `calorun schema` (issue 2 item 5).
+
+Run as a subprocess with the repository root as working directory and on PYTHONPATH, so the
+tests work from a clean checkout without installing the package. Expected shapes and exit
+codes are those written in issue 2 item 5; energy closure is the first law.
+"""
+
+from __future__ import annotations
+
+import csv
+import json
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from solver.model import (
+    Alternative,
+    Feed,
+    Layer,
+    Pipe,
+    Project,
+    PureFluid,
+    Segment,
+    StillAir,
+    TableFluid,
+    TableRow,
+    Wind,
+)
+from solver.project_io import dump_project, save_project
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def run_cli(*args: str, timeout: float = 60.0) -> subprocess.CompletedProcess:
+    env = dict(os.environ)
+    env["PYTHONPATH"] = str(ROOT) + (os.pathsep + env["PYTHONPATH"] if env.get("PYTHONPATH") else "")
+    env.pop("QT_QPA_PLATFORM", None)  # the headless commands must not need a display at all
+    return subprocess.run([sys.executable, "-m", "app.cli", *args], cwd=ROOT, env=env, capture_output=True,
+                          text=True, timeout=timeout)
+
+
+def two_alternative_project() -> Project:
+    product = TableFluid(name="Syrup", rows=[
+        TableRow(temperature_K=290.0, density_kg_per_m3=1300.0, specific_heat_J_per_kgK=2600.0,
+                 viscosity_Pa_s=1.2, conductivity_W_per_mK=0.4),
+        TableRow(temperature_K=360.0, density_kg_per_m3=1270.0, specific_heat_J_per_kgK=2800.0,
+                 viscosity_Pa_s=0.08, conductivity_W_per_mK=0.42),
+    ])
+    wool = [Layer(thickness_m=0.04, conductivity_W_per_mK=0.04)]
+    return Project(name="Syrup transfer", alternatives=[
+        Alternative(name="Traced", fluid=product,
+                    feed=Feed(inlet_temperature_K=330.0, inlet_pressure_Pa=5e5, mass_flow_kg_per_s=0.4),
+                    segments=[Segment(name="Rack", length_m=60.0, pipe=Pipe(nps="2", schedule="40"),
+                                      heat_input_W_per_m=20.0, insulation=wool,
+                                      surroundings=StillAir(temperature_K=278.15)),
+                              Segment(name="Yard", length_m=25.0, pipe=Pipe(nps="2", schedule="40"),
+                                      insulation=wool, surroundings=Wind(temperature_K=273.15))]),
+        Alternative(name="Hot water bare", fluid=PureFluid(name="Water"),
+                    feed=Feed(inlet_temperature_K=353.15, inlet_pressure_Pa=4e5, mass_flow_kg_per_s=1.0),
+                    segments=[Segment(name="Bare", length_m=40.0, pipe=Pipe(nps="2", schedule="40"),
+                                      surroundings=StillAir(temperature_K=293.15))]),
+    ])
+
+
+@pytest.fixture(scope="module")
+def project_file(tmp_path_factory) -> Path:
+    return save_project(two_alternative_project(), tmp_path_factory.mktemp("cli") / "syrup line.json")
+
+
+@pytest.fixture(scope="module")
+def solved_json(project_file):
+    proc = run_cli("solve", str(project_file), "--json")
+    assert proc.returncode == 0, proc.stderr
+    return json.loads(proc.stdout)
+
+
+# --------------------------------------------------------------------------- solve
+
+
+REQUIRED_KEYS = {  # issue 2 item 5, verbatim
+    "name", "outlet_temperature_K", "outlet_pressure_Pa", "pressure_drop_Pa", "duty_W", "heat_input_W",
+    "heat_loss_W", "energy_balance_residual_W", "max_inner_wall_temperature_K", "min_inner_wall_temperature_K",
+    "max_outer_surface_temperature_K", "profile", "checks",
+}
+PROFILE_KEYS = {"x_m", "bulk_temperature_K", "inner_wall_temperature_K", "outer_surface_temperature_K", "pressure_Pa"}
+CHECK_KEYS = {"severity", "code", "message", "segment", "x_m"}
+
+
+def test_solve_json_shape(solved_json):
+    data = solved_json
+    assert [a["name"] for a in data["alternatives"]] == ["Traced", "Hot water bare"]
+    for alt in data["alternatives"]:
+        assert REQUIRED_KEYS <= set(alt), REQUIRED_KEYS - set(alt)
+        for key in REQUIRED_KEYS - {"name", "profile", "checks"}:
+            assert isinstance(alt[key], float), key
+        assert PROFILE_KEYS <= set(alt["profile"])
+        n = len(alt["profile"]["x_m"])
+        assert n > 10
+        for key in PROFILE_KEYS:
+            assert len(alt["profile"][key]) == n and all(isinstance(v, float) for v in alt["profile"][key]), key
+        assert isinstance(alt["checks"], list)
+        for c in alt["checks"]:
+            assert set(c) == CHECK_KEYS
+            assert c["severity"] in ("info", "warning", "danger")
+            assert isinstance(c["segment"], int) and isinstance(c["x_m"], float)
+        # first law: duty = heat input − heat loss; residual closes
+        assert alt["duty_W"] == pytest.approx(alt["heat_input_W"] - alt["heat_loss_W"], abs=1e-6)
+        assert abs(alt["energy_balance_residual_W"]) < 1e-6 * max(abs(alt["duty_W"]), alt["heat_input_W"], 1.0)
+        assert alt["pressure_drop_Pa"] == pytest.approx(alt["profile"]["pressure_Pa"][0] - alt["outlet_pressure_Pa"])
+        assert alt["outlet_temperature_K"] == alt["profile"]["bulk_temperature_K"][-1]
+    traced = data["alternatives"][0]
+    assert traced["heat_input_W"] == pytest.approx(20.0 * 60.0)  # q' L (closed form)
+    # a bare 80 °C water pipe in a 20 °C room is hot enough to burn (above ~60 °C, common practice)
+    bare = data["alternatives"][1]
+    assert "HOT_SURFACE" in {c["code"] for c in bare["checks"]}
+
+
+def test_solve_json_matches_library(solved_json, project_file):
+    from solver import solve
+    from solver.project_io import load_project
+
+    project = load_project(project_file)
+    for alt, out in zip(project.alternatives, solved_json["alternatives"]):
+        r = solve(alt)
+        assert out["outlet_temperature_K"] == pytest.approx(r.outlet_temperature_K, abs=1e-9)
+        assert out["duty_W"] == pytest.approx(r.duty_W, rel=1e-12, abs=1e-9)
+
+
+def test_solve_table(project_file):
+    proc = run_cli("solve", str(project_file))
+    assert proc.returncode == 0, proc.stderr
+    out = proc.stdout
+    for name in ("Traced", "Hot water bare"):
+        assert name in out
+    for label in ("Outlet temperature", "Pressure drop", "Heat input", "Heat loss", "Energy-balance residual"):
+        assert label in out
+    assert "°C" in out and ("Pa" in out or "bar" in out) and " W" in out
+
+
+def test_solve_csv(tmp_path, project_file):
+    out_dir = tmp_path / "profiles"
+    proc = run_cli("solve", str(project_file), "--csv", str(out_dir))
+    assert proc.returncode == 0, proc.stderr
+    files = sorted(out_dir.glob("*.csv"))
+    assert len(files) == 2
+    for f in files:
+        text = f.read_text(encoding="utf-8-sig")
+        rows = [r for r in csv.reader(text.splitlines()) if r and not r[0].startswith("#")]
+        header_idx = next(i for i, r in enumerate(rows) if any("osition" in c for c in r))
+        data_rows = rows[header_idx + 1:]
+        assert len(data_rows) > 10
+        width = len(rows[header_idx])
+        assert all(len(r) == width for r in data_rows)
+        float(data_rows[-1][0])
+
+
+def test_alternative_selection(project_file):
+    proc = run_cli("solve", str(project_file), "--json", "--alternative", "Hot water bare")
+    assert proc.returncode == 0, proc.stderr
+    assert [a["name"] for a in json.loads(proc.stdout)["alternatives"]] == ["Hot water bare"]
+    proc = run_cli("solve", str(project_file), "--alternative", "Nope")
+    assert proc.returncode == 2 and "Nope" in proc.stderr
+
+
+# --------------------------------------------------------------------------- exit codes
+
+
+def test_invalid_project_exit_2(tmp_path):
+    data = json.loads(dump_project(two_alternative_project()))
+    data["alternatives"][1]["segments"][0]["length_m"] = -2
+    data["alternatives"][0]["feed"]["mass_flow_kg_per_s"] = "lots"
+    path = tmp_path / "bad.json"
+    path.write_text(json.dumps(data), encoding="utf-8")
+    proc = run_cli("solve", str(path))
+    assert proc.returncode == 2
+    assert "alternatives[1].segments[0].length_m" in proc.stderr and "-2" in proc.stderr
+    assert "alternatives[0].feed.mass_flow_kg_per_s" in proc.stderr and "lots" in proc.stderr
+    assert "Traceback" not in proc.stderr
+    assert proc.stdout == ""
+
+
+@pytest.mark.parametrize("content", ["{not json", "[]", '{"format": "calorun-project", "schema_version": 7}'])
+def test_unreadable_projects_exit_2(tmp_path, content):
+    path = tmp_path / "broken.json"
+    path.write_text(content, encoding="utf-8")
+    proc = run_cli("solve", str(path), "--json")
+    assert proc.returncode == 2, proc.stderr
+    assert "Traceback" not in proc.stderr and proc.stderr.strip()
+
+
+def test_missing_file_exit_2(tmp_path):
+    proc = run_cli("solve", str(tmp_path / "absent.json"))
+    assert proc.returncode == 2 and "absent.json" in proc.stderr
+
+
+def test_solver_failure_exit_1(tmp_path):
+    project = Project(name="Impossible", alternatives=[
+        Alternative(name="Too much flow", fluid=PureFluid(name="Water"),
+                    feed=Feed(inlet_temperature_K=293.15, inlet_pressure_Pa=1.5e5, mass_flow_kg_per_s=5.0),
+                    segments=[Segment(name="Narrow", length_m=500.0, pipe=Pipe(nps="1", schedule="80"))]),
+    ])
+    path = save_project(project, tmp_path / "impossible.json")
+    proc = run_cli("solve", str(path))
+    assert proc.returncode == 1
+    assert "Too much flow" in proc.stderr and "Traceback" not in proc.stderr
+
+
+# --------------------------------------------------------------------------- schema
+
+
+def test_schema_is_json_schema():
+    proc = run_cli("schema")
+    assert proc.returncode == 0, proc.stderr
+    schema = json.loads(proc.stdout)
+    assert schema["type"] == "object"
+    assert {"format", "schema_version", "alternatives"} <= set(schema["properties"])
+    assert "alternatives" in schema.get("required", [])
+    defs = schema.get("$defs", {})
+    assert {"Alternative", "Segment", "Feed"} <= set(defs)
+    # the segment's length carries its unit in the key and the > 0 bound (issue 2 item 2)
+    assert defs["Segment"]["properties"]["length_m"]["exclusiveMinimum"] == 0
+
+
+# --------------------------------------------------------------------------- no Qt
+
+
+def test_solve_does_not_import_qt(project_file, tmp_path):
+    """`calorun solve` (table, --json, --csv) leaves Qt unimported (issue 2 item 5)."""
+    runs = [["--json"], ["--csv", str(tmp_path / "csv")], []]
+    code = (
+        "import sys, io, contextlib\n"
+        "from app.cli import main\n"
+        f"for extra in {runs!r}:\n"
+        "    with contextlib.redirect_stdout(io.StringIO()):\n"
+        f"        rc = main(['solve', {str(project_file)!r}, *extra])\n"
+        "    assert rc == 0, (extra, rc)\n"
+        "qt = sorted(m for m in sys.modules if m.split('.')[0] in ('PySide6', 'pyqtgraph', 'shiboken6'))\n"
+        "assert not qt, qt\n"
+        "print('NO-QT-OK')\n"
+    )
+    env = dict(os.environ, PYTHONPATH=str(ROOT))
+    proc = subprocess.run([sys.executable, "-c", code], cwd=ROOT, env=env, capture_output=True, text=True, timeout=60)
+    assert proc.returncode == 0, proc.stderr
+    assert proc.stdout.rstrip().endswith("NO-QT-OK")
+    assert len(list((tmp_path / "csv").glob("*.csv"))) == 2
+
+
+def test_schema_does_not_import_qt():
+    code = ("import sys, io, contextlib\nfrom app.cli import main\n"
+            "with contextlib.redirect_stdout(io.StringIO()):\n    assert main(['schema']) == 0\n"
+            "assert 'PySide6' not in sys.modules\nprint('NO-QT-OK')\n")
+    proc = subprocess.run([sys.executable, "-c", code], cwd=ROOT, env=dict(os.environ, PYTHONPATH=str(ROOT)),
+                          capture_output=True, text=True, timeout=60)
+    assert proc.returncode == 0, proc.stderr
+    assert "NO-QT-OK" in proc.stdout
