@@ -305,6 +305,7 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
     strikes = 0
     tsat_in = float(fluid.saturation_temperature(np.array([p_in]))[0])
     liquid_feed = bool(math.isfinite(tsat_in) and t_in < tsat_in)
+    tsat_nodes = None
     sat_possible = isinstance(fluid, PureFluidModel) and bool(
         np.isfinite(fluid.saturation_temperature(np.array([p_in, max(p_in * 0.5, 2e3)]))).any())
     for iteration in range(max_iterations):
@@ -312,7 +313,8 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
         T_eval = np.clip(T, t_lo, t_hi)
         if sat_possible:
             # keep property look-ups on the feed's side of saturation while a pass overshoots
-            tsat_nodes = fluid.saturation_temperature(p)
+            if tsat_nodes is None:
+                tsat_nodes = fluid.saturation_temperature(p)
             ok = np.isfinite(tsat_nodes)
             if liquid_feed:
                 T_eval = np.where(ok, np.minimum(T_eval, tsat_nodes - 0.05), T_eval)
@@ -323,7 +325,6 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
             # temperature from (h, p): a Newton step on h(T, p) = h_target; the part of the temperature
             # change not explained by Q/(m cp) (pressure effect, cp curvature) feeds the recurrence
             T_true = T + (h_target - pn.h) / pn.cp
-            e_corr = np.diff(T_true) - dT_heat
             change = max(float(np.max(np.abs(T_true - T))), last_step)
             if change < tol:
                 converged = True
@@ -332,6 +333,9 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
             last_change = change
         rho = 0.5 * (pn.rho[:-1] + pn.rho[1:])
         cp = 0.5 * (pn.cp[:-1] + pn.cp[1:])
+        if h_target is not None:
+            # with this pass's cp, the recurrence reproduces T_true from last pass's heat
+            e_corr = np.diff(T_true) - Q_cell / (m_dot * cp)
         mu = np.sqrt(pn.mu[:-1] * pn.mu[1:])  # viscosity varies exponentially with T
         k = 0.5 * (pn.k[:-1] + pn.k[1:])
         Tc = 0.5 * (T[:-1] + T[1:])
@@ -404,7 +408,8 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
             T_surface[film_mask] = t_inf[film_mask] + q_loss * r_film
         last_step = max(float(np.max(np.abs(T_new - T))), float(np.max(np.abs(p_new - p))) * 1e-5)
         # a phase change or a state beyond the fluid data on two passes in a row is real, not a transient
-        problem = _phase_or_range_problem(fluid, T_new, p_new, t_lo, t_hi, liquid_feed)
+        tsat_nodes = fluid.saturation_temperature(p_new) if sat_possible else None
+        problem = _phase_or_range_problem(fluid, T_new, p_new, t_lo, t_hi, liquid_feed, tsat_nodes)
         if problem is not None:
             strikes += 1
             if strikes >= 2:
@@ -710,13 +715,15 @@ def prof_spans(setups, prof):
     return spans
 
 
-def _phase_or_range_problem(fluid, T, p, t_lo, t_hi, liquid_feed):
-    """The first node where the bulk leaves single-phase flow or the fluid data, with a plain message."""
+def _phase_or_range_problem(fluid, T, p, t_lo, t_hi, liquid_feed, tsat):
+    """The first node where the bulk leaves single-phase flow or the fluid data, with a plain message.
+
+    ``tsat`` is the saturation temperature at the nodes for a pure fluid, else None: only real
+    saturation physics stops the march; a user table's fixed boiling point is a check.
+    """
     c = lambda t: f"{t - 273.15:.1f} °C"  # noqa: E731
-    # only real saturation physics stops the march; a user table's fixed boiling point is a check
-    tsat = fluid.saturation_temperature(p) if isinstance(fluid, PureFluidModel) else np.full(p.shape, np.nan)
-    finite = np.isfinite(tsat)
-    if finite.any():
+    if tsat is not None:
+        finite = np.isfinite(tsat)
         if liquid_feed:
             bad = finite & (T >= tsat)
             if bad.any():
