@@ -159,7 +159,8 @@ def key_figures_table(result, system: str = "SI") -> str:
         ("  acceleration", fv(result.pressure_drop.acceleration_Pa, "pressure_difference", system)),
         ("Duty to fluid", fv(result.duty_W, "power", system)),
         ("Heat input", fv(result.heat_input_W, "power", system)),
-        ("Heat loss", fv(result.heat_loss_W, "power", system)),
+        (("Heat loss to surroundings", fv(result.heat_loss_W, "power", system)) if result.heat_loss_W >= 0 else
+         ("Heat gained from surroundings", fv(-result.heat_loss_W, "power", system))),
         ("Energy-balance residual", f"{result.energy_balance_residual_W:.2e} W"),
         ("Max inner-wall temperature",
          f"{fv(result.max_inner_wall_temperature_K, 'temperature', system)} at {fv(result.max_inner_wall_position_m, 'length', system)}"),

@@ -178,6 +178,9 @@ def format_value(value_si: float | None, quantity: str, system: UnitSystem, digi
 def _format_number(v: float, digits: int, quantity: str) -> str:
     if quantity in ("temperature", "temperature_difference"):
         return f"{v:.1f}"  # engineers read temperatures to 0.1 degree
+    if quantity in ("length", "elevation", "depth"):
+        # positions and lengths along a line: centimetres are plenty
+        return f"{v:,.1f}".replace(",", "\u2009") if abs(v) >= 10 else f"{v:.2f}"
     if v == 0:
         return "0"
     mag = math.floor(math.log10(abs(v)))
