@@ -274,7 +274,7 @@ def test_checks_sorted_click_selects_and_marks(qtbot, doc):
     assert len(sev) == len(result.checks) + 2
     assert sev == sorted(sev, key=lambda s: -ranks[s])
     first = tree.topLevelItem(0)
-    assert first.text(0) == "Danger" and first.text(2) == "Bridge" and first.text(3) == "90.00 m"
+    assert first.text(0) == "Danger" and first.text(2) == "Bridge" and first.text(3) == "90.0 m"
 
     doc.select_segment(0)
     with qtbot.waitSignal(doc.position_marked) as marked:

@@ -1,0 +1,319 @@
+"""Undoable edits of the project: one command class per kind of user edit.
+
+Each command builds the new model object when it is created, with full pydantic validation,
+so an invalid value raises :class:`pydantic.ValidationError` *before* anything changes (the
+editing widget shows the message in place and nothing is pushed). ``redo``/``undo`` then only
+swap stored old and new values through the Document's model methods. Model objects are
+treated as immutable values, which keeps undo exact and lets the solve thread read a snapshot.
+
+Dotted paths name fields inside a segment or alternative: ``"length_m"``, ``"pipe.nps"``,
+``"surroundings.temperature_K"``, ``"insulation.0.thickness_m"``, ``"feed.inlet_pressure_Pa"``.
+"""
+
+from __future__ import annotations
+
+from typing import Any, Mapping, Optional
+
+from pydantic import BaseModel
+from PySide6.QtGui import QUndoCommand
+
+from solver.model import Alternative, Project, Segment
+
+# Readable names for the Edit menu ("Undo Set length of 'Rack run'").
+FIELD_LABELS = {
+    "name": "name",
+    "length_m": "length",
+    "elevation_change_m": "elevation change",
+    "heat_input_W_per_m": "heat input",
+    "pipe": "pipe",
+    "pipe.bore": "bore entry",
+    "pipe.nps": "NPS",
+    "pipe.schedule": "schedule",
+    "pipe.inner_diameter_m": "inner diameter",
+    "pipe.wall_thickness_m": "wall thickness",
+    "pipe.material": "pipe material",
+    "pipe.roughness_m": "roughness",
+    "pipe.wall_conductivity_W_per_mK": "wall conductivity",
+    "insulation": "insulation",
+    "fittings": "fittings",
+    "surroundings": "surroundings",
+    "fluid": "fluid",
+    "fluid.concentration": "concentration",
+    "feed.inlet_temperature_K": "inlet temperature",
+    "feed.inlet_pressure_Pa": "inlet pressure",
+    "feed.mass_flow_kg_per_s": "mass flow",
+    "feed.volume_flow_m3_per_s": "volume flow",
+    "limits.max_inner_wall_temperature_K": "max inner-wall temperature",
+    "limits.min_bulk_temperature_K": "min bulk temperature",
+    "description": "description",
+}
+
+
+def field_label(path: str) -> str:
+    if path in FIELD_LABELS:
+        return FIELD_LABELS[path]
+    head = path.split(".")[0]
+    if head in ("insulation", "fittings", "surroundings"):
+        return FIELD_LABELS[head]
+    return path.split(".")[-1].replace("_", " ")
+
+
+def _plain(value: Any) -> Any:
+    if isinstance(value, BaseModel):
+        return value.model_dump()
+    if isinstance(value, list):
+        return [_plain(v) for v in value]
+    return value
+
+
+def set_path(data: dict, path: str, value: Any) -> None:
+    """Set ``value`` at a dotted path in nested dicts/lists (integers index lists)."""
+    parts = path.split(".")
+    node: Any = data
+    for part in parts[:-1]:
+        node = node[int(part)] if isinstance(node, list) else node[part]
+    last = parts[-1]
+    if isinstance(node, list):
+        node[int(last)] = _plain(value)
+    else:
+        if last not in node and not isinstance(node, dict):
+            raise KeyError(path)
+        node[last] = _plain(value)
+
+
+def get_path(obj: Any, path: str) -> Any:
+    """Read a dotted path from a model (attributes) or nested dicts/lists."""
+    node = obj
+    for part in path.split("."):
+        if isinstance(node, (list, tuple)):
+            node = node[int(part)]
+        elif isinstance(node, dict):
+            node = node[part]
+        else:
+            node = getattr(node, part)
+    return node
+
+
+def updated_model(model: BaseModel, changes: Mapping[str, Any]) -> BaseModel:
+    """A new, fully validated copy of ``model`` with ``changes`` (dotted path -> value) applied."""
+    data = model.model_dump()
+    for path, value in changes.items():
+        set_path(data, path, value)
+    return type(model).model_validate(data)
+
+
+class _AlternativeSwap(QUndoCommand):
+    """Base: swap one alternative for a validated new version; optionally move the selection."""
+
+    def __init__(self, doc, alt_index: int, new_alternative: Alternative, text: str,
+                 select_after: Optional[int] = None, select_before: Optional[int] = None):
+        super().__init__(text)
+        self.doc = doc
+        self.alt_index = alt_index
+        self.old = doc.project.alternatives[alt_index]
+        self.new = new_alternative
+        if self.old.name != self.new.name:
+            # project-level rules (unique alternative names) checked now, not inside redo()
+            alts = list(doc.project.alternatives)
+            alts[alt_index] = self.new
+            Project.model_validate({**dict(doc.project), "alternatives": alts})
+        self.select_before = doc.selected_segment if select_before is None else select_before
+        self.select_after = select_after
+
+    def redo(self) -> None:
+        self.doc.replace_alternative(self.alt_index, self.new)
+        if self.select_after is not None and self.alt_index == self.doc.current_index:
+            self.doc.select_segment(self.select_after)
+
+    def undo(self) -> None:
+        self.doc.replace_alternative(self.alt_index, self.old)
+        if self.select_after is not None and self.alt_index == self.doc.current_index:
+            self.doc.select_segment(self.select_before)
+
+
+def _with_segments(alt: Alternative, segments: list[Segment]) -> Alternative:
+    return Alternative.model_validate({**dict(alt), "segments": segments})
+
+
+def _segment_name(doc, alt_index: int, seg_index: int) -> str:
+    return doc.project.alternatives[alt_index].segments[seg_index].name
+
+
+class SetSegmentFields(_AlternativeSwap):
+    """Change several fields of one segment in one undo step."""
+
+    def __init__(self, doc, alt_index: int, seg_index: int, changes: Mapping[str, Any], text: Optional[str] = None):
+        alt = doc.project.alternatives[alt_index]
+        seg = alt.segments[seg_index]
+        new_seg = updated_model(seg, changes)
+        segs = list(alt.segments)
+        segs[seg_index] = new_seg
+        if text is None:
+            names = ", ".join(field_label(p) for p in changes)
+            text = f"Set {names} of '{seg.name}'"
+        super().__init__(doc, alt_index, _with_segments(alt, segs), text)
+        self.seg_index = seg_index
+
+
+class SetSegmentField(SetSegmentFields):
+    """Change one field of one segment, e.g. ``SetSegmentField(doc, 0, 2, "pipe.nps", "3")``."""
+
+    def __init__(self, doc, alt_index: int, seg_index: int, dotted_path: str, value: Any, text: Optional[str] = None):
+        super().__init__(doc, alt_index, seg_index, {dotted_path: value}, text)
+        self.path = dotted_path
+        self.value = value
+
+
+class ReplaceSegment(_AlternativeSwap):
+    def __init__(self, doc, alt_index: int, seg_index: int, segment: Segment, text: Optional[str] = None):
+        alt = doc.project.alternatives[alt_index]
+        segs = list(alt.segments)
+        segs[seg_index] = Segment.model_validate(segment.model_dump())
+        super().__init__(doc, alt_index, _with_segments(alt, segs), text or f"Edit '{segment.name}'")
+
+
+class SetAlternativeFields(_AlternativeSwap):
+    """Change fields of an alternative (fluid, feed, limits, name) in one undo step."""
+
+    def __init__(self, doc, alt_index: int, changes: Mapping[str, Any], text: Optional[str] = None):
+        alt = doc.project.alternatives[alt_index]
+        new_alt = updated_model(alt, changes)
+        if text is None:
+            text = "Set " + ", ".join(field_label(p) for p in changes)
+        super().__init__(doc, alt_index, new_alt, text)
+
+
+class SetAlternativeField(SetAlternativeFields):
+    def __init__(self, doc, alt_index: int, dotted_path: str, value: Any, text: Optional[str] = None):
+        super().__init__(doc, alt_index, {dotted_path: value}, text)
+
+
+class SetFeedField(SetAlternativeFields):
+    """``SetFeedField(doc, 0, "inlet_temperature_K", 353.15)``; ``field`` is a Feed key."""
+
+    def __init__(self, doc, alt_index: int, field: str, value: Any, text: Optional[str] = None):
+        super().__init__(doc, alt_index, {f"feed.{field}": value}, text)
+
+
+class InsertSegment(_AlternativeSwap):
+    """Insert ``segment`` at ``position`` (0 = first) and select it."""
+
+    def __init__(self, doc, alt_index: int, position: int, segment: Segment, text: Optional[str] = None):
+        alt = doc.project.alternatives[alt_index]
+        if not 0 <= position <= len(alt.segments):
+            raise IndexError(f"segment position must be 0..{len(alt.segments)}, got {position}")
+        segs = list(alt.segments)
+        segs.insert(position, Segment.model_validate(segment.model_dump()))
+        super().__init__(doc, alt_index, _with_segments(alt, segs), text or f"Insert segment '{segment.name}'",
+                         select_after=position)
+
+
+class DuplicateSegment(InsertSegment):
+    """Insert a copy of a segment right after it (downstream) and select the copy."""
+
+    def __init__(self, doc, alt_index: int, index: int):
+        seg = doc.project.alternatives[alt_index].segments[index]
+        copy = seg.model_copy(update={"name": _unique_name(doc.project.alternatives[alt_index], seg.name)})
+        super().__init__(doc, alt_index, index + 1, copy, text=f"Duplicate segment '{seg.name}'")
+
+
+def _unique_name(alt: Alternative, base: str) -> str:
+    names = {s.name for s in alt.segments}
+    stem = base.split(" (copy")[0]
+    candidate = f"{stem} (copy)"
+    n = 2
+    while candidate in names:
+        candidate = f"{stem} (copy {n})"
+        n += 1
+    return candidate
+
+
+class RemoveSegment(_AlternativeSwap):
+    """Remove a segment (its fittings, layers and wall model go with it: one step)."""
+
+    def __init__(self, doc, alt_index: int, index: int):
+        alt = doc.project.alternatives[alt_index]
+        if len(alt.segments) <= 1:
+            raise ValueError("a line needs at least one segment; the last segment cannot be deleted")
+        segs = list(alt.segments)
+        removed = segs.pop(index)
+        select = min(index, len(segs) - 1)
+        super().__init__(doc, alt_index, _with_segments(alt, segs), f"Delete segment '{removed.name}'",
+                         select_after=select, select_before=index)
+
+
+class MoveSegment(_AlternativeSwap):
+    """Move a segment from one place in the flow order to another; the selection follows it."""
+
+    def __init__(self, doc, alt_index: int, from_index: int, to_index: int):
+        alt = doc.project.alternatives[alt_index]
+        n = len(alt.segments)
+        if not (0 <= from_index < n and 0 <= to_index < n):
+            raise IndexError(f"segment indices must be 0..{n - 1}, got {from_index} -> {to_index}")
+        segs = list(alt.segments)
+        seg = segs.pop(from_index)
+        segs.insert(to_index, seg)
+        super().__init__(doc, alt_index, _with_segments(alt, segs), f"Move segment '{seg.name}'",
+                         select_after=to_index, select_before=from_index)
+
+
+class InsertAlternative(QUndoCommand):
+    def __init__(self, doc, position: int, alternative: Alternative):
+        super().__init__(f"Add alternative '{alternative.name}'")
+        self.doc = doc
+        self.old = list(doc.project.alternatives)
+        new = list(self.old)
+        new.insert(position, alternative)
+        Project.model_validate({**dict(doc.project), "alternatives": new})
+        self.new = new
+        self.position = position
+
+    def redo(self) -> None:
+        self.doc.set_alternatives(self.new)
+
+    def undo(self) -> None:
+        self.doc.set_alternatives(self.old)
+
+
+class RemoveAlternative(QUndoCommand):
+    def __init__(self, doc, index: int):
+        if len(doc.project.alternatives) <= 1:
+            raise ValueError("a project needs at least one alternative; the last one cannot be removed")
+        name = doc.project.alternatives[index].name
+        super().__init__(f"Remove alternative '{name}'")
+        self.doc = doc
+        self.old = list(doc.project.alternatives)
+        self.new = [a for i, a in enumerate(self.old) if i != index]
+        data = {**dict(doc.project), "alternatives": self.new}
+        if doc.project.baseline == name:
+            data["baseline"] = None
+        Project.model_validate(data)
+        self.old_baseline = doc.project.baseline
+        self.new_baseline = data.get("baseline", doc.project.baseline)
+
+    def redo(self) -> None:
+        self.doc.project.baseline = None
+        self.doc.set_alternatives(self.new)
+        self.doc.project.baseline = self.new_baseline
+
+    def undo(self) -> None:
+        self.doc.set_alternatives(self.old)
+        self.doc.project.baseline = self.old_baseline
+
+
+class SetProjectField(QUndoCommand):
+    """Project-level fields: name, description, prepared_by, revision, targets, baseline."""
+
+    def __init__(self, doc, name: str, value: Any, text: Optional[str] = None):
+        super().__init__(text or f"Set project {name.replace('_', ' ')}")
+        self.doc = doc
+        self.name = name
+        self.old = getattr(doc.project, name)
+        Project.model_validate({**dict(doc.project), name: value})  # validate before any change
+        self.new = value
+
+    def redo(self) -> None:
+        self.doc.set_project_field(self.name, self.new)
+
+    def undo(self) -> None:
+        self.doc.set_project_field(self.name, self.old)

@@ -1,0 +1,783 @@
+"""The Calorun main window: Line Strip across the top, Profiles in the centre, Feed and Segment
+Card on the left, Key Figures and Checks on the right, a slim cautions banner.
+
+Also here: New/Open/Save with atomic saves and error dialogs, recent files, autosave to a
+recovery file and the offer to recover after a crash, the SI / US customary switch
+(remembered between runs), and :func:`run`, the entry point of ``calorun`` (including the
+offscreen ``--screenshot`` mode).
+
+Dialogs go through small hooks (``error_dialog``, ``ask_recover``, ``ask_save_changes``,
+``choose_open_path``, ``choose_save_path``) so tests can answer them; when the window is not
+interactive (offscreen platform) the hooks never block: they record the message in
+``self.messages`` and take the safe default.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import json
+import os
+import sys
+import time
+from pathlib import Path
+from typing import Optional
+
+os.environ.setdefault("PYQTGRAPH_QT_LIB", "PySide6")
+
+from PySide6.QtCore import QStandardPaths, Qt, QTimer  # noqa: E402
+from PySide6.QtGui import QAction, QActionGroup, QGuiApplication, QKeySequence  # noqa: E402
+from PySide6.QtWidgets import (  # noqa: E402
+    QApplication,
+    QComboBox,
+    QDialog,
+    QDialogButtonBox,
+    QDockWidget,
+    QFileDialog,
+    QLabel,
+    QMainWindow,
+    QMessageBox,
+    QSizePolicy,
+    QTextBrowser,
+    QToolBar,
+    QVBoxLayout,
+    QWidget,
+)
+
+from app import commands, settings  # noqa: E402
+from app.document import Document, default_project  # noqa: E402
+
+DEMO_PROJECT = Path(__file__).with_name("demo_project.json")
+PROJECT_FILTER = "Calorun project (*.json);;All files (*)"
+AUTOSAVE_INTERVAL_MS = 60_000
+AUTOSAVE_AFTER_EDIT_MS = 3_000
+RECOVERY_FILE = "recovery.json"
+
+CAUTIONS = [
+    "Hot surfaces burn: protect people from heated lines and their surfaces.",
+    "A blocked-in line full of heated liquid overpressures as the liquid expands: provide relief.",
+    "Lines can freeze or boil when the heating, the flow or the weather differ from the design case.",
+    "Heat tracing in hazardous areas has temperature-class limits on its sheath and pipe temperatures.",
+    "Results are engineering estimates from published correlations, not guarantees.",
+    "Defer to local codes, the applicable piping and electrical standards, and licensed engineering review.",
+]
+CAUTIONS_BANNER = (
+    "Engineering estimates only — hot surfaces burn · blocked-in heated liquid overpressures · "
+    "lines can freeze or boil · tracing in hazardous areas has temperature-class limits · "
+    "defer to local codes, the applicable standards and licensed engineering review."
+)
+
+
+def recovery_dir() -> Path:
+    folder = os.environ.get("CALORUN_RECOVERY_DIR")
+    if folder:
+        return Path(folder)
+    base = QStandardPaths.writableLocation(QStandardPaths.AppDataLocation)
+    if not base:
+        base = str(Path.home() / ".calorun")
+    return Path(base) / "recovery"
+
+
+def recovery_path() -> Path:
+    return recovery_dir() / RECOVERY_FILE
+
+
+def load_demo_project():
+    """The bundled demo project, or a small built-in project if the file is missing or invalid."""
+    from solver.project_io import load_project
+
+    try:
+        return load_project(DEMO_PROJECT)
+    except Exception:
+        return default_project()
+
+
+class MainWindow(QMainWindow):
+    def __init__(self, doc: Optional[Document] = None, interactive: Optional[bool] = None):
+        super().__init__()
+        if interactive is None:
+            interactive = QGuiApplication.platformName() not in ("offscreen", "minimal")
+        self.interactive = interactive
+        self.messages: list[tuple[str, str]] = []  # (title, text) of every dialog shown or suppressed
+        self.doc = doc if doc is not None else Document(unit_system=settings.unit_system(), parent=self)
+        self.first_result_time: Optional[float] = None
+        self.recovery_file = recovery_path()  # fixed for this window's life
+        self._showing_demo = False
+        self.setObjectName("CalorunMainWindow")
+        self.setDockOptions(QMainWindow.AnimatedDocks | QMainWindow.AllowNestedDocks | QMainWindow.AllowTabbedDocks)
+        self.setStyleSheet(_WINDOW_STYLE)
+
+        self._build_panels()
+        self._build_actions()
+        self._build_banner()
+        self._build_menus()
+        self._build_status()
+
+        d = self.doc
+        d.modified_changed.connect(self._update_title)
+        d.path_changed.connect(self._update_title)
+        d.project_replaced.connect(self._update_title)
+        d.project_changed.connect(self._on_project_changed)
+        d.project_replaced.connect(self._refresh_alternatives)
+        d.current_alternative_changed.connect(self._refresh_alternatives)
+        d.result_ready.connect(self._on_result)
+        d.solve_failed.connect(self._on_solve_failed)
+        d.solve_started.connect(self._on_solve_started)
+        d.units_changed.connect(self._on_units_changed)
+        d.selection_changed.connect(self._update_segment_actions)
+        d.undo_stack.indexChanged.connect(self._update_segment_actions)
+
+        self._autosave_timer = QTimer(self)
+        self._autosave_timer.setInterval(AUTOSAVE_INTERVAL_MS)
+        self._autosave_timer.timeout.connect(self.write_recovery)
+        self._autosave_timer.start()
+        self._edit_autosave = QTimer(self)
+        self._edit_autosave.setSingleShot(True)
+        self._edit_autosave.setInterval(AUTOSAVE_AFTER_EDIT_MS)
+        self._edit_autosave.timeout.connect(self.write_recovery)
+
+        self.resize(1600, 1000)
+        self._update_title()
+        self._refresh_alternatives()
+        self._update_segment_actions()
+
+    # ------------------------------------------------------------------ dialog hooks (replaceable in tests)
+
+    def error_dialog(self, title: str, text: str, details: Optional[list[str]] = None) -> None:
+        body = text + ("\n\n" + "\n".join(details) if details else "")
+        self.messages.append((title, body))
+        if not self.interactive:
+            print(f"{title}: {body}", file=sys.stderr)
+            return
+        box = QMessageBox(QMessageBox.Warning, title, text, QMessageBox.Ok, self)
+        if details:
+            box.setInformativeText("\n".join(details[:12]) + ("\n…" if len(details) > 12 else ""))
+            box.setDetailedText("\n".join(details))
+        box.exec()
+
+    def ask_recover(self, info: str) -> bool:
+        self.messages.append(("Recover", info))
+        if not self.interactive:
+            return False
+        answer = QMessageBox.question(
+            self, "Recover unsaved work?",
+            f"Calorun did not close normally last time. {info}\n\nRecover it now?",
+            QMessageBox.Yes | QMessageBox.No, QMessageBox.Yes)
+        return answer == QMessageBox.Yes
+
+    def ask_save_changes(self) -> str:
+        """'save', 'discard' or 'cancel'."""
+        if not self.interactive:
+            return "discard"
+        answer = QMessageBox.question(
+            self, "Unsaved changes",
+            f"'{self.doc.project.name}' has changes that are not saved. Save them?",
+            QMessageBox.Save | QMessageBox.Discard | QMessageBox.Cancel, QMessageBox.Save)
+        return {QMessageBox.Save: "save", QMessageBox.Discard: "discard"}.get(answer, "cancel")
+
+    def choose_open_path(self) -> Optional[str]:
+        if not self.interactive:
+            return None
+        path, _ = QFileDialog.getOpenFileName(self, "Open project", self._start_dir(), PROJECT_FILTER)
+        return path or None
+
+    def choose_save_path(self, title: str = "Save project as", filter_text: str = PROJECT_FILTER,
+                         suggested: str = "") -> Optional[str]:
+        if not self.interactive:
+            return None
+        path, _ = QFileDialog.getSaveFileName(self, title, str(Path(self._start_dir()) / suggested), filter_text)
+        return path or None
+
+    def _start_dir(self) -> str:
+        if self.doc.path:
+            return str(self.doc.path.parent)
+        return str(Path.home())
+
+    # ------------------------------------------------------------------ layout
+
+    def _build_panels(self) -> None:
+        from app.panels.checks_panel import ChecksPanel
+        from app.panels.feed_panel import FeedPanel
+        from app.panels.key_figures import KeyFiguresPanel
+        from app.panels.line_strip import LineStrip
+        from app.panels.profiles import ProfilesPanel
+        from app.panels.segment_card import SegmentCard
+
+        d = self.doc
+        self.profiles = ProfilesPanel(d)
+        self.setCentralWidget(self.profiles)
+        self.line_strip = LineStrip(d)
+        self.segment_card = SegmentCard(d)
+        self.feed_panel = FeedPanel(d)
+        self.key_figures = KeyFiguresPanel(d)
+        self.checks = ChecksPanel(d)
+
+        self.line_strip_dock = self._dock("Line Strip", self.line_strip, Qt.TopDockWidgetArea)
+        self.line_strip_dock.setTitleBarWidget(QWidget())  # the strip's own toolbar carries its title
+        self.feed_dock = self._dock("Feed", self.feed_panel, Qt.LeftDockWidgetArea)
+        self.card_dock = self._dock("Segment Card", self.segment_card, Qt.LeftDockWidgetArea)
+        self.key_dock = self._dock("Key Figures", self.key_figures, Qt.RightDockWidgetArea)
+        self.checks_dock = self._dock("Checks", self.checks, Qt.BottomDockWidgetArea)
+        self.splitDockWidget(self.feed_dock, self.card_dock, Qt.Vertical)
+        # the strip spans the full width; the side columns sit below it
+        self.setCorner(Qt.TopLeftCorner, Qt.TopDockWidgetArea)
+        self.setCorner(Qt.TopRightCorner, Qt.TopDockWidgetArea)
+        self.setCorner(Qt.BottomLeftCorner, Qt.LeftDockWidgetArea)
+        self.setCorner(Qt.BottomRightCorner, Qt.RightDockWidgetArea)
+        self.resizeDocks([self.feed_dock, self.key_dock], [425, 410], Qt.Horizontal)
+        self.resizeDocks([self.feed_dock, self.card_dock], [330, 520], Qt.Vertical)
+        self.resizeDocks([self.checks_dock], [165], Qt.Vertical)
+
+    def _dock(self, title: str, widget: QWidget, area) -> QDockWidget:
+        dock = QDockWidget(title, self)
+        dock.setObjectName(title.replace(" ", "") + "Dock")
+        dock.setWidget(widget)
+        dock.setFeatures(QDockWidget.DockWidgetMovable | QDockWidget.DockWidgetFloatable | QDockWidget.DockWidgetClosable)
+        self.addDockWidget(area, dock)
+        return dock
+
+    def _build_banner(self) -> None:
+        bar = QToolBar("Main", self)
+        bar.setObjectName("MainBar")
+        bar.setMovable(False)
+        bar.setFloatable(False)
+        bar.setToolButtonStyle(Qt.ToolButtonTextOnly)
+        bar.addActions([self.new_action, self.open_action, self.save_action])
+        bar.addSeparator()
+        # toolbar copies with short, fixed text (the menu entries say what they undo)
+        stack = self.doc.undo_stack
+        self.undo_button_action = QAction("Undo", self)
+        self.redo_button_action = QAction("Redo", self)
+        self.undo_button_action.triggered.connect(stack.undo)
+        self.redo_button_action.triggered.connect(stack.redo)
+        stack.canUndoChanged.connect(self.undo_button_action.setEnabled)
+        stack.canRedoChanged.connect(self.redo_button_action.setEnabled)
+        stack.undoTextChanged.connect(lambda t: self.undo_button_action.setToolTip(f"Undo {t}" if t else "Undo"))
+        stack.redoTextChanged.connect(lambda t: self.redo_button_action.setToolTip(f"Redo {t}" if t else "Redo"))
+        self.undo_button_action.setEnabled(stack.canUndo())
+        self.redo_button_action.setEnabled(stack.canRedo())
+        bar.addActions([self.undo_button_action, self.redo_button_action])
+        bar.addSeparator()
+        self.alt_label = QLabel("  Alternative ")
+        self.alt_label.setStyleSheet("font-weight: 600;")
+        bar.addWidget(self.alt_label)
+        self.alt_combo = QComboBox()
+        self.alt_combo.setMinimumContentsLength(22)
+        self.alt_combo.setSizeAdjustPolicy(QComboBox.AdjustToMinimumContentsLengthWithIcon)
+        self.alt_combo.setToolTip("Design alternatives kept in this project")
+        self.alt_combo.activated.connect(self.doc.set_current_alternative)
+        bar.addWidget(self.alt_combo)
+        spacer = QWidget()
+        spacer.setSizePolicy(QSizePolicy.Expanding, QSizePolicy.Preferred)
+        bar.addWidget(spacer)
+        bar.addWidget(QLabel("Units "))
+        self.units_combo = QComboBox()
+        self.units_combo.addItem("SI", "SI")
+        self.units_combo.addItem("US customary", "US")
+        self.units_combo.setCurrentIndex(1 if self.doc.unit_system == "US" else 0)
+        self.units_combo.setToolTip("Display units; the project file always stays SI")
+        self.units_combo.activated.connect(lambda i: self.set_unit_system(self.units_combo.itemData(i)))
+        bar.addWidget(self.units_combo)
+        self.addToolBar(Qt.TopToolBarArea, bar)
+        self.alternative_bar = bar
+
+        # the cautions: one slim line across the bottom of the window, always in view, never modal
+        cbar = QToolBar("Cautions", self)
+        cbar.setObjectName("BannerBar")
+        cbar.setMovable(False)
+        cbar.setFloatable(False)
+        self.banner = QLabel(f"⚠&nbsp; {CAUTIONS_BANNER} &nbsp;<a href='#cautions'>More…</a>")
+        self.banner.setTextFormat(Qt.RichText)
+        self.banner.setObjectName("CautionsBanner")
+        self.banner.setWordWrap(False)
+        self.banner.setSizePolicy(QSizePolicy.Expanding, QSizePolicy.Preferred)
+        self.banner.setMinimumWidth(200)
+        self.banner.setToolTip("\n".join(CAUTIONS))
+        self.banner.linkActivated.connect(lambda _l: self.show_cautions())
+        cbar.addWidget(self.banner)
+        self.addToolBar(Qt.BottomToolBarArea, cbar)
+        bar = cbar
+        self.banner_bar = bar
+
+    def _build_actions(self) -> None:
+        def act(text, slot, shortcut=None, tip=""):
+            a = QAction(text, self)
+            if shortcut is not None:
+                a.setShortcut(shortcut)
+            if tip:
+                a.setStatusTip(tip)
+            a.triggered.connect(lambda _checked=False: slot())
+            return a
+
+        self.new_action = act("&New", self.new_project, QKeySequence.New, "Start a new project")
+        self.open_action = act("&Open…", self.open_dialog, QKeySequence.Open, "Open a project file")
+        self.save_action = act("&Save", self.save, QKeySequence.Save, "Save the project")
+        self.save_as_action = act("Save &As…", self.save_as, QKeySequence.SaveAs, "Save the project under a new name")
+        self.pdf_action = act("Export &PDF report…", self.export_pdf, None, "Summary report with inputs, results, plots, checks and cautions")
+        self.csv_action = act("Export &CSV…", self.export_csv, None, "Profiles of the current alternative as CSV")
+        self.quit_action = act("&Quit", self.close, QKeySequence.Quit)
+
+        self.undo_action = self.doc.undo_stack.createUndoAction(self, "&Undo")
+        self.undo_action.setShortcut(QKeySequence.Undo)
+        self.redo_action = self.doc.undo_stack.createRedoAction(self, "&Redo")
+        self.redo_action.setShortcut(QKeySequence.Redo)
+        self.insert_segment_action = act("&Insert segment after selected", self.insert_segment)
+        self.duplicate_segment_action = act("D&uplicate segment", self.duplicate_segment)
+        self.delete_segment_action = act("&Delete segment", self.delete_segment)
+        self.move_up_action = act("Move segment up-stream", lambda: self.move_segment(-1))
+        self.move_down_action = act("Move segment down-stream", lambda: self.move_segment(1))
+
+        self.units_group = QActionGroup(self)
+        self.units_group.setExclusive(True)
+        self.si_action = QAction("SI (°C, bar, mm, kg/h)", self, checkable=True)
+        self.us_action = QAction("US customary (°F, psi, in, lb/h)", self, checkable=True)
+        for a, system in ((self.si_action, "SI"), (self.us_action, "US")):
+            self.units_group.addAction(a)
+            a.triggered.connect(lambda _c=False, s=system: self.set_unit_system(s))
+        (self.us_action if self.doc.unit_system == "US" else self.si_action).setChecked(True)
+
+        self.about_action = act("&About Calorun", self.show_about)
+        self.cautions_action = act("&Cautions", self.show_cautions)
+
+    def _build_menus(self) -> None:
+        mb = self.menuBar()
+        file_menu = mb.addMenu("&File")
+        file_menu.addActions([self.new_action, self.open_action])
+        self.recent_menu = file_menu.addMenu("Open &Recent")
+        self.recent_menu.aboutToShow.connect(self._fill_recent_menu)
+        self._fill_recent_menu()
+        file_menu.addSeparator()
+        file_menu.addActions([self.save_action, self.save_as_action])
+        file_menu.addSeparator()
+        file_menu.addActions([self.pdf_action, self.csv_action])
+        file_menu.addSeparator()
+        file_menu.addAction(self.quit_action)
+
+        edit_menu = mb.addMenu("&Edit")
+        edit_menu.addActions([self.undo_action, self.redo_action])
+        edit_menu.addSeparator()
+        edit_menu.addActions([self.insert_segment_action, self.duplicate_segment_action, self.delete_segment_action])
+        edit_menu.addSeparator()
+        edit_menu.addActions([self.move_up_action, self.move_down_action])
+
+        view_menu = mb.addMenu("&View")
+        units_menu = view_menu.addMenu("&Units")
+        units_menu.addActions([self.si_action, self.us_action])
+        view_menu.addSeparator()
+        for dock in (self.line_strip_dock, self.feed_dock, self.card_dock, self.key_dock, self.checks_dock):
+            view_menu.addAction(dock.toggleViewAction())
+        view_menu.addAction(self.banner_bar.toggleViewAction())
+
+        help_menu = mb.addMenu("&Help")
+        help_menu.addActions([self.cautions_action, self.about_action])
+
+    def _build_status(self) -> None:
+        self.solve_status = QLabel("")
+        self.units_status = QLabel("")
+        self.statusBar().addWidget(self.solve_status, 1)
+        self.statusBar().addPermanentWidget(self.units_status)
+        self._on_units_changed(self.doc.unit_system)
+        self.segment_card.edit_refused.connect(lambda m: self.statusBar().showMessage("Not changed: " + m.splitlines()[0], 6000))
+        self.feed_panel.edit_refused.connect(lambda m: self.statusBar().showMessage("Not changed: " + m.splitlines()[0], 6000))
+
+    # ------------------------------------------------------------------ reacting to the document
+
+    def _update_title(self, *_args) -> None:
+        name = self.doc.project.name or "Untitled line"
+        where = self.doc.path.name if self.doc.path else ("demo, not saved" if self._showing_demo else "not saved")
+        self.setWindowTitle(f"{name} — {where}[*] — Calorun")
+        self.setWindowModified(self.doc.modified)
+
+    def _on_project_changed(self) -> None:
+        self._refresh_alternatives()
+        self._update_title()
+        self._edit_autosave.start()  # write_recovery checks whether anything is unsaved
+
+    def _refresh_alternatives(self, *_args) -> None:
+        self.alt_combo.blockSignals(True)
+        self.alt_combo.clear()
+        for alt in self.doc.project.alternatives:
+            self.alt_combo.addItem(alt.name)
+        self.alt_combo.setCurrentIndex(self.doc.current_index)
+        self.alt_combo.blockSignals(False)
+
+    def _update_segment_actions(self, *_args) -> None:
+        n = len(self.doc.current_alternative.segments)
+        sel = self.doc.selected_segment
+        has = 0 <= sel < n
+        self.duplicate_segment_action.setEnabled(has)
+        self.delete_segment_action.setEnabled(has and n > 1)
+        self.move_up_action.setEnabled(has and sel > 0)
+        self.move_down_action.setEnabled(has and sel < n - 1)
+
+    def _on_solve_started(self) -> None:
+        self.solve_status.setText("Solving…")
+
+    def _on_result(self, result) -> None:
+        if self.first_result_time is None:
+            self.first_result_time = time.perf_counter()
+        ms = self.doc.last_solve_seconds * 1000.0
+        n_checks = len(result.checks)
+        self.solve_status.setStyleSheet("")
+        self.solve_status.setText(
+            f"Solved '{result.name}' — {result.cells} cells in {ms:.0f} ms · "
+            f"{n_checks} finding{'s' if n_checks != 1 else ''} in Checks")
+
+    def _on_solve_failed(self, message: str) -> None:
+        self.solve_status.setStyleSheet("color: #B24A00;")
+        stale = " Showing the previous result (out of date)." if self.doc.result is not None else ""
+        self.solve_status.setText(f"Not solved: {message}.{stale}")
+
+    def _on_units_changed(self, system: str) -> None:
+        self.units_status.setText("Units: SI" if system == "SI" else "Units: US customary")
+        (self.us_action if system == "US" else self.si_action).setChecked(True)
+        if hasattr(self, "units_combo"):
+            self.units_combo.blockSignals(True)
+            self.units_combo.setCurrentIndex(1 if system == "US" else 0)
+            self.units_combo.blockSignals(False)
+
+    # ------------------------------------------------------------------ segment actions (Edit menu)
+
+    def insert_segment(self) -> None:
+        d = self.doc
+        alt = d.current_alternative
+        sel = d.selected_segment if d.selected_segment >= 0 else len(alt.segments) - 1
+        base = alt.segments[sel]
+        names = {s.name for s in alt.segments}
+        n = len(alt.segments) + 1
+        while f"Segment {n}" in names:
+            n += 1
+        # continue the same pipe and wall model; a fresh length, no fittings, level
+        new = base.model_copy(update={"name": f"Segment {n}", "length_m": 10.0, "elevation_change_m": 0.0,
+                                      "fittings": []})
+        d.push(commands.InsertSegment(d, d.current_index, sel + 1, new))
+
+    def duplicate_segment(self) -> None:
+        d = self.doc
+        if d.selected_segment >= 0:
+            d.push(commands.DuplicateSegment(d, d.current_index, d.selected_segment))
+
+    def delete_segment(self) -> None:
+        d = self.doc
+        if d.selected_segment < 0:
+            return
+        try:
+            d.push(commands.RemoveSegment(d, d.current_index, d.selected_segment))
+        except ValueError as exc:
+            self.statusBar().showMessage(str(exc), 6000)
+
+    def move_segment(self, step: int) -> None:
+        d = self.doc
+        i = d.selected_segment
+        j = i + step
+        if 0 <= i < len(d.current_alternative.segments) and 0 <= j < len(d.current_alternative.segments):
+            d.push(commands.MoveSegment(d, d.current_index, i, j))
+
+    # ------------------------------------------------------------------ units
+
+    def set_unit_system(self, system: str) -> None:
+        self.doc.set_unit_system(system)
+        try:
+            settings.set_unit_system(system)
+        except Exception:  # settings are a convenience; never fail an edit over them
+            pass
+
+    # ------------------------------------------------------------------ files
+
+    def maybe_save(self) -> bool:
+        """True when it is fine to drop the current project (saved, discarded, or unchanged)."""
+        if not self.doc.modified:
+            return True
+        answer = self.ask_save_changes()
+        if answer == "save":
+            return self.save()
+        return answer == "discard"
+
+    def new_project(self) -> None:
+        if self.maybe_save():
+            self._showing_demo = False
+            self.doc.set_project(default_project())
+
+    def load_demo(self) -> None:
+        self._showing_demo = True
+        self.doc.set_project(load_demo_project())
+
+    def open_dialog(self) -> None:
+        if not self.maybe_save():
+            return
+        path = self.choose_open_path()
+        if path:
+            self.open_file(path, ask=False)
+
+    def open_file(self, path, ask: bool = True) -> bool:
+        """Open a project file; on any problem show every error with its path and keep the current project."""
+        from solver.errors import ProjectFileError
+        from solver.project_io import load_project
+
+        if ask and not self.maybe_save():
+            return False
+        p = Path(path)
+        try:
+            project = load_project(p)
+        except ProjectFileError as exc:
+            details = [f"{where}: {msg}" if where else msg for where, msg in exc.problems]
+            self.error_dialog("Cannot open project", f"{p.name} could not be opened: {exc.summary}.", details)
+            return False
+        except Exception as exc:  # anything unexpected still must not take the app down
+            self.error_dialog("Cannot open project", f"{p.name} could not be opened: {exc}")
+            return False
+        self._showing_demo = False
+        self.doc.set_project(project, path=p)
+        self._add_recent(p)
+        return True
+
+    def save(self) -> bool:
+        if self.doc.path is None:
+            return self.save_as()
+        return self.save_to(self.doc.path)
+
+    def save_as(self) -> bool:
+        suggested = (self.doc.project.name or "line").replace("/", "-") + ".json"
+        path = self.choose_save_path(suggested=suggested)
+        if not path:
+            return False
+        return self.save_to(path)
+
+    def save_to(self, path) -> bool:
+        """Save atomically; a failure says why and leaves any existing file as it was."""
+        from solver.project_io import save_project
+
+        p = Path(path)
+        try:
+            save_project(self.doc.project, p)
+        except OSError as exc:
+            reason = exc.strerror or str(exc)
+            self.error_dialog("Project not saved",
+                              f"Could not save to {p}: {reason}. Any existing file there is unchanged; "
+                              "your work is still open — save it somewhere else.")
+            return False
+        self.doc.mark_saved(p)
+        self._add_recent(p)
+        self.remove_recovery()
+        self.statusBar().showMessage(f"Saved {p}", 4000)
+        return True
+
+    def _add_recent(self, p: Path) -> None:
+        try:
+            settings.add_recent_file(p)
+        except Exception:
+            pass
+
+    def _fill_recent_menu(self) -> None:
+        self.recent_menu.clear()
+        files = settings.recent_files()
+        for f in files:
+            a = self.recent_menu.addAction(f)
+            a.triggered.connect(lambda _c=False, path=f: self.open_file(path))
+        if files:
+            self.recent_menu.addSeparator()
+            self.recent_menu.addAction("Clear list", lambda: (settings.clear_recent_files(), self._fill_recent_menu()))
+        else:
+            self.recent_menu.addAction("(none)").setEnabled(False)
+
+    def export_pdf(self, path=None) -> bool:
+        path = path or self.choose_save_path("Export PDF report", "PDF (*.pdf)",
+                                             (self.doc.project.name or "report") + ".pdf")
+        if not path:
+            return False
+        try:
+            from app.report import write_report
+
+            write_report(self.doc.project, path, unit_system=self.doc.unit_system)
+        except Exception as exc:
+            self.error_dialog("Report not written", f"Could not write {path}: {exc}")
+            return False
+        self.statusBar().showMessage(f"Report written to {path}", 5000)
+        return True
+
+    def export_csv(self, path=None) -> bool:
+        if self.doc.result is None:
+            self.error_dialog("Nothing to export", "The current alternative has no result yet.")
+            return False
+        path = path or self.choose_save_path("Export profiles as CSV", "CSV (*.csv)",
+                                             (self.doc.current_alternative.name or "profiles") + ".csv")
+        if not path:
+            return False
+        try:
+            from app.export import write_profiles_csv
+
+            write_profiles_csv(self.doc.result, path, unit_system=self.doc.unit_system)
+        except Exception as exc:
+            self.error_dialog("CSV not written", f"Could not write {path}: {exc}")
+            return False
+        self.statusBar().showMessage(f"Profiles written to {path}", 5000)
+        return True
+
+    # ------------------------------------------------------------------ autosave and recovery
+
+    def write_recovery(self) -> Optional[Path]:
+        """Write the open project to the recovery file if it has unsaved changes."""
+        if not self.doc.modified:
+            return None
+        target = self.recovery_file
+        payload = {
+            "calorun_recovery": 1,
+            "written_at": _dt.datetime.now().isoformat(timespec="seconds"),
+            "original_path": str(self.doc.path) if self.doc.path else None,
+            "project": self.doc.project.model_dump(mode="json"),
+        }
+        try:
+            target.parent.mkdir(parents=True, exist_ok=True)
+            tmp = target.with_name(f".{target.name}.tmp")
+            tmp.write_text(json.dumps(payload, ensure_ascii=False), encoding="utf-8")
+            os.replace(tmp, target)
+        except OSError as exc:
+            self.statusBar().showMessage(f"Autosave failed: {exc}", 6000)
+            return None
+        return target
+
+    def remove_recovery(self) -> None:
+        try:
+            self.recovery_file.unlink()
+        except FileNotFoundError:
+            pass
+        except OSError:
+            pass
+
+    def check_recovery(self) -> bool:
+        """If a recovery file exists (the last run did not close normally), offer to recover it."""
+        from solver.errors import ProjectFileError
+        from solver.project_io import project_from_dict
+
+        path = self.recovery_file
+        if not path.exists():
+            return False
+        try:
+            payload = json.loads(path.read_text(encoding="utf-8"))
+            project = project_from_dict(payload["project"])
+        except (OSError, ValueError, KeyError, TypeError, ProjectFileError) as exc:
+            self.error_dialog("Recovery file unreadable",
+                              f"A recovery file was found but cannot be read ({exc}); it has been set aside.")
+            try:
+                path.replace(path.with_suffix(".unreadable.json"))
+            except OSError:
+                pass
+            return False
+        original = payload.get("original_path")
+        when = payload.get("written_at", "an unknown time")
+        info = (f"Unsaved changes to '{project.name}'"
+                + (f" ({original})" if original else "") + f" were kept at {when}.")
+        if self.ask_recover(info):
+            self._showing_demo = False
+            self.doc.set_project(project, path=Path(original) if original else None, modified=True)
+            self.statusBar().showMessage("Recovered unsaved work — save it to keep it.", 8000)
+            self.write_recovery()
+            return True
+        self.remove_recovery()
+        return False
+
+    def closeEvent(self, event) -> None:  # noqa: N802
+        if not self.maybe_save():
+            event.ignore()
+            return
+        self._autosave_timer.stop()
+        self._edit_autosave.stop()
+        self.doc.shutdown()
+        self.remove_recovery()  # a clean exit leaves no recovery file
+        event.accept()
+
+    # ------------------------------------------------------------------ help
+
+    def show_cautions(self) -> QDialog:
+        dlg = QDialog(self)
+        dlg.setWindowTitle("Cautions")
+        v = QVBoxLayout(dlg)
+        text = QTextBrowser()
+        text.setHtml("<h3>Use these results with care</h3><ul>"
+                     + "".join(f"<li style='margin-bottom:6px'>{c}</li>" for c in CAUTIONS) + "</ul>")
+        text.setMinimumSize(520, 260)
+        v.addWidget(text)
+        box = QDialogButtonBox(QDialogButtonBox.Close)
+        box.rejected.connect(dlg.close)
+        v.addWidget(box)
+        dlg.setAttribute(Qt.WA_DeleteOnClose)
+        dlg.show()  # not modal: it never blocks the work
+        self.cautions_dialog = dlg
+        return dlg
+
+    def show_about(self) -> None:
+        text = ("<b>Calorun</b><br>Temperatures, pressure and duty along process heating and cooling lines."
+                "<br><br>" + "<br>".join(CAUTIONS[-2:]))
+        self.messages.append(("About Calorun", text))
+        if self.interactive:
+            QMessageBox.about(self, "About Calorun", text)
+
+
+_WINDOW_STYLE = """
+QMainWindow::separator { width: 5px; height: 5px; background: #E4E8EB; }
+QDockWidget { font-weight: 600; }
+QDockWidget::title { background: #E9EEF1; padding: 4px 8px; border-bottom: 1px solid #D3DADF; }
+QDockWidget > QWidget { font-weight: normal; }
+QGroupBox { font-weight: 600; border: 1px solid #D9DEE2; border-radius: 4px; margin-top: 10px; padding-top: 4px; }
+QGroupBox::title { subcontrol-origin: margin; left: 8px; padding: 0 4px; color: #1F2A33; }
+QGroupBox > QWidget { font-weight: normal; }
+QLabel#CautionsBanner { color: #6B4500; background: #FFF3D6; border: 1px solid #E8C77A;
+                        border-radius: 3px; padding: 2px 8px; }
+QToolBar#BannerBar { padding: 1px 4px; border: none; }
+"""
+
+
+def _wait_for_first_result(win: MainWindow, timeout_s: float = 60.0) -> None:
+    app = QApplication.instance()
+    deadline = time.perf_counter() + timeout_s
+    while time.perf_counter() < deadline:
+        app.processEvents()
+        if win.doc.result is not None or (win.doc.last_error and not win.doc.solving):
+            break
+        time.sleep(0.005)
+    for _ in range(5):  # let the plots and tables repaint with the result
+        app.processEvents()
+        time.sleep(0.01)
+
+
+def run(path: Optional[str] = None, screenshot: Optional[str] = None) -> int:
+    """Start the desktop app on ``path`` (the demo project when None).
+
+    With ``screenshot``, render the window offscreen at 1600×1000 once the first result is
+    plotted, save it as PNG and return 0 without entering the event loop.
+    """
+    if screenshot:
+        os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+    app = QApplication.instance() or QApplication(sys.argv[:1])
+    app.setOrganizationName(settings.ORGANISATION)
+    app.setApplicationName(settings.APPLICATION)
+    app.setStyle("Fusion")
+    win = MainWindow(interactive=False if screenshot else None)
+    opened = bool(path) and win.open_file(path, ask=False)
+    if path and not opened and screenshot:
+        return 2  # the dialog text went to stderr
+    if not opened:
+        win.load_demo()
+    if screenshot:
+        out = Path(screenshot)
+        win.resize(1600, 1000)
+        win.show()
+        _wait_for_first_result(win)
+        win.resize(1600, 1000)
+        app.processEvents()
+        image = win.grab()
+        out.parent.mkdir(parents=True, exist_ok=True)
+        ok = image.save(str(out), "PNG")
+        win.doc.shutdown()
+        win.remove_recovery()
+        win.close()
+        if not ok:
+            print(f"calorun: could not write screenshot {out}", file=sys.stderr)
+            return 1
+        return 0
+    win.show()
+    QTimer.singleShot(0, win.check_recovery)
+    return app.exec()
+
+
+if __name__ == "__main__":  # pragma: no cover
+    raise SystemExit(run(*(sys.argv[1:2] or [None])))

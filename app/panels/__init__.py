@@ -1,0 +1,1 @@
+"""Panels of the main window; each takes the Document in its constructor."""

@@ -1,0 +1,206 @@
+"""Alternatives panel: the designs kept in one project.
+
+A list of the project's alternatives with the baseline marked. Selecting one
+makes it current (the Line Strip, Segment Card, Feed and Profiles follow).
+Add blank, duplicate, rename (double-click or F2), delete, move up/down and
+set baseline are undoable commands pushed through the Document. The panel
+keeps no copy of the design: it rebuilds its list from the Document's signals.
+"""
+
+from __future__ import annotations
+
+from PySide6.QtCore import Qt, Signal
+from PySide6.QtGui import QFont
+from PySide6.QtWidgets import (
+    QAbstractItemView,
+    QHBoxLayout,
+    QLabel,
+    QListWidget,
+    QListWidgetItem,
+    QToolButton,
+    QVBoxLayout,
+    QWidget,
+)
+
+from app import alternative_commands as cmds
+
+
+class AlternativesPanel(QWidget):
+    """List of alternatives with add / duplicate / rename / delete / reorder / baseline actions."""
+
+    error_shown = Signal(str)  # a rejected edit, shown in place (also emitted for tests)
+
+    def __init__(self, doc, parent=None):
+        super().__init__(parent)
+        self.doc = doc
+        self.setObjectName("AlternativesPanel")
+        self._updating = False
+
+        self.list = QListWidget(self)
+        self.list.setObjectName("alternativesList")
+        self.list.setSelectionMode(QAbstractItemView.SingleSelection)
+        self.list.setEditTriggers(QAbstractItemView.DoubleClicked | QAbstractItemView.EditKeyPressed)
+        self.list.setToolTip("Select to edit this alternative; double-click or F2 to rename.")
+
+        def button(text, tip, slot, name):
+            b = QToolButton(self)
+            b.setText(text)
+            b.setToolTip(tip)
+            b.setObjectName(name)
+            b.setAutoRaise(True)
+            b.clicked.connect(slot)
+            return b
+
+        self.add_button = button("Add", "Add a blank alternative", self.add_blank, "addAlternative")
+        self.duplicate_button = button("Duplicate", "Duplicate the current alternative", self.duplicate_current, "duplicateAlternative")
+        self.rename_button = button("Rename", "Rename the current alternative (F2)", self.start_rename, "renameAlternative")
+        self.delete_button = button("Delete", "Delete the current alternative", self.delete_current, "deleteAlternative")
+        self.up_button = button("\u2191", "Move up", lambda: self.move_current(-1), "moveAlternativeUp")
+        self.down_button = button("\u2193", "Move down", lambda: self.move_current(+1), "moveAlternativeDown")
+        self.baseline_button = button("Set baseline", "Compare the others against this alternative", self.set_baseline_current, "setBaseline")
+
+        row1 = QHBoxLayout()
+        for b in (self.add_button, self.duplicate_button, self.rename_button, self.delete_button):
+            row1.addWidget(b)
+        row1.addStretch(1)
+        row2 = QHBoxLayout()
+        for b in (self.up_button, self.down_button, self.baseline_button):
+            row2.addWidget(b)
+        row2.addStretch(1)
+
+        self.message = QLabel("", self)
+        self.message.setWordWrap(True)
+        self.message.setObjectName("alternativesMessage")
+        self.message.setStyleSheet("color: #B04A00;")
+        self.message.hide()
+
+        layout = QVBoxLayout(self)
+        layout.setContentsMargins(4, 4, 4, 4)
+        layout.addLayout(row1)
+        layout.addWidget(self.list, 1)
+        layout.addLayout(row2)
+        layout.addWidget(self.message)
+
+        self.list.currentRowChanged.connect(self._on_row_changed)
+        self.list.itemChanged.connect(self._on_item_edited)
+        doc.project_replaced.connect(self.refresh)
+        doc.project_changed.connect(self.refresh)
+        doc.current_alternative_changed.connect(self._on_current_changed)
+        self.refresh()
+
+    # ------------------------------------------------------------------ view
+
+    def refresh(self) -> None:
+        """Rebuild the list from the Document."""
+        self._updating = True
+        try:
+            project = self.doc.project
+            base = project.baseline_alternative().name
+            self.list.clear()
+            for alt in project.alternatives:
+                item = QListWidgetItem(alt.name)
+                item.setData(Qt.UserRole, alt.name)
+                item.setFlags(item.flags() | Qt.ItemIsEditable)
+                n = len(alt.segments)
+                length = sum(s.length_m for s in alt.segments)
+                item.setToolTip(f"{alt.name}\n{n} segment{'s' if n != 1 else ''}, {length:g} m" + (f"\n{alt.description}" if alt.description else ""))
+                if alt.name == base:
+                    font = QFont(item.font())
+                    font.setBold(True)
+                    item.setFont(font)
+                    item.setText(f"{alt.name}")
+                    item.setToolTip(item.toolTip() + "\nBaseline: the others are compared against it")
+                    item.setData(Qt.AccessibleDescriptionRole, "baseline")
+                self.list.addItem(item)
+            self._mark_baseline(base)
+            self.list.setCurrentRow(self.doc.current_index)
+            self._update_buttons()
+        finally:
+            self._updating = False
+
+    def _mark_baseline(self, base: str) -> None:
+        for i in range(self.list.count()):
+            item = self.list.item(i)
+            name = item.data(Qt.UserRole)
+            item.setText(f"{name}   \u2605 baseline" if name == base else name)
+
+    def _update_buttons(self) -> None:
+        n = len(self.doc.project.alternatives)
+        i = self.doc.current_index
+        self.delete_button.setEnabled(n > 1)
+        self.up_button.setEnabled(i > 0)
+        self.down_button.setEnabled(i < n - 1)
+        self.baseline_button.setEnabled(self.doc.project.baseline_alternative().name != self.doc.current_alternative.name)
+
+    def _on_current_changed(self, index: int) -> None:
+        if self.list.currentRow() != index:
+            self._updating = True
+            try:
+                self.list.setCurrentRow(index)
+            finally:
+                self._updating = False
+        self._update_buttons()
+
+    def _on_row_changed(self, row: int) -> None:
+        if self._updating or row < 0:
+            return
+        if row != self.doc.current_index:
+            self.doc.set_current_alternative(row)
+
+    # ------------------------------------------------------------------ actions
+
+    def _show_error(self, text: str) -> None:
+        self.message.setText(text)
+        self.message.show()
+        self.error_shown.emit(text)
+
+    def _push(self, make) -> bool:
+        try:
+            command = make()
+        except (ValueError, IndexError) as exc:  # pydantic ValidationError is a ValueError
+            self._show_error(str(exc).splitlines()[0] if str(exc) else type(exc).__name__)
+            return False
+        self.message.hide()
+        self.doc.push(command)
+        return True
+
+    def add_blank(self) -> bool:
+        return self._push(lambda: cmds.AddAlternative(self.doc))
+
+    def duplicate_current(self) -> bool:
+        return self._push(lambda: cmds.DuplicateAlternative(self.doc, self.doc.current_index))
+
+    def rename(self, index: int, new_name: str) -> bool:
+        if self.doc.project.alternatives[index].name == new_name.strip():
+            return True
+        return self._push(lambda: cmds.RenameAlternative(self.doc, index, new_name))
+
+    def start_rename(self) -> None:
+        item = self.list.item(self.doc.current_index)
+        if item is not None:
+            self._updating = True
+            item.setText(item.data(Qt.UserRole))  # edit the bare name, not the baseline mark
+            self._updating = False
+            self.list.editItem(item)
+
+    def _on_item_edited(self, item: QListWidgetItem) -> None:
+        if self._updating:
+            return
+        index = self.list.row(item)
+        old = item.data(Qt.UserRole)
+        text = item.text().replace("\u2605 baseline", "").strip()
+        if text == old:
+            self.refresh()
+            return
+        if not self.rename(index, text):
+            self.refresh()
+
+    def delete_current(self) -> bool:
+        return self._push(lambda: cmds.RemoveAlternative(self.doc, self.doc.current_index))
+
+    def move_current(self, step: int) -> bool:
+        i = self.doc.current_index
+        return self._push(lambda: cmds.MoveAlternative(self.doc, i, i + step))
+
+    def set_baseline_current(self) -> bool:
+        return self._push(lambda: cmds.SetBaseline(self.doc, self.doc.current_index))

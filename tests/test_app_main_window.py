@@ -1,0 +1,396 @@
+"""The main window end to end (offscreen): editing through the Segment Card and Feed, undo and
+redo, files (atomic save, corrupt files), autosave and recovery, the unit switch, the screenshot.
+
+Unit conversions are checked against exact definitions: 1 ft = 0.3048 m and 1 in = 0.0254 m
+(international yard and pound agreement, 1959; NIST SP 811), standard atmosphere = 101 325 Pa
+(ISO 2533), T[K] = T[°C] + 273.15 and T[°F] = T[°C] * 9/5 + 32 (ITS-90 / NIST SP 811).
+"""
+
+from __future__ import annotations
+
+import json
+import os
+
+import pytest
+
+pytest.importorskip("pytestqt")
+
+from PySide6.QtGui import QImage  # noqa: E402
+
+from app import commands as C  # noqa: E402
+from app import settings  # noqa: E402
+from app.main_window import CAUTIONS_BANNER, MainWindow, recovery_path, run  # noqa: E402
+from solver.model import Alternative, Layer, Project, Segment  # noqa: E402
+from solver.project_io import dump_project, load_project  # noqa: E402
+
+
+def small_project() -> Project:
+    # invented example: hot water through two insulated, traced runs
+    seg = Segment(name="Run 1", length_m=30.0, heat_input_W_per_m=20.0,
+                  insulation=[Layer(thickness_m=0.04, conductivity_W_per_mK=0.04)])
+    alt = Alternative(name="Base", segments=[seg, seg.model_copy(update={"name": "Run 2", "length_m": 20.0})])
+    return Project(name="Window test line", alternatives=[alt])
+
+
+@pytest.fixture(autouse=True)
+def isolated_settings(tmp_path, monkeypatch):
+    monkeypatch.setenv("CALORUN_SETTINGS_DIR", str(tmp_path / "settings"))
+    monkeypatch.setenv("CALORUN_RECOVERY_DIR", str(tmp_path / "recovery"))
+
+
+@pytest.fixture
+def win(qtbot):
+    w = MainWindow(interactive=False)
+    qtbot.addWidget(w)
+    with qtbot.waitSignal(w.doc.result_ready, timeout=30000):
+        w.doc.set_project(small_project())
+    w.show()
+    yield w
+    w.doc.shutdown()
+
+
+def commit(edit, text: str) -> None:
+    edit.line_edit.setText(text)
+    edit.commit()
+
+
+def test_window_has_real_panels_and_cautions(win):
+    from app.panels.checks_panel import ChecksPanel
+    from app.panels.key_figures import KeyFiguresPanel
+    from app.panels.line_strip import LineStrip
+    from app.panels.profiles import ProfilesPanel
+
+    assert isinstance(win.profiles, ProfilesPanel)
+    assert isinstance(win.line_strip, LineStrip)
+    assert isinstance(win.checks, ChecksPanel)
+    assert isinstance(win.key_figures, KeyFiguresPanel)
+    text = CAUTIONS_BANNER.lower()
+    for phrase in ("hot surfaces burn", "overpressure", "freeze or boil", "temperature-class",
+                   "estimates", "local codes", "licensed engineering review"):
+        assert phrase in text
+    assert win.banner.isVisible()
+    titles = [a.text().replace("&", "") for a in win.menuBar().actions()]
+    assert titles == ["File", "Edit", "View", "Help"]
+
+
+def test_edit_length_with_unit_updates_model_key_figures_and_plot(win, qtbot):
+    card = win.segment_card
+    old_outlet = win.key_figures.value_text("outlet_temperature_K")
+    old_x_end = win.profiles.curves["bulk"].getData()[0][-1]
+    with qtbot.waitSignal(win.doc.result_ready, timeout=30000):
+        commit(card.length_edit, "200 ft")
+    assert win.doc.current_alternative.segments[0].length_m == pytest.approx(200 * 0.3048)  # 1 ft = 0.3048 m
+    assert card.length_edit.text() == "60.96"  # shown back in the display unit (m)
+    new_x_end = win.profiles.curves["bulk"].getData()[0][-1]
+    assert new_x_end == pytest.approx(60.96 + 20.0)  # the plot spans the new line length
+    assert new_x_end != old_x_end
+    assert win.key_figures.value_text("outlet_temperature_K") != old_outlet
+    assert win.isWindowModified() and "[*]" in win.windowTitle()
+
+
+def test_gauge_pressure_typed_with_g(win):
+    feed = win.feed_panel
+    commit(feed.pressure_edit, "3 bar(g)")
+    # gauge + standard atmosphere (101 325 Pa, ISO 2533)
+    assert win.doc.current_alternative.feed.inlet_pressure_Pa == pytest.approx(3e5 + 101325.0)
+    assert "(g)" in feed.pressure_edit.line_edit.toolTip()
+    commit(feed.temp_edit, "150 degF")
+    assert win.doc.current_alternative.feed.inlet_temperature_K == pytest.approx((150 - 32) * 5 / 9 + 273.15)
+
+
+@pytest.mark.parametrize("text", ["abc", "-5", "3 kg", ""])
+def test_invalid_input_marked_in_place_model_unchanged(win, text):
+    card = win.segment_card
+    before = win.doc.project.model_dump()
+    commit(card.length_edit, text)
+    assert card.length_edit.has_error
+    assert card.length_edit.error_label.isVisible()
+    assert "length" in card.length_edit.error_text
+    assert "border" in card.length_edit.line_edit.styleSheet()
+    assert win.doc.project.model_dump() == before
+    assert win.doc.undo_stack.count() == 0
+    # a good entry afterwards clears the mark
+    commit(card.length_edit, "12")
+    assert not card.length_edit.has_error
+    assert win.doc.current_alternative.segments[0].length_m == 12.0
+
+
+def test_refusal_mark_survives_other_edits_until_selection_changes(win):
+    card = win.segment_card
+    commit(card.length_edit, "-4")
+    assert card.length_edit.has_error
+    win.doc.push(C.SetSegmentField(win.doc, 0, 1, "length_m", 25.0))  # an edit elsewhere
+    assert card.length_edit.has_error and card.length_edit.text() == "-4"
+    win.doc.select_segment(1)
+    assert not card.length_edit.has_error and card.length_edit.text() == "25"
+    assert [s.length_m for s in win.doc.current_alternative.segments] == [30.0, 25.0]
+
+
+def test_model_rule_refusal_is_shown_where_typed(win):
+    card = win.segment_card
+    before = win.doc.project.model_dump()
+    commit(card.elevation_edit, "45")  # more than the 30 m segment length: the model refuses
+    assert card.elevation_edit.has_error
+    assert "elevation_change_m" in card.elevation_edit.error_text
+    assert win.doc.project.model_dump() == before
+
+
+def test_undo_redo_updates_card_without_feedback(win, qtbot):
+    card = win.segment_card
+    commit(card.length_edit, "45")
+    card.add_layer()
+    assert len(win.doc.current_alternative.segments[0].insulation) == 2
+    assert win.doc.undo_stack.count() == 2
+    win.undo_action.trigger()
+    assert len(win.doc.current_alternative.segments[0].insulation) == 1
+    assert card.layer_table.rowCount() == 1
+    win.undo_action.trigger()
+    assert card.length_edit.text() == "30"
+    assert win.doc.undo_stack.count() == 2  # refreshing the card pushed nothing
+    assert not win.isWindowModified()
+    win.redo_action.trigger()
+    assert card.length_edit.text() == "45"
+
+
+def test_pending_entry_lands_on_the_segment_it_was_typed_for(win):
+    card = win.segment_card
+    card.length_edit.line_edit.setText("55")  # typed, not yet committed (no Enter, focus elsewhere)
+    win.doc.select_segment(1)  # e.g. a click in the Line Strip
+    lengths = [s.length_m for s in win.doc.current_alternative.segments]
+    assert lengths == [55.0, 20.0]
+    assert card.length_edit.text() == "20"  # the card now shows segment 2
+
+
+def test_segment_actions_add_reorder_delete(win):
+    doc = win.doc
+    win.insert_segment()
+    assert [s.name for s in doc.current_alternative.segments] == ["Run 1", "Segment 3", "Run 2"]
+    win.move_segment(1)
+    assert [s.name for s in doc.current_alternative.segments] == ["Run 1", "Run 2", "Segment 3"]
+    win.delete_segment()
+    assert [s.name for s in doc.current_alternative.segments] == ["Run 1", "Run 2"]
+    assert doc.undo_stack.count() == 3
+    doc.undo_stack.undo()
+    assert [s.name for s in doc.current_alternative.segments] == ["Run 1", "Run 2", "Segment 3"]
+
+
+def test_surroundings_switch_carries_temperature_and_is_one_step(win):
+    card = win.segment_card
+    card.surr_combo.setCurrentIndex(card.surr_combo.findData("fixed_wall"))
+    card._on_surroundings_kind(card.surr_combo.currentIndex())
+    seg = win.doc.current_alternative.segments[0]
+    assert seg.surroundings.kind == "fixed_wall" and seg.heat_input_W_per_m == 0.0
+    assert card.surr_stack.currentWidget() is card.surr_pages["fixed_wall"]
+    assert not card.heat_edit.isEnabled()
+    win.doc.undo_stack.undo()
+    seg = win.doc.current_alternative.segments[0]
+    assert seg.surroundings.kind == "still_air" and seg.heat_input_W_per_m == 20.0
+
+
+def test_save_and_reload_round_trip(win, tmp_path):
+    commit(win.segment_card.length_edit, "33")
+    target = tmp_path / "line.json"
+    assert win.save_to(target)
+    assert not win.doc.modified and not win.isWindowModified()
+    again = load_project(target)
+    assert again.model_dump() == win.doc.project.model_dump()
+    assert settings.recent_files()[0] == str(target.resolve())
+    w2 = MainWindow(interactive=False)
+    try:
+        assert w2.open_file(target)
+        assert w2.doc.project.model_dump() == win.doc.project.model_dump()
+        assert w2.doc.path == target
+    finally:
+        w2.doc.shutdown()
+        w2.close()
+
+
+def test_failed_save_leaves_old_file_and_says_why(win, tmp_path, monkeypatch):
+    target = tmp_path / "line.json"
+    assert win.save_to(target)
+    old_bytes = target.read_bytes()
+    commit(win.segment_card.length_edit, "77")
+    # 1) the final replace step fails (e.g. the disk refuses): the old file must be intact
+    def refuse(*_a, **_k):
+        raise PermissionError(13, "Permission denied")
+
+    monkeypatch.setattr(os, "replace", refuse)
+    assert not win.save_to(target)
+    monkeypatch.undo()
+    assert target.read_bytes() == old_bytes
+    assert sorted(p.name for p in tmp_path.iterdir() if p.is_file()) == ["line.json"]  # no temp file left
+    assert win.messages[-1][0] == "Project not saved"
+    assert "Permission denied" in win.messages[-1][1]
+    assert win.doc.modified  # the edit is still unsaved
+    # 2) a folder that does not exist, and 3) a path that is a folder
+    assert not win.save_to(tmp_path / "no such folder" / "line.json")
+    assert "No such file or directory" in win.messages[-1][1]
+    assert not win.save_to(tmp_path)
+    assert win.doc.modified and win.doc.path == target
+
+
+def test_corrupt_and_invalid_files_listed_app_keeps_running(win, tmp_path):
+    before = win.doc.project.model_dump()
+    broken = tmp_path / "broken.json"
+    broken.write_text("{ this is not json", encoding="utf-8")
+    assert not win.open_file(broken)
+    title, body = win.messages[-1]
+    assert title == "Cannot open project" and "line 1" in body
+    raw = json.loads(dump_project(small_project()))
+    raw["alternatives"][0]["segments"][0]["length_m"] = -3
+    raw["alternatives"][0]["segments"][1]["pipe"]["material"] = 5
+    invalid = tmp_path / "invalid.json"
+    invalid.write_text(json.dumps(raw), encoding="utf-8")
+    assert not win.open_file(invalid)
+    body = win.messages[-1][1]
+    assert "alternatives[0].segments[0].length_m" in body
+    assert "alternatives[0].segments[1].pipe.material" in body
+    assert win.doc.project.model_dump() == before  # the open project stays
+    assert win.isVisible()
+    commit(win.segment_card.length_edit, "31")  # and still edits
+    assert win.doc.current_alternative.segments[0].length_m == 31.0
+
+
+def test_recovery_offered_after_simulated_crash(qtbot, tmp_path):
+    crashed = MainWindow(interactive=False)
+    crashed.doc.set_project(small_project())
+    crashed.doc.push(C.SetSegmentField(crashed.doc, 0, 0, "length_m", 42.0))
+    assert crashed.write_recovery() == recovery_path()
+    # as if the process died: no closeEvent, no more autosaves, the file stays
+    crashed._autosave_timer.stop()
+    crashed._edit_autosave.stop()
+    crashed.doc.shutdown()
+    crashed.deleteLater()
+
+    offers = []
+    w = MainWindow(interactive=False)
+    qtbot.addWidget(w)
+    w.ask_recover = lambda info: offers.append(info) or True
+    assert w.check_recovery()
+    assert len(offers) == 1 and "Window test line" in offers[0]
+    assert w.doc.current_alternative.segments[0].length_m == 42.0
+    assert w.doc.modified  # recovered work is unsaved until saved
+    w.doc.shutdown()
+    w.close()  # a clean exit removes the recovery file
+    assert not recovery_path().exists()
+
+
+def test_declined_recovery_removes_file_and_edits_autosave(win, qtbot):
+    win.doc.push(C.SetSegmentField(win.doc, 0, 0, "length_m", 44.0))
+    qtbot.waitUntil(lambda: recovery_path().exists(), timeout=10000)  # autosave after an edit
+    saved = json.loads(recovery_path().read_text(encoding="utf-8"))
+    assert saved["project"]["alternatives"][0]["segments"][0]["length_m"] == 44.0
+    other = MainWindow(interactive=False)
+    qtbot.addWidget(other)
+    other.ask_recover = lambda info: False
+    assert not other.check_recovery()
+    assert not recovery_path().exists()
+    other.doc.shutdown()
+
+
+def test_unit_switch_changes_display_not_file(win, tmp_path):
+    si_file = tmp_path / "si.json"
+    us_file = tmp_path / "us.json"
+    assert win.save_to(si_file)
+    card = win.segment_card
+    assert card.length_edit.text() == "30" and card.length_edit.unit_label.text() == "m"
+    win.us_action.trigger()
+    assert win.doc.unit_system == "US"
+    assert card.length_edit.unit_label.text() == "ft"
+    assert float(card.length_edit.text()) == pytest.approx(30 / 0.3048, rel=1e-5)  # 98.4252 ft
+    assert win.feed_panel.temp_edit.unit_label.text() == "°F"
+    assert settings.unit_system() == "US"  # remembered for the next run
+    assert win.save_to(us_file)
+    assert us_file.read_bytes() == si_file.read_bytes()  # the file stays SI
+    # a bare number typed in US is read in feet
+    commit(card.length_edit, "100")
+    assert win.doc.current_alternative.segments[0].length_m == pytest.approx(30.48)
+    w2 = MainWindow(interactive=False)
+    try:
+        assert w2.doc.unit_system == "US"
+    finally:
+        w2.doc.shutdown()
+        w2.close()
+
+
+def test_fluid_picker_and_flow_switch(win):
+    from solver.properties import SOLUTIONS
+
+    feed = win.feed_panel
+    i = feed.fluid_combo.findData("solution:MPG")
+    assert i >= 0 and "Propylene glycol" in feed.fluid_combo.itemText(i)
+    feed.fluid_combo.setCurrentIndex(i)
+    feed._on_fluid(i)
+    fluid = win.doc.current_alternative.fluid
+    assert (fluid.kind, fluid.solute) == ("solution", "MPG")
+    _label, basis, lo, hi = SOLUTIONS["MPG"]
+    assert lo <= fluid.concentration <= hi
+    assert feed.conc_spin.isVisible() and f"by {basis}" in feed.conc_label.text()
+    feed.conc_spin.setValue(40.0)
+    assert win.doc.current_alternative.fluid.concentration == pytest.approx(0.40)
+    # mass -> volume flow keeps the flow: V = m / rho with the inlet density of the latest result
+    rho_in = float(win.doc.result.profile.density_kg_per_m3[0])
+    m = win.doc.current_alternative.feed.mass_flow_kg_per_s
+    feed.volume_radio.click()
+    fed = win.doc.current_alternative.feed
+    assert fed.mass_flow_kg_per_s is None
+    assert fed.volume_flow_m3_per_s == pytest.approx(m / rho_in)
+    assert feed.volume_edit.isVisibleTo(feed) and not feed.mass_edit.isVisibleTo(feed)
+    win.doc.undo_stack.undo()
+    assert win.doc.current_alternative.feed.mass_flow_kg_per_s == m
+
+
+def test_user_fluid_table_pasted(win):
+    feed = win.feed_panel
+    dlg = feed.open_table_editor()
+    text = ("T [°C]\trho [kg/m3]\tcp [kJ/(kg K)]\tmu [mPa s]\tk [W/(m K)]\n"
+            "20\t1050\t2.1\t80\t0.15\n"
+            "100\t990\t2.4\t6\t0.14\n")
+    assert dlg.paste_from_clipboard(text)
+    assert dlg.table.rowCount() == 2
+    dlg.name_edit.setText("Test oil")
+    dlg.try_accept()
+    fluid = win.doc.current_alternative.fluid
+    assert fluid.kind == "table" and fluid.name == "Test oil"
+    assert fluid.rows[0].temperature_K == pytest.approx(293.15)
+    assert fluid.rows[1].viscosity_Pa_s == pytest.approx(0.006)  # 6 mPa·s
+    assert fluid.rows[0].specific_heat_J_per_kgK == pytest.approx(2100.0)
+    assert win.doc.undo_stack.count() == 1
+
+
+def test_user_fluid_table_rejects_decreasing_temperatures(win):
+    dlg = win.feed_panel.open_table_editor()
+    assert dlg.paste_from_clipboard("100,990,2.4,6,0.14\n20,1050,2.1,80,0.15\n")
+    dlg.try_accept()
+    assert "increase" in dlg.error_label.text()
+    assert win.doc.current_alternative.fluid.kind == "pure"
+    dlg.reject()
+
+
+def test_screenshot_run(tmp_path, qtbot):
+    out = tmp_path / "shot.png"
+    assert run(None, screenshot=str(out)) == 0
+    image = QImage(str(out))
+    assert (image.width(), image.height()) == (1600, 1000)
+
+
+def test_screenshot_of_unreadable_file_fails_cleanly(tmp_path, qtbot):
+    bad = tmp_path / "bad.json"
+    bad.write_text("[]", encoding="utf-8")
+    assert run(str(bad), screenshot=str(tmp_path / "x.png")) == 2
+    assert not (tmp_path / "x.png").exists()
+
+
+def test_exports_write_files(win, tmp_path):
+    from app.export import read_profiles_csv
+
+    csv_path = tmp_path / "profiles.csv"
+    assert win.export_csv(csv_path)
+    columns, system = read_profiles_csv(csv_path)
+    assert system == "SI"
+    assert len(columns["x_m"]) == len(win.doc.result.profile.x_m)
+    pdf_path = tmp_path / "report.pdf"
+    assert win.export_pdf(pdf_path)
+    assert pdf_path.read_bytes()[:5] == b"%PDF-"
+    assert not win.export_csv(tmp_path / "missing" / "x.csv")  # says why, app keeps running
+    assert win.messages[-1][0] == "CSV not written"
