@@ -239,6 +239,7 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
     dz = per_cell("elevation_change_m") * dx / seg_len
     kinds = np.array([s.kind for s in setups])[seg_of_cell]
     boundary = np.where(kinds == "fixed_wall", "T", "q")
+    boundary_cells = str(boundary[0]) if (boundary == boundary[0]).all() else boundary
 
     # outside path pieces that do not depend on temperature
     r_fixed_out = np.full(n, np.inf)  # for adiabatic
@@ -343,7 +344,7 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
         Re = m_dot * D / (area * mu)
         Pr = cp * mu / k
         f = correlations.friction_factor(Re, rel_rough)
-        Nu = _nusselt_inside(Re, Pr, f, x_mid / D, boundary, rel_rough)
+        Nu = _nusselt_inside(Re, Pr, f, x_mid / D, boundary_cells, rel_rough)
         h_inside = Nu * k / D
         r_in = 1.0 / (h_inside * math.pi * D)
         r_a = r_in + r_wall
@@ -451,7 +452,7 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
 
     # ---- node profiles, per segment with the boundary node repeated (wall values jump there)
     prof, spans = _node_profiles(
-        setups, seg_of_cell, x_node, T, p, dx, D, area, rel_rough, boundary, fluid, m_dot, r_wall, r_ins,
+        setups, seg_of_cell, x_node, T, p, dx, D, area, rel_rough, boundary_cells, fluid, m_dot, r_wall, r_ins,
         r_fixed_out, film_mask, air, t_inf, d_outer, wind_speed, emissivity, q_in, T_surface, r_a, u_prime,
         Q_cell, q_loss_cell, dp_friction + dp_fittings + dp_elevation + dp_accel,
     )
@@ -525,6 +526,8 @@ def _cell_edges(length: float, n: int, clustered: bool) -> np.ndarray:
 
 def _nusselt_inside(Re, Pr, f, x_over_d, boundary, rel_rough):
     """Inside Nusselt number where the laminar wall condition ('T' or 'q') differs between cells."""
+    if isinstance(boundary, str):
+        return correlations.nusselt_inside(Re, Pr, f, x_over_d, boundary, relative_roughness=rel_rough)
     kinds = np.unique(boundary)
     if kinds.size == 1:
         return correlations.nusselt_inside(Re, Pr, f, x_over_d, str(kinds[0]), relative_roughness=rel_rough)
@@ -628,7 +631,7 @@ def _node_profiles(setups, seg_of_cell, x_node, T, p, dx, D, area, rel_rough, bo
     node_index, cell_index = [], []
     start_node = 0
     for s in setups:
-        cells = np.flatnonzero(seg_of_cell == s.index)
+        cells = _cells_of(seg_of_cell, s.index)
         nodes = np.arange(cells[0], cells[-1] + 2)
         node_index.append(nodes)
         # node k of the segment uses the cell downstream of it, the outlet node the cell upstream
@@ -647,7 +650,7 @@ def _node_profiles(setups, seg_of_cell, x_node, T, p, dx, D, area, rel_rough, bo
     Pr = pr.cp * pr.mu / pr.k
     f = correlations.friction_factor(Re, rel_rough[ci])
     x_over_d = np.maximum(x, 1e-6 * Dn) / Dn
-    Nu = _nusselt_inside(Re, Pr, f, x_over_d, boundary[ci], rel_rough[ci])
+    Nu = _nusselt_inside(Re, Pr, f, x_over_d, boundary if isinstance(boundary, str) else boundary[ci], rel_rough[ci])
     h_i = Nu * pr.k / Dn
     r_in = 1.0 / (h_i * math.pi * Dn)
     r_a = r_in + r_wall[ci]
@@ -670,7 +673,7 @@ def _node_profiles(setups, seg_of_cell, x_node, T, p, dx, D, area, rel_rough, bo
     spans = []
     offset = 0
     for s, nodes in zip(setups, node_index):
-        cells = np.flatnonzero(seg_of_cell == s.index)
+        cells = _cells_of(seg_of_cell, s.index)
         k0, k1 = offset, offset + nodes.size - 1
         duty = float(np.sum(Q_cell[cells]))
         heat_in = float(np.sum(q_in[cells] * dx[cells]))
@@ -763,6 +766,13 @@ def _check_state_in_range(fluid, t, p, alt_name):
 # --------------------------------------------------------------------------- checks
 
 
+def _cells_of(seg_of_cell: np.ndarray, index: int) -> np.ndarray:
+    """Cell indices of one segment (segments own contiguous runs of cells)."""
+    lo = int(np.searchsorted(seg_of_cell, index, side="left"))
+    hi = int(np.searchsorted(seg_of_cell, index, side="right"))
+    return np.arange(lo, hi)
+
+
 def _first_where(mask: np.ndarray):
     idx = np.flatnonzero(mask)
     return int(idx[0]) if idx.size else None
@@ -836,7 +846,7 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
     # flow regime (cells -> segments)
     regime = correlations.flow_regime(Re)
     for s in setups:
-        sel = np.flatnonzero(seg_of_cell == s.index)
+        sel = _cells_of(seg_of_cell, s.index)
         trans = sel[regime[sel] == 1]
         if trans.size:
             out.append(Check("warning", "TRANSITIONAL_FLOW",
@@ -846,7 +856,7 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
 
     # velocity (common practice ranges)
     for s in setups:
-        sel = np.flatnonzero(seg_of_cell == s.index)
+        sel = _cells_of(seg_of_cell, s.index)
         v = velocity[sel]
         if fluid.compressible:
             if v.max() > 30.0:
@@ -863,7 +873,7 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
             elif v.min() < 0.3 and not any(ch.code == "VELOCITY_LOW" for ch in out):
                 # one note for the line is enough: slow flow is usually a design choice, not a fault
                 i = sel[int(np.argmin(v))]
-                slow = sum(1 for t in setups if velocity[seg_of_cell == t.index].min() < 0.3)
+                slow = sum(1 for t in setups if velocity[_cells_of(seg_of_cell, t.index)].min() < 0.3)
                 more = f" ({slow} of {len(setups)} segments)" if len(setups) > 1 else ""
                 out.append(Check("info", "VELOCITY_LOW",
                                  f"Liquid velocity {v.min():.2f} m/s is below about 0.3 m/s{more} (common practice): "
@@ -901,7 +911,8 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
     bad_l = (regime == 0) & correlations.out_of_range("laminar_entry", Pr=Pr)
     for mask, name in ((bad_g, "Gnielinski"), (bad_l, "laminar entry")):
         for s in setups:
-            sel = np.flatnonzero((seg_of_cell == s.index) & mask)
+            cells = _cells_of(seg_of_cell, s.index)
+            sel = cells[mask[cells]]
             if sel.size:
                 out.append(Check("warning", "CORRELATION_RANGE",
                                  f"The {name} correlation is used outside its published range here "
@@ -913,7 +924,8 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
         ra = GRAVITY / t_film * np.abs(T_surface - np.nan_to_num(t_inf, nan=293.15)) * d_outer**3 / (nu_kin * alpha)
         bad_cc = film_mask & (ra > correlations.VALIDITY["churchill_chu"]["Ra"][1])
         for s in setups:
-            sel = np.flatnonzero((seg_of_cell == s.index) & bad_cc)
+            cells = _cells_of(seg_of_cell, s.index)
+            sel = cells[bad_cc[cells]]
             if sel.size:
                 out.append(Check("warning", "CORRELATION_RANGE",
                                  f"Natural convection outside the Churchill–Chu range (Ra up to {ra[sel].max():.2g}).",
