@@ -112,17 +112,22 @@ def _headless(argv: list[str]) -> int:
     from solver import solve
 
     results = []
+    entries = []  # JSON entries in project order; a failed alternative carries its error
     failed = False
     for alt in project.alternatives:
         if alt.name not in chosen:
             continue
         try:
-            results.append(solve(alt))
+            r = solve(alt)
         except CalorunError as exc:
-            print(f"calorun: {exc}", file=sys.stderr)
+            print(f"calorun: {args.project}: {exc}", file=sys.stderr)
             failed = True
+            entries.append({"name": alt.name, "error": str(exc)})
+            continue
+        results.append(r)
+        entries.append(r.to_dict())
     if args.json:
-        print(json.dumps({"project": project.name, "alternatives": [r.to_dict() for r in results]}, indent=1))
+        print(json.dumps({"project": project.name, "alternatives": entries}, indent=1))
     else:
         for r in results:
             print(key_figures_table(r, args.units))
@@ -159,6 +164,8 @@ def key_figures_table(result, system: str = "SI") -> str:
         ("  acceleration", fv(result.pressure_drop.acceleration_Pa, "pressure_difference", system)),
         ("Duty to fluid", fv(result.duty_W, "power", system)),
         ("Heat input", fv(result.heat_input_W, "power", system)),
+        ("  tracing", fv(result.heat_input_tracing_W, "power", system)),
+        ("  jackets and heated walls", fv(result.heat_input_media_W, "power", system)),
         (("Heat loss to surroundings", fv(result.heat_loss_W, "power", system)) if result.heat_loss_W >= 0 else
          ("Heat gained from surroundings", fv(-result.heat_loss_W, "power", system))),
         ("Energy-balance residual", f"{result.energy_balance_residual_W:.2e} W"),
@@ -170,10 +177,14 @@ def key_figures_table(result, system: str = "SI") -> str:
          f"{fv(result.max_outer_surface_temperature_K, 'temperature', system)}"
          + (f" at {fv(result.max_outer_surface_position_m, 'length', system)}"
             if result.max_outer_surface_position_m == result.max_outer_surface_position_m else "")),
+        ("Min outer-surface temperature (in air)",
+         f"{fv(result.min_outer_surface_temperature_K, 'temperature', system)}"
+         + (f" at {fv(result.min_outer_surface_position_m, 'length', system)}"
+            if result.min_outer_surface_position_m == result.min_outer_surface_position_m else "")),
         ("Velocity", f"{fv(result.velocity_range_m_per_s[0], 'velocity', system, with_unit=False)} – "
                      f"{fv(result.velocity_range_m_per_s[1], 'velocity', system)}"),
         ("Reynolds number", f"{result.reynolds_range[0]:,.0f} – {result.reynolds_range[1]:,.0f}"),
-        ("Pump power (hydraulic)", fv(result.pump_power_W, "power", system)),
+        ("Hydraulic power (flow × Δp)", fv(result.pump_power_W, "power", system)),
         ("Residence time", f"{result.residence_time_s:,.1f} s"),
     ]
     width = max(len(k) for k, _ in rows)

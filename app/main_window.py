@@ -27,6 +27,7 @@ os.environ.setdefault("PYQTGRAPH_QT_LIB", "PySide6")
 from PySide6.QtCore import QStandardPaths, Qt, QTimer  # noqa: E402
 from PySide6.QtGui import QAction, QActionGroup, QGuiApplication, QKeySequence  # noqa: E402
 from PySide6.QtWidgets import (  # noqa: E402
+    QTabWidget,
     QApplication,
     QComboBox,
     QDialog,
@@ -202,9 +203,19 @@ class MainWindow(QMainWindow):
         from app.panels.profiles import ProfilesPanel
         from app.panels.segment_card import SegmentCard
 
+        from app.panels.alternatives_panel import AlternativesPanel
+        from app.panels.side_by_side import SideBySidePanel
+
         d = self.doc
         self.profiles = ProfilesPanel(d)
-        self.setCentralWidget(self.profiles)
+        self.side_by_side = SideBySidePanel(d)
+        self.centre_tabs = QTabWidget(self)
+        self.centre_tabs.setObjectName("CentreTabs")
+        self.centre_tabs.setDocumentMode(True)
+        self.centre_tabs.addTab(self.profiles, "Profiles")
+        self.centre_tabs.addTab(self.side_by_side, "Side-by-Side")
+        self.setCentralWidget(self.centre_tabs)
+        self.alternatives_panel = AlternativesPanel(d)
         self.line_strip = LineStrip(d)
         self.segment_card = SegmentCard(d)
         self.feed_panel = FeedPanel(d)
@@ -216,6 +227,8 @@ class MainWindow(QMainWindow):
         self.feed_dock = self._dock("Feed", self.feed_panel, Qt.LeftDockWidgetArea)
         self.card_dock = self._dock("Segment Card", self.segment_card, Qt.LeftDockWidgetArea)
         self.key_dock = self._dock("Key Figures", self.key_figures, Qt.RightDockWidgetArea)
+        self.alternatives_dock = self._dock("Alternatives", self.alternatives_panel, Qt.RightDockWidgetArea)
+        self.splitDockWidget(self.alternatives_dock, self.key_dock, Qt.Vertical)
         self.checks_dock = self._dock("Checks", self.checks, Qt.BottomDockWidgetArea)
         self.splitDockWidget(self.feed_dock, self.card_dock, Qt.Vertical)
         # the strip spans the full width; the side columns sit below it
@@ -226,6 +239,7 @@ class MainWindow(QMainWindow):
         self.resizeDocks([self.feed_dock, self.key_dock], [425, 410], Qt.Horizontal)
         self.resizeDocks([self.feed_dock, self.card_dock], [330, 520], Qt.Vertical)
         self.resizeDocks([self.checks_dock], [165], Qt.Vertical)
+        self.resizeDocks([self.alternatives_dock, self.key_dock], [190, 660], Qt.Vertical)
 
     def _dock(self, title: str, widget: QWidget, area) -> QDockWidget:
         dock = QDockWidget(title, self)
@@ -363,7 +377,8 @@ class MainWindow(QMainWindow):
         units_menu = view_menu.addMenu("&Units")
         units_menu.addActions([self.si_action, self.us_action])
         view_menu.addSeparator()
-        for dock in (self.line_strip_dock, self.feed_dock, self.card_dock, self.key_dock, self.checks_dock):
+        for dock in (self.line_strip_dock, self.feed_dock, self.card_dock, self.alternatives_dock, self.key_dock,
+                     self.checks_dock):
             view_menu.addAction(dock.toggleViewAction())
         view_menu.addAction(self.banner_bar.toggleViewAction())
 
@@ -415,12 +430,12 @@ class MainWindow(QMainWindow):
     def _on_result(self, result) -> None:
         if self.first_result_time is None:
             self.first_result_time = time.perf_counter()
-        ms = self.doc.last_solve_seconds * 1000.0
         n_checks = len(result.checks)
         self.solve_status.setStyleSheet("")
         self.solve_status.setText(
-            f"Solved '{result.name}' — {result.cells} cells in {ms:.0f} ms · "
+            f"Solved '{result.name}' ({result.cells} cells) · "
             f"{n_checks} finding{'s' if n_checks != 1 else ''} in Checks")
+        self.solve_status.setToolTip(f"Last solve took {self.doc.last_solve_seconds * 1000.0:.0f} ms")
 
     def _on_solve_failed(self, message: str) -> None:
         self.solve_status.setStyleSheet("color: #B24A00;")

@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import datetime as _dt
 import html
+import dataclasses
 import math
 import os
 from dataclasses import dataclass, field
@@ -103,7 +104,7 @@ ASSUMPTIONS: tuple[str, ...] = (
     "temperature; a buried pipe loses heat by conduction to a ground surface at the soil temperature.",
     "Fittings act through loss coefficients K on the local velocity head; elevation changes act "
     "through the local density.",
-    "Pump power is the hydraulic power, the local volume flow times the pressure drop summed along "
+    "Hydraulic power is the local volume flow times the pressure drop summed along "
     "the line; divide by the pump efficiency for shaft power.",
     "Correlations are used within their published ranges where possible; a check is raised when a "
     "state falls outside a correlation's range or in transitional flow.",
@@ -571,6 +572,9 @@ def alternative_chart(result: Result, system: str, targets=None, limits=None) ->
             hlines.append(HLine(float(tq(targets.outlet_temperature_max_K)), "target: outlet max", limit_colour))
     if limits is not None and limits.max_inner_wall_temperature_K is not None:
         hlines.append(HLine(float(tq(limits.max_inner_wall_temperature_K)), "limit: max wall", limit_colour))
+    if limits is not None and limits.min_bulk_temperature_K is not None:
+        hlines.append(HLine(float(tq(limits.min_bulk_temperature_K)), "limit: min bulk", limit_colour))
+    hlines = _merge_close_lines(hlines)
     press = Series("Pressure", x, units.to_display(np.asarray(p.pressure_Pa, dtype=float), "pressure", system), CURVE_COLOURS["pressure"], "solid", 1.5)
     spans = [
         (units.to_display(s.x_start_m, "length", system), units.to_display(s.x_end_m, "length", system), s.name)
@@ -970,24 +974,31 @@ def _alternative_section(doc: _Html, project: Project, o: _Outcome, system: str,
         ("Pressure drop", fmt(r.pressure_drop_Pa, "pressure_difference", system)),
         ("  friction / fittings", f"{fmt(r.pressure_drop.friction_Pa, 'pressure_difference', system)} / {fmt(r.pressure_drop.fittings_Pa, 'pressure_difference', system)}"),
         ("  elevation / acceleration", f"{fmt(r.pressure_drop.elevation_Pa, 'pressure_difference', system)} / {fmt(r.pressure_drop.acceleration_Pa, 'pressure_difference', system)}"),
-        ("Pump power (hydraulic)", fmt(r.pump_power_W, "power", system)),
+        ("Hydraulic power (flow × Δp)", fmt(r.pump_power_W, "power", system)),
         ("Mass flow", fmt(r.mass_flow_kg_per_s, "mass_flow", system)),
         ("Residence time", fmt(r.residence_time_s, "time", system)),
-    ]
-    right = [
-        ("Heat duty to fluid", fmt(r.duty_W, "power", system)),
-        ("Heat input (tracing)", fmt(r.heat_input_W, "power", system)),
-        ("Heat loss to surroundings", fmt(r.heat_loss_W, "power", system)),
-        ("Max inner-wall temperature", f"{fmt(r.max_inner_wall_temperature_K, 'temperature', system)} at {fmt(r.max_inner_wall_position_m, 'length', system)}"),
-        ("Min inner-wall temperature", f"{fmt(r.min_inner_wall_temperature_K, 'temperature', system)} at {fmt(r.min_inner_wall_position_m, 'length', system)}"),
-        ("Max outer-surface temperature", f"{fmt(r.max_outer_surface_temperature_K, 'temperature', system)} at {fmt(r.max_outer_surface_position_m, 'length', system)}"),
         ("Velocity range", f"{fmt(r.velocity_range_m_per_s[0], 'velocity', system, 3)} – {fmt(r.velocity_range_m_per_s[1], 'velocity', system, 3)}"),
         ("Reynolds number range", f"{fmt(r.reynolds_range[0], 'dimensionless', system, 3)} – {fmt(r.reynolds_range[1], 'dimensionless', system, 3)}"),
     ]
+    right = [
+        ("Heat duty to fluid", fmt(r.duty_W, "power", system)),
+        ("Heat input", fmt(r.heat_input_W, "power", system)),
+        ("  tracing / jackets and heated walls",
+         f"{fmt(r.heat_input_tracing_W, 'power', system)} / {fmt(r.heat_input_media_W, 'power', system)}"),
+        (("Heat loss to ambient", fmt(r.heat_loss_W, "power", system)) if r.heat_loss_W >= 0 else
+         ("Heat gained from ambient", fmt(-r.heat_loss_W, "power", system))),
+        ("Max inner-wall temperature", f"{fmt(r.max_inner_wall_temperature_K, 'temperature', system)} at {fmt(r.max_inner_wall_position_m, 'length', system)}"),
+        ("Min inner-wall temperature", f"{fmt(r.min_inner_wall_temperature_K, 'temperature', system)} at {fmt(r.min_inner_wall_position_m, 'length', system)}"),
+        ("Max outer-surface temperature (in air)", _at(r.max_outer_surface_temperature_K, r.max_outer_surface_position_m, system)),
+        ("Min outer-surface temperature (in air)", _at(r.min_outer_surface_temperature_K, r.min_outer_surface_position_m, system)),
+    ]
+    left += [("", "")] * (len(right) - len(left))
+    right += [("", "")] * (len(left) - len(right))
     rows = []
     for (a, av), (b, bv) in zip(left, right):
         la = f"&nbsp;&nbsp;&nbsp;{esc(a.strip())}" if a.startswith(" ") else esc(a)
-        rows.append([la, esc(av), esc(b), esc(bv)])
+        lb = f"&nbsp;&nbsp;&nbsp;{esc(b.strip())}" if b.startswith(" ") else esc(b)
+        rows.append([la, esc(av), lb, esc(bv)])
     doc.table(["Key figure", "Value", "Key figure", "Value"], rows, num_cols=(1, 3), widths=[24, 22, 27, 27])
     doc.add(
         f'<p class="small muted">Energy balance: heat input − losses − duty = {esc(fmt(kf["energy_balance_residual_W"], "power", system))} '
@@ -1364,3 +1375,26 @@ def write_report(
             pass
         raise
     return path
+
+
+def _at(value_K: float, position_m: float, system: str) -> str:
+    """'22.2 °C at 185.0 m', or a dash when the figure does not apply (no segment in air)."""
+    if value_K is None or not math.isfinite(value_K):
+        return "— (no segment in air)"
+    return f"{fmt(value_K, 'temperature', system)} at {fmt(position_m, 'length', system)}"
+
+
+def _merge_close_lines(lines: list) -> list:
+    """Lines at (nearly) the same value share one label, so labels never print over each other."""
+    merged: list = []
+    for line in lines:
+        for i, other in enumerate(merged):
+            if abs(other.y - line.y) < 1e-6 * max(1.0, abs(line.y)):
+                kind_a, _, what_a = other.label.partition(": ")
+                kind_b, _, what_b = line.label.partition(": ")
+                label = f"{kind_a} and {kind_b}: {what_a}" if what_a == what_b else f"{other.label}; {line.label}"
+                merged[i] = dataclasses.replace(other, label=label)
+                break
+        else:
+            merged.append(line)
+    return merged

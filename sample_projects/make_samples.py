@@ -76,20 +76,20 @@ def glycol_alt(name, mm, desc):
         segments=[
             Segment(name="Plant room riser", length_m=14, pipe=Pipe(nps="3", schedule="40"), elevation_change_m=8.0,
                     insulation=[foam(mm)], fittings=[elbows(3), Fitting(kind="ball_valve")],
-                    surroundings=StillAir(temperature_K=C(30), emissivity=0.9)),
+                    surroundings=StillAir(temperature_K=C(30), emissivity=0.9, relative_humidity=0.80)),
             Segment(name="Packing hall high level", length_m=120, pipe=Pipe(nps="3", schedule="40"),
                     insulation=[foam(mm)], fittings=[elbows(6), Fitting(kind="tee_through_run", count=4)],
-                    surroundings=StillAir(temperature_K=C(32), emissivity=0.9)),
+                    surroundings=StillAir(temperature_K=C(32), emissivity=0.9, relative_humidity=0.80)),
             Segment(name="Drop to chiller", length_m=16, pipe=Pipe(nps="3", schedule="40"), elevation_change_m=-8.0,
                     insulation=[foam(mm)], fittings=[elbows(3), Fitting(kind="check_valve_swing")],
-                    surroundings=StillAir(temperature_K=C(26), emissivity=0.9)),
+                    surroundings=StillAir(temperature_K=C(26), emissivity=0.9, relative_humidity=0.80)),
         ],
         limits=Limits())
 projects["glycol_return"] = Project(
     name="Fernbrook Works — chilled glycol return, packing hall",
     description="Invented demo scenario: 30 % ethylene glycol returning from the packing hall coolers to the "
                 "chiller through a warm hall at high level. How much heat does the return pick up, and is the "
-                "insulation thick enough that its surface stays above the hall dew point?",
+                "insulation thick enough that its surface stays above the dew point of the humid hall air?",
     prepared_by="Utilities engineering (demo)", revision="B",
     alternatives=[glycol_alt("Foam 19 mm", 19, "Flexible elastomeric foam, 19 mm."),
                   glycol_alt("Foam 32 mm", 32, "Flexible elastomeric foam, 32 mm.")],

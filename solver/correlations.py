@@ -103,6 +103,10 @@ METHODS: dict[str, str] = {
         "Churchill, S. W. (1977) A comprehensive correlating equation for laminar, assisting, forced "
         "and free convection. AIChE J. 23, 10–16: Nu = (Nu_F³ + Nu_N³)^(1/3), an approximation"
     ),
+    "dew_point": (
+        "Magnus formula with the constants of Alduchov, O. A. & Eskridge, R. E. (1996) Improved Magnus form "
+        "approximation of saturation vapor pressure. J. Appl. Meteorol. 35, 601–609"
+    ),
     "radiation": "Grey-body exchange with large surroundings, h_r = εσ(Ts² + T∞²)(Ts + T∞) (closed form)",
     "cylinder_wall": "Conduction through a cylindrical wall, R' = ln(Do/Di)/(2πk) (closed form)",
     "buried_cylinder": (
@@ -677,3 +681,30 @@ def out_of_range(method: str, **groups) -> np.ndarray:
         values = np.asarray(values, dtype=float)
         mask = mask | ~((values >= low) & (values <= high))
     return mask
+
+
+def dew_point_magnus(T_air_K, relative_humidity):
+    r"""Dew point of moist air, Magnus formula (Alduchov & Eskridge 1996 constants).
+
+    .. math::
+        \gamma = \ln(\varphi) + \frac{a\,t}{b + t},\qquad
+        t_d = \frac{b\,\gamma}{a - \gamma},\qquad a = 17.625,\ b = 243.04\ ^\circ C
+
+    Parameters
+    ----------
+    T_air_K : array_like — air temperature [K]
+    relative_humidity : array_like — relative humidity φ over water [-], 0 < φ <= 1
+
+    Returns
+    -------
+    T_dew : ndarray — dew point [K]
+
+    Validity
+    --------
+    −40 °C <= t <= 50 °C, saturation vapour pressure within 0.4 % (Alduchov & Eskridge 1996).
+    """
+    t = np.asarray(T_air_K, dtype=float) - 273.15
+    phi = _require_positive("relative_humidity", relative_humidity)
+    a, b = 17.625, 243.04
+    gamma = np.log(np.minimum(phi, 1.0)) + a * t / (b + t)
+    return b * gamma / (a - gamma) + 273.15

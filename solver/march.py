@@ -54,7 +54,7 @@ COLD_CONTACT_K = 263.15  # −10 °C, cold-contact injury threshold (common prac
 
 ASSUMPTIONS = [
     "Steady, single-phase flow; no axial heat conduction in fluid or wall.",
-    "Kinetic and potential energy neglected in the energy balance (typically well under 0.01 K).",
+    "Potential energy is in the energy balance; kinetic energy is neglected (typically well under 0.01 K).",
     "Properties evaluated at the local bulk temperature and pressure; no wall-viscosity correction.",
     "Hydrodynamic and thermal entry lengths counted from the line inlet.",
     "Fittings losses spread evenly over the length of their segment.",
@@ -188,10 +188,27 @@ def solve(
         return _solve(alternative, refine, cells_per_segment, max_iterations, tolerance_K)
     except PropertyRangeError as exc:
         raise SolverError(f"fluid property out of range: {exc}", alternative=alternative.name) from None
+    except InputError as exc:
+        raise _located_input_error(alternative, exc) from None
     except CalorunError:
         raise
     except (FloatingPointError, ZeroDivisionError, OverflowError) as exc:  # defensive: never a raw traceback
         raise SolverError(f"numerical failure ({exc})", alternative=alternative.name) from None
+
+
+def _located_input_error(alt: Alternative, exc: InputError) -> InputError:
+    """Say which alternative and segment (by number from 1 and by name) an input problem is in."""
+    import re
+
+    where = f"alternative {alt.name!r}"
+    m = re.match(r"segments\[(\d+)\]", exc.field)
+    if m and int(m.group(1)) < len(alt.segments):
+        k = int(m.group(1))
+        where += f", segment {k + 1} {alt.segments[k].name!r}"
+    located = InputError(exc.field, exc.value, exc.reason)
+    located.args = (f"{where}: {exc}",)
+    located.alternative = alt.name
+    return located
 
 
 def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: int, tol: float) -> Result:
@@ -372,7 +389,8 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
         Q_cell = mcp * dT_heat  # heat to fluid in each cell [W]
         h_nodes = np.empty(n + 1)
         h_nodes[0] = h0
-        np.cumsum(Q_cell / m_dot, out=h_nodes[1:])
+        # energy: d(h + g z) = dQ / m, so a liquid running downhill does not seem to cool
+        np.cumsum(Q_cell / m_dot - GRAVITY * dz, out=h_nodes[1:])
         h_nodes[1:] += h0
 
         # pressure: friction + fittings + elevation + acceleration (density from the previous iterate)
@@ -440,21 +458,28 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
         )
 
     # ---- final cell quantities consistent with the converged state
-    q_fluid_mid = Q_cell / dx  # W/m into the fluid (cell mean)
-    q_loss_cell = q_in * dx - Q_cell  # W to the surroundings per cell
-    heat_input_total = float(np.sum(q_in * dx))
+    # Heat input = tracing + heat from heating or cooling media (jacket, fixed wall; signed);
+    # heat loss = heat to the ambient (air, soil). duty = heat input − heat loss.
+    media = (kinds == "jacket") | (kinds == "fixed_wall")
+    tracing_cell = q_in * dx
+    media_cell = np.where(media, Q_cell - tracing_cell, 0.0)
+    q_loss_cell = np.where(media, 0.0, tracing_cell - Q_cell)  # W to the ambient per cell
+    heat_tracing = float(np.sum(tracing_cell))
+    heat_media = float(np.sum(media_cell))
+    heat_input_total = heat_tracing + heat_media
     duty = float(np.sum(Q_cell))
-    heat_loss = heat_input_total - duty
+    heat_loss = float(np.sum(q_loss_cell))
     h_out = float(fluid.enthalpy(np.array([T[-1]]), np.array([p[-1]]))[0])
-    residual = m_dot * (h_nodes[-1] - h0) - duty
+    potential = m_dot * GRAVITY * float(np.sum(dz))
+    residual = m_dot * (h_nodes[-1] - h0) + potential - duty
     # the enthalpy re-evaluated from (T, p) at the outlet checks the inversion, not just the sum
-    residual = max(residual, m_dot * (h_out - h0) - duty, key=abs)
+    residual = max(residual, m_dot * (h_out - h0) + potential - duty, key=abs)
 
     # ---- node profiles, per segment with the boundary node repeated (wall values jump there)
     prof, spans = _node_profiles(
         setups, seg_of_cell, x_node, T, p, dx, D, area, rel_rough, boundary_cells, fluid, m_dot, r_wall, r_ins,
         r_fixed_out, film_mask, air, t_inf, d_outer, wind_speed, emissivity, q_in, T_surface, r_a, u_prime,
-        Q_cell, q_loss_cell, dp_friction + dp_fittings + dp_elevation + dp_accel,
+        Q_cell, q_loss_cell, tracing_cell + media_cell, dp_friction + dp_fittings + dp_elevation + dp_accel,
     )
 
     breakdown = PressureDropBreakdown(
@@ -468,12 +493,12 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
     i_wmax, i_wmin = int(np.argmax(wall)), int(np.argmin(wall))
     surf_exposed = _exposed_mask(setups, prof)
     if surf_exposed.any():
-        surf_e = np.where(surf_exposed, surf, -np.inf)
-        i_smax = int(np.argmax(surf_e))
-        smax = float(surf[i_smax])
-        smax_x = float(prof.x_m[i_smax])
+        i_smax = int(np.argmax(np.where(surf_exposed, surf, -np.inf)))
+        i_smin = int(np.argmin(np.where(surf_exposed, surf, np.inf)))
+        smax, smax_x = float(surf[i_smax]), float(prof.x_m[i_smax])
+        smin, smin_x = float(surf[i_smin]), float(prof.x_m[i_smin])
     else:
-        smax, smax_x = math.nan, math.nan
+        smax = smax_x = smin = smin_x = math.nan
     rho_mean_cells = rho
     volume_flow_cells = m_dot / rho_mean_cells
     pump_power = float(np.sum(volume_flow_cells * (dp_friction + dp_fittings + dp_elevation + dp_accel)))
@@ -481,6 +506,10 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
 
     checks = _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_surface, film_mask,
                      t_inf, d_outer, wind_speed, air)
+    checks += _no_flow_checks(alt, fluid, setups, seg_of_cell, x_mid, q_in, t_inf, r_out_total)
+    checks += _dew_point_checks(setups, prof)
+    checks.sort(key=lambda ch: ({"danger": 0, "warning": 1, "info": 2}[ch.severity],
+                                ch.x_m if ch.x_m is not None else 0.0))
     methods = _methods_used(Re, film_mask, kinds, wind_speed, has_fittings)
     return Result(
         name=alt.name,
@@ -496,6 +525,8 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
         pressure_drop=breakdown,
         duty_W=duty,
         heat_input_W=heat_input_total,
+        heat_input_tracing_W=heat_tracing,
+        heat_input_media_W=heat_media,
         heat_loss_W=heat_loss,
         energy_balance_residual_W=float(residual),
         max_inner_wall_temperature_K=float(wall[i_wmax]),
@@ -504,6 +535,8 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
         min_inner_wall_position_m=float(prof.x_m[i_wmin]),
         max_outer_surface_temperature_K=smax,
         max_outer_surface_position_m=smax_x,
+        min_outer_surface_temperature_K=smin,
+        min_outer_surface_position_m=smin_x,
         pump_power_W=pump_power,
         residence_time_s=residence,
         velocity_range_m_per_s=(float(np.min(velocity)), float(np.max(velocity))),
@@ -626,7 +659,7 @@ def _air_film(air, t_surface, t_air, d_outer, wind_speed, emissivity):
 
 def _node_profiles(setups, seg_of_cell, x_node, T, p, dx, D, area, rel_rough, boundary, fluid, m_dot, r_wall,
                    r_ins, r_fixed_out, film_mask, air, t_inf, d_outer, wind_speed, emissivity, q_in, T_surface,
-                   r_a_cells, u_cells, Q_cell, q_loss_cell, dp_cell):
+                   r_a_cells, u_cells, Q_cell, q_loss_cell, input_cell, dp_cell):
     """Values at nodes. Each segment contributes its own nodes, so wall values can jump at a boundary."""
     node_index, cell_index = [], []
     start_node = 0
@@ -649,7 +682,8 @@ def _node_profiles(setups, seg_of_cell, x_node, T, p, dx, D, area, rel_rough, bo
     Re = m_dot * Dn / (An * pr.mu)
     Pr = pr.cp * pr.mu / pr.k
     f = correlations.friction_factor(Re, rel_rough[ci])
-    x_over_d = np.maximum(x, 1e-6 * Dn) / Dn
+    # the local coefficient is unbounded at x = 0; report the inlet node at half the first cell
+    x_over_d = np.maximum(x, 0.5 * dx[0]) / Dn
     Nu = _nusselt_inside(Re, Pr, f, x_over_d, boundary if isinstance(boundary, str) else boundary[ci], rel_rough[ci])
     h_i = Nu * pr.k / Dn
     r_in = 1.0 / (h_i * math.pi * Dn)
@@ -676,7 +710,7 @@ def _node_profiles(setups, seg_of_cell, x_node, T, p, dx, D, area, rel_rough, bo
         cells = _cells_of(seg_of_cell, s.index)
         k0, k1 = offset, offset + nodes.size - 1
         duty = float(np.sum(Q_cell[cells]))
-        heat_in = float(np.sum(q_in[cells] * dx[cells]))
+        heat_in = float(np.sum(input_cell[cells]))
         spans.append(SegmentSpan(
             index=s.index, name=s.name, x_start_m=float(x_node[nodes[0]]), x_end_m=float(x_node[nodes[-1]]),
             inner_diameter_m=s.inner_diameter_m, outer_diameter_m=s.outer_diameter_m, node_start=k0, node_end=k1,
@@ -934,6 +968,79 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
     return out
 
 
+def _no_flow_checks(alt, fluid, setups, seg_of_cell, x_mid, q_in, t_inf, r_out_total) -> list[Check]:
+    """Where the line would settle if the flow stopped (common practice in tracing design).
+
+    With no flow the fluid in a cell comes to the temperature at which the heat input
+    balances the loss through the outside path: T = T∞ + q'_in · R_o (per unit length).
+    Compared with the freezing point and the alternative's minimum bulk temperature. The
+    outer film is taken at its flowing value, a fair estimate for insulated lines.
+    """
+    if fluid.compressible:
+        return []
+    limits = []
+    t_freeze = fluid.freezing_temperature(alt.feed.inlet_pressure_Pa)
+    if t_freeze is not None and math.isfinite(t_freeze):
+        limits.append((t_freeze, "the freezing point"))
+    if alt.limits.min_bulk_temperature_K is not None:
+        limits.append((alt.limits.min_bulk_temperature_K, "the minimum bulk temperature"))
+    if not limits:
+        return []
+    limit_T, limit_name = max(limits)
+    cold, hot = [], []  # (t_eq, segment, cell) per segment
+    t_max_wall = alt.limits.max_inner_wall_temperature_K
+    for s in setups:
+        if s.kind not in ("still_air", "wind", "buried"):
+            continue
+        cells = _cells_of(seg_of_cell, s.index)
+        t_eq = t_inf[cells] + q_in[cells] * r_out_total[cells]
+        i = int(np.argmin(t_eq))
+        if t_eq[i] < limit_T:
+            cold.append((float(t_eq[i]), s, int(cells[i])))
+        j = int(np.argmax(t_eq))
+        if t_max_wall is not None and q_in[cells][j] > 0 and t_eq[j] > t_max_wall:
+            hot.append((float(t_eq[j]), s, int(cells[j])))
+    out = []
+    if cold:
+        t_eq, s, c = min(cold, key=lambda item: item[0])
+        needed = max(max((limit_T - t_inf[cc]) / r_out_total[cc] for _, _, cc in cold), 0.0)
+        others = f" {len(cold) - 1} more segment(s) too." if len(cold) > 1 else ""
+        out.append(Check(
+            "warning", "NO_FLOW_HOLD",
+            f"If the flow stops, the line here settles at about {t_eq - 273.15:.1f} °C (heat input "
+            f"{q_in[c]:.0f} W/m), below {limit_name} ({limit_T - 273.15:.1f} °C).{others} About {needed:.0f} W/m of "
+            "tracing would hold the limit at no flow; or provide drain-down (common practice in tracing design).",
+            segment=s.index, x_m=float(x_mid[c])))
+    if hot:
+        t_eq, s, c = max(hot, key=lambda item: item[0])
+        out.append(Check(
+            "warning", "NO_FLOW_OVERHEAT",
+            f"If the flow stops, the tracing here heats the line to about {t_eq - 273.15:.1f} °C, above the "
+            f"wall-temperature limit ({t_max_wall - 273.15:.1f} °C). Use self-limiting tracing or a controller "
+            "(common practice in tracing design).", segment=s.index, x_m=float(x_mid[c])))
+    return out
+
+
+def _dew_point_checks(setups, prof: Profile) -> list[Check]:
+    """Moisture condenses on an outer surface colder than the dew point of the surrounding air."""
+    out = []
+    for s, (a, b) in zip(setups, prof_spans(setups, prof)):
+        rh = getattr(s.surroundings, "relative_humidity", None)
+        if rh is None or rh <= 0.0:
+            continue
+        t_dew = float(correlations.dew_point_magnus(s.medium_temperature_K, rh))
+        seg_ts = prof.outer_surface_temperature_K[a:b + 1]
+        k = int(np.argmin(seg_ts))
+        if seg_ts[k] < t_dew:
+            out.append(Check(
+                "warning", "SURFACE_CONDENSATION",
+                f"Outer surface at {seg_ts[k] - 273.15:.1f} °C is below the dew point of the surrounding air "
+                f"({t_dew - 273.15:.1f} °C at {100 * rh:.0f} % relative humidity): moisture condenses, wetting the "
+                "insulation and corroding the pipe under it. Thicken the insulation or add a vapour barrier.",
+                segment=s.index, x_m=float(prof.x_m[a + k])))
+    return out
+
+
 def _methods_used(Re, film_mask, kinds, wind_speed, has_fittings) -> list[str]:
     m = correlations.METHODS
     regime = correlations.flow_regime(Re)
@@ -955,6 +1062,7 @@ def _methods_used(Re, film_mask, kinds, wind_speed, has_fittings) -> list[str]:
         used.append(f"Mixed convection: {m['mixed_convection']}")
     if (kinds == "buried").any():
         used.append(f"Buried pipe: {m['buried_cylinder']}")
+    used.append(f"Dew point of surrounding air (when humidity is given): {m['dew_point']}")
     if any(has_fittings):
         used.append(f"Fittings loss coefficients: {fittings_mod._DARBY}; {fittings_mod._HOOPER}; {fittings_mod._CRANE}")
     used.append("Fluid properties: CoolProp (Bell et al. 2014) or user table")

@@ -204,6 +204,9 @@ class StillAir(_Model):
     kind: Literal["still_air"] = "still_air"
     temperature_K: Temperature = 293.15
     emissivity: Emissivity = 0.9
+    relative_humidity: Optional[float] = Field(
+        None, ge=0.0, le=1.0, description="0–1; when given, cold surfaces are checked against the dew point"
+    )
     film_coefficient_W_per_m2K: Optional[PositiveFloat] = Field(
         None, description="outer film coefficient entered directly (convection + radiation); None = computed"
     )
@@ -216,6 +219,9 @@ class Wind(_Model):
     temperature_K: Temperature = 283.15
     wind_speed_m_per_s: PositiveFloat = 5.0
     emissivity: Emissivity = 0.9
+    relative_humidity: Optional[float] = Field(
+        None, ge=0.0, le=1.0, description="0–1; when given, cold surfaces are checked against the dew point"
+    )
     film_coefficient_W_per_m2K: Optional[PositiveFloat] = None
 
 

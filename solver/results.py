@@ -93,8 +93,8 @@ class SegmentSpan:
     node_end: int  # inclusive node index of the segment outlet
     fittings_K: float  # sum of loss coefficients (count included)
     duty_W: float
-    heat_input_W: float
-    heat_loss_W: float
+    heat_input_W: float  # tracing + heat from heating/cooling media
+    heat_loss_W: float  # to the ambient
     pressure_drop_Pa: float
 
 
@@ -128,8 +128,10 @@ class Result:
     outlet_pressure_Pa: float
     pressure_drop: PressureDropBreakdown
     duty_W: float
-    heat_input_W: float
-    heat_loss_W: float
+    heat_input_W: float  # tracing + heat from heating/cooling media (signed)
+    heat_input_tracing_W: float
+    heat_input_media_W: float  # from jackets and fixed-temperature walls; negative when they cool
+    heat_loss_W: float  # to the ambient (air, soil); negative when the ambient heats the line
     energy_balance_residual_W: float
     max_inner_wall_temperature_K: float
     max_inner_wall_position_m: float
@@ -137,6 +139,8 @@ class Result:
     min_inner_wall_position_m: float
     max_outer_surface_temperature_K: float
     max_outer_surface_position_m: float
+    min_outer_surface_temperature_K: float  # over segments in air only (NaN when none)
+    min_outer_surface_position_m: float
     pump_power_W: float
     residence_time_s: float
     velocity_range_m_per_s: tuple[float, float]
@@ -166,6 +170,8 @@ class Result:
             "pressure_drop_acceleration_Pa": self.pressure_drop.acceleration_Pa,
             "duty_W": self.duty_W,
             "heat_input_W": self.heat_input_W,
+            "heat_input_tracing_W": self.heat_input_tracing_W,
+            "heat_input_media_W": self.heat_input_media_W,
             "heat_loss_W": self.heat_loss_W,
             "energy_balance_residual_W": self.energy_balance_residual_W,
             "max_inner_wall_temperature_K": self.max_inner_wall_temperature_K,
@@ -174,6 +180,8 @@ class Result:
             "min_inner_wall_position_m": self.min_inner_wall_position_m,
             "max_outer_surface_temperature_K": self.max_outer_surface_temperature_K,
             "max_outer_surface_position_m": self.max_outer_surface_position_m,
+            "min_outer_surface_temperature_K": self.min_outer_surface_temperature_K,
+            "min_outer_surface_position_m": self.min_outer_surface_position_m,
             "pump_power_W": self.pump_power_W,
             "residence_time_s": self.residence_time_s,
             "min_velocity_m_per_s": self.velocity_range_m_per_s[0],
@@ -185,7 +193,9 @@ class Result:
 
     def to_dict(self, include_profile: bool = True) -> dict:
         out: dict = {"name": self.name, "fluid": self.fluid_label, "cells": self.cells}
-        out.update(self.key_figures())
+        # JSON has no NaN: a figure that does not apply (e.g. no surface in air) is null
+        out.update({k: (None if isinstance(v, float) and not np.isfinite(v) else v)
+                    for k, v in self.key_figures().items()})
         out["segments"] = [
             {
                 "name": s.name,

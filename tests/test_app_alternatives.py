@@ -160,6 +160,7 @@ def sbs(qtbot, doc):
     doc.push  # the document exists
     p = SideBySidePanel(doc)
     qtbot.addWidget(p)
+    p.show()  # the panel solves in the background only while it is shown
     p.solve_all_now()
     return p
 

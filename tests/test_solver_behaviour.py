@@ -163,9 +163,17 @@ def test_energy_balance_closes(name):
     assert sum(s.heat_loss_W for s in r.segments) == pytest.approx(r.heat_loss_W, abs=1e-9 * scale)
     assert sum(s.pressure_drop_Pa for s in r.segments) == pytest.approx(r.pressure_drop_Pa, rel=1e-9)
     assert r.pressure_drop.total_Pa == pytest.approx(r.pressure_drop_Pa, rel=1e-9)
-    # heat input is q' L per segment (closed form)
+    # tracing heat input is q' L per segment (closed form); jackets and fixed walls add the heat they give
     alt = CASES[name]()
-    assert r.heat_input_W == pytest.approx(sum(s.heat_input_W_per_m * s.length_m for s in alt.segments), rel=1e-12)
+    assert r.heat_input_tracing_W == pytest.approx(
+        sum(s.heat_input_W_per_m * s.length_m for s in alt.segments), rel=1e-12)
+    assert r.heat_input_W == pytest.approx(r.heat_input_tracing_W + r.heat_input_media_W, rel=1e-12)
+    media = [s for s in r.segments if alt.segments[s.index].surroundings.kind in ("jacket", "fixed_wall")]
+    assert sum(s.heat_input_W for s in media) == pytest.approx(
+        r.heat_input_media_W + sum(alt.segments[s.index].heat_input_W_per_m * alt.segments[s.index].length_m
+                                   for s in media), abs=1e-9 * scale)
+    # no heat is "lost" to a jacket or fixed wall: it is counted as (signed) heat input
+    assert all(s.heat_loss_W == 0.0 for s in media)
 
 
 @pytest.mark.parametrize("name", ["water traced", "nitrogen in wind", "steam fixed wall", "buried"])

@@ -187,6 +187,8 @@ class SideBySidePanel(QWidget):
         return jobs
 
     def _start_solve(self) -> None:
+        if not self.isVisible():
+            return  # hidden: solve when shown (showEvent), so edits elsewhere stay quick
         if self._running:
             self._pending = True
             return
