@@ -160,6 +160,15 @@ class Pipe(_Model):
         if self.bore == "nps":
             if not self.nps or not self.schedule:
                 raise ValueError(f"bore 'nps' needs nps and schedule, got nps={self.nps!r}, schedule={self.schedule!r}")
+            # an NPS or schedule that ASME B36.10M/B36.19M does not list is refused on entry,
+            # so a file or an edit with one never reaches the solver
+            from solver.catalogue import pipe_dimensions  # late: the catalogue imports this module
+            from solver.errors import InputError
+
+            try:
+                pipe_dimensions(self.nps, self.schedule)
+            except InputError as exc:
+                raise ValueError(f"{exc.field.removeprefix('pipe.')}: {exc.reason}, got {exc.value!r}") from None
         else:
             if self.inner_diameter_m is None:
                 raise ValueError("bore 'diameter' needs inner_diameter_m, got None")

@@ -159,11 +159,14 @@ def test_solver_error_emits_solve_failed_and_keeps_result(doc, qtbot):
     with qtbot.waitSignal(doc.result_ready, timeout=30000):
         doc.request_solve()
     good = doc.result
-    # NPS 7 is not in ASME B36.10M (sizes go 6, 8): the model accepts the string, the solver refuses it
+    # a pipe centreline 20 mm deep cannot hold a pipe of 60.3 mm OD (NPS 2, ASME B36.10M) under ground:
+    # the model accepts the depth, the solver refuses it and says which field
+    from solver.model import Buried
+
     with qtbot.waitSignal(doc.solve_failed, timeout=30000) as blocker:
-        doc.push(C.SetSegmentField(doc, 0, 1, "pipe.nps", "7"))
+        doc.push(C.SetSegmentField(doc, 0, 1, "surroundings", Buried(depth_m=0.02)))
     message = blocker.args[0]
-    assert "nps" in message and "7" in message
+    assert "depth_m" in message and "0.02" in message
     assert doc.result is good and doc.result_is_stale
 
 

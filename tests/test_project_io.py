@@ -316,3 +316,16 @@ def test_parse_does_not_mutate_input_dict():
     snapshot = copy.deepcopy(data)
     project_io.project_from_dict(data)
     assert data == snapshot
+
+
+def test_unknown_nps_and_schedule_are_refused_on_load_with_their_paths():
+    # ASME B36.10M lists no NPS 2-3/8 and no schedule 170 for NPS 2 (schedules of NPS 2: 5S ... XXS)
+    text = json.dumps({"format": "calorun-project", "schema_version": 1, "alternatives": [{"name": "A", "segments": [
+        {"name": "S1", "length_m": 50, "pipe": {"nps": "2-3/8", "schedule": "40"}},
+        {"name": "S2", "length_m": 5, "pipe": {"nps": "2", "schedule": "170"}}]}]})
+    with pytest.raises(ProjectFileError) as info:
+        parse_project(text)
+    problems = dict(info.value.problems)
+    assert "got '2-3/8'" in problems["alternatives[0].segments[0].pipe.nps"]
+    assert "got '170'" in problems["alternatives[0].segments[1].pipe.schedule"]
+    assert "40" in problems["alternatives[0].segments[1].pipe.schedule"]  # lists what exists
