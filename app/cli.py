@@ -148,7 +148,7 @@ def _headless(argv: list[str]) -> int:
 
 def key_figures_table(result, system: str = "SI") -> str:
     """A readable table of the key figures of one result, with units."""
-    from app.units import format_value as fv
+    from app.units import check_message, format_value as fv
 
     rows = [
         ("Fluid", result.fluid_label),
@@ -194,7 +194,7 @@ def key_figures_table(result, system: str = "SI") -> str:
         for c in result.checks:
             where = f" [segment {c.segment + 1}" if c.segment is not None else " ["
             where += f", x = {fv(c.x_m, 'length', system)}]" if c.x_m is not None else "]"
-            lines.append(f"    {c.severity.upper():7s} {c.code}: {c.message}{where}")
+            lines.append(f"    {c.severity.upper():7s} {c.code}: {check_message(c, system)}{where}")
     else:
         lines.append("  Checks: none")
     return "\n".join(lines)

@@ -1035,7 +1035,7 @@ def _alternative_section(doc: _Html, project: Project, o: _Outcome, system: str,
                 where.append(esc(alt.segments[c.segment].name))
             if c.x_m is not None and math.isfinite(c.x_m):
                 where.append(esc(fmt(c.x_m, "length", system)))
-            rows.append([f'<span style="color: {colour}; font-weight: bold;">{word}</span>', " at ".join(where) or "whole line", esc(c.message)])
+            rows.append([f'<span style="color: {colour}; font-weight: bold;">{word}</span>', " at ".join(where) or "whole line", esc(units.check_message(c, system))])
         doc.table(["Severity", "Where", "Finding"], rows, widths=[11, 20, 69], font_pt=7.5)
     else:
         doc.add('<p><span class="met">\u2713 No findings.</span> No check raised a warning or note for this alternative.</p>')

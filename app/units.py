@@ -274,3 +274,22 @@ def _parse_with_pint(raw: str, quantity: str, field: str, original: str) -> floa
     if not math.isfinite(si):
         raise UnitParseError(f"{field}: {original!r} is not a finite number")
     return float(si)
+
+
+_TOKEN_QUANTITY = {"T": "temperature", "dT": "temperature_difference", "v": "velocity", "q": "power_per_length"}
+
+
+def check_message(check, system: UnitSystem) -> str:
+    """A solver check's message in the chosen unit system (the SI text when it has no template)."""
+    if not getattr(check, "template", ""):
+        return check.message
+    from solver.results import render_message
+
+    def one(kind: str, value: float) -> str:
+        quantity = _TOKEN_QUANTITY[kind]
+        if quantity == "temperature_difference":
+            u = unit(quantity, system)
+            return f"{u.from_si(value):g} {u.label}"
+        return format_value(value, quantity, system, digits=3)
+
+    return render_message(check.template, one)

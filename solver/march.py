@@ -27,6 +27,7 @@ line inlet, fittings losses spread evenly over their segment.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass
 
@@ -45,7 +46,7 @@ from solver.model import (
     Wind,
 )
 from solver.properties import PureFluidModel, fluid_model
-from solver.results import Check, PressureDropBreakdown, Profile, Result, SegmentSpan
+from solver.results import Check, PressureDropBreakdown, Profile, Result, SegmentSpan, render_message
 
 GRAVITY = 9.80665  # m/s², standard gravity (CGPM 1901)
 AMBIENT_PRESSURE_PA = 101_325.0  # air around the line, standard atmosphere
@@ -510,6 +511,8 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
     checks += _dew_point_checks(setups, prof)
     checks.sort(key=lambda ch: ({"danger": 0, "warning": 1, "info": 2}[ch.severity],
                                 ch.x_m if ch.x_m is not None else 0.0))
+    checks = [dataclasses.replace(ch, message=render_message(ch.message, None), template=ch.message)
+              if "⟦" in ch.message else ch for ch in checks]
     methods = _methods_used(Re, film_mask, kinds, wind_speed, has_fittings)
     return Result(
         name=alt.name,
@@ -807,6 +810,23 @@ def _cells_of(seg_of_cell: np.ndarray, index: int) -> np.ndarray:
     return np.arange(lo, hi)
 
 
+def _T(t: float) -> str:
+    """A temperature [K] inside a check message, shown later in the reader's units."""
+    return f"⟦T:{float(t):.6f}⟧"
+
+
+def _dT(d: float) -> str:
+    return f"⟦dT:{float(d):.6f}⟧"
+
+
+def _v(v: float) -> str:
+    return f"⟦v:{float(v):.6f}⟧"
+
+
+def _q(q: float) -> str:
+    return f"⟦q:{float(q):.6f}⟧"
+
+
 def _first_where(mask: np.ndarray):
     idx = np.flatnonzero(mask)
     return int(idx[0]) if idx.size else None
@@ -829,7 +849,7 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
                 k = a + i
                 out.append(Check(severity, code, message_fn(s, k), segment=s.index, x_m=float(x[k])))
 
-    c = lambda t: f"{t - 273.15:.1f} °C"  # noqa: E731 - messages speak °C; the GUI converts locations only
+    c = _T  # temperatures in messages are tokens, shown in the user's units (see results.render_message)
 
     # boiling / flashing, or condensation for a gas
     p_in = alt.feed.inlet_pressure_Pa
@@ -846,7 +866,7 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
                                      "wall (fouling, vapour pockets). Lower the wall temperature or raise the pressure.")
             margin = has_sat & (Tm < tsat) & (Tm >= tsat - 5.0)
             per_segment(margin, "warning", "NEAR_BOILING",
-                        lambda s, k: f"Bulk within 5 K of boiling ({c(Tm[k])}, saturation {c(tsat[k])}).")
+                        lambda s, k: f"Bulk within {_dT(5.0)} of boiling ({c(Tm[k])}, saturation {c(tsat[k])}).")
         else:
             per_segment(has_sat & (Tm <= tsat), "danger", "CONDENSING_BULK",
                         lambda s, k: f"Bulk gas cools to saturation ({c(Tm[k])}): condensate forms; "
@@ -864,7 +884,7 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
                     lambda s, k: f"Inner wall at {c(Tw[k])} is below the freezing point {c(t_freeze)}: "
                                  "a frozen layer can build up on the wall.")
         per_segment((Tm > t_freeze) & (Tm <= t_freeze + 3.0), "warning", "NEAR_FREEZING",
-                    lambda s, k: f"Bulk within 3 K of the freezing point ({c(Tm[k])}, freezing {c(t_freeze)}).")
+                    lambda s, k: f"Bulk within {_dT(3.0)} of the freezing point ({c(Tm[k])}, freezing {c(t_freeze)}).")
 
     # user limits
     lim = alt.limits
@@ -896,13 +916,13 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
             if v.max() > 30.0:
                 i = sel[int(np.argmax(v))]
                 out.append(Check("warning", "VELOCITY_HIGH",
-                                 f"Gas velocity {v.max():.1f} m/s exceeds about 30 m/s (common practice): noise, erosion "
+                                 f"Gas velocity {_v(v.max())} exceeds about {_v(30.0)} (common practice): noise, erosion "
                                  "and a large pressure drop.", segment=s.index, x_m=float(x_mid[i])))
         else:
             if v.max() > 3.0:
                 i = sel[int(np.argmax(v))]
                 out.append(Check("warning", "VELOCITY_HIGH",
-                                 f"Liquid velocity {v.max():.2f} m/s exceeds about 3 m/s (common practice): erosion, noise "
+                                 f"Liquid velocity {_v(v.max())} exceeds about {_v(3.0)} (common practice): erosion, noise "
                                  "and pressure surge on valve closure.", segment=s.index, x_m=float(x_mid[i])))
             elif v.min() < 0.3 and not any(ch.code == "VELOCITY_LOW" for ch in out):
                 # one note for the line is enough: slow flow is usually a design choice, not a fault
@@ -910,7 +930,7 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
                 slow = sum(1 for t in setups if velocity[_cells_of(seg_of_cell, t.index)].min() < 0.3)
                 more = f" ({slow} of {len(setups)} segments)" if len(setups) > 1 else ""
                 out.append(Check("info", "VELOCITY_LOW",
-                                 f"Liquid velocity {v.min():.2f} m/s is below about 0.3 m/s{more} (common practice): "
+                                 f"Liquid velocity {_v(v.min())} is below about {_v(0.3)}{more} (common practice): "
                                  "settling, fouling and poor heat transfer.", segment=s.index, x_m=float(x_mid[i])))
 
     # surfaces people can touch
@@ -920,19 +940,19 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
             if seg_ts.max() >= BURN_THRESHOLD_K:
                 k = a + int(np.argmax(seg_ts))
                 out.append(Check("warning", "HOT_SURFACE",
-                                 f"Outer surface reaches {c(Ts[k])}: hot enough to burn on contact (above about 60 °C, "
+                                 f"Outer surface reaches {c(Ts[k])}: hot enough to burn on contact (above about {_T(BURN_THRESHOLD_K)}, "
                                  "common practice). Insulate or guard for personnel protection.",
                                  segment=s.index, x_m=float(x[k])))
             if seg_ts.min() <= COLD_CONTACT_K:
                 k = a + int(np.argmin(seg_ts))
                 out.append(Check("warning", "COLD_SURFACE",
                                  f"Outer surface falls to {c(Ts[k])}: cold enough to injure on contact (below about "
-                                 "−10 °C, common practice). Insulate or guard.", segment=s.index, x_m=float(x[k])))
+                                 f"{_T(COLD_CONTACT_K)}, common practice). Insulate or guard.", segment=s.index, x_m=float(x[k])))
         elif s.kind in ("jacket", "fixed_wall") and math.isfinite(s.medium_temperature_K):
             if s.medium_temperature_K >= BURN_THRESHOLD_K:
                 out.append(Check("warning", "HOT_JACKET",
                                  f"The jacket or heating medium is at {c(s.medium_temperature_K)}: its outer shell burns "
-                                 "on contact unless insulated (above about 60 °C, common practice).",
+                                 f"on contact unless insulated (above about {_T(BURN_THRESHOLD_K)}, common practice).",
                                  segment=s.index, x_m=float(x[a])))
             if alt.segments[s.index].insulation:
                 out.append(Check("info", "INSULATION_IGNORED",
@@ -1007,16 +1027,16 @@ def _no_flow_checks(alt, fluid, setups, seg_of_cell, x_mid, q_in, t_inf, r_out_t
         others = f" {len(cold) - 1} more segment(s) too." if len(cold) > 1 else ""
         out.append(Check(
             "warning", "NO_FLOW_HOLD",
-            f"If the flow stops, the line here settles at about {t_eq - 273.15:.1f} °C (heat input "
-            f"{q_in[c]:.0f} W/m), below {limit_name} ({limit_T - 273.15:.1f} °C).{others} About {needed:.0f} W/m of "
+            f"If the flow stops, the line here settles at about {_T(t_eq)} (heat input "
+            f"{_q(q_in[c])}), below {limit_name} ({_T(limit_T)}).{others} About {_q(needed)} of "
             "tracing would hold the limit at no flow; or provide drain-down (common practice in tracing design).",
             segment=s.index, x_m=float(x_mid[c])))
     if hot:
         t_eq, s, c = max(hot, key=lambda item: item[0])
         out.append(Check(
             "warning", "NO_FLOW_OVERHEAT",
-            f"If the flow stops, the tracing here heats the line to about {t_eq - 273.15:.1f} °C, above the "
-            f"wall-temperature limit ({t_max_wall - 273.15:.1f} °C). Use self-limiting tracing or a controller "
+            f"If the flow stops, the tracing here heats the line to about {_T(t_eq)}, above the "
+            f"wall-temperature limit ({_T(t_max_wall)}). Use self-limiting tracing or a controller "
             "(common practice in tracing design).", segment=s.index, x_m=float(x_mid[c])))
     return out
 
@@ -1034,8 +1054,8 @@ def _dew_point_checks(setups, prof: Profile) -> list[Check]:
         if seg_ts[k] < t_dew:
             out.append(Check(
                 "warning", "SURFACE_CONDENSATION",
-                f"Outer surface at {seg_ts[k] - 273.15:.1f} °C is below the dew point of the surrounding air "
-                f"({t_dew - 273.15:.1f} °C at {100 * rh:.0f} % relative humidity): moisture condenses, wetting the "
+                f"Outer surface at {_T(seg_ts[k])} is below the dew point of the surrounding air "
+                f"({_T(t_dew)} at {100 * rh:.0f} % relative humidity): moisture condenses, wetting the "
                 "insulation and corroding the pipe under it. Thicken the insulation or add a vapour barrier.",
                 segment=s.index, x_m=float(prof.x_m[a + k])))
     return out

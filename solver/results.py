@@ -6,6 +6,7 @@ report can all read it without any physics of their own.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 from typing import Literal, Optional
 
@@ -24,6 +25,7 @@ class Check:
     message: str
     segment: Optional[int] = None  # index into the alternative's segments
     x_m: Optional[float] = None  # position along the line from the inlet
+    template: str = ""  # the message with its values as unit tokens; see render_message
 
     def to_dict(self) -> dict:
         return {
@@ -33,6 +35,29 @@ class Check:
             "segment": self.segment,
             "x_m": self.x_m,
         }
+
+
+_TOKEN = re.compile(r"⟦(T|dT|v|q):([-+0-9.eE]+)⟧")
+
+
+def _si_text(kind: str, value: float) -> str:
+    if kind == "T":
+        return f"{value - 273.15:.1f} °C"
+    if kind == "dT":
+        return f"{value:g} K"
+    if kind == "v":
+        return f"{value:.1f} m/s" if abs(value) >= 10 else f"{value:.2f} m/s"
+    return f"{value:.0f} W/m"
+
+
+def render_message(template: str, formatter=None) -> str:
+    """A check message with its value tokens written out.
+
+    Tokens are ``⟦T:kelvin⟧``, ``⟦dT:kelvin⟧``, ``⟦v:m/s⟧``, ``⟦q:W/m⟧``. ``formatter(kind, value)``
+    writes one value (the GUI passes one for the user's unit system); the default writes SI.
+    """
+    fmt = formatter or _si_text
+    return _TOKEN.sub(lambda m: fmt(m.group(1), float(m.group(2))), template)
 
 
 # Profile columns: key -> (label, SI unit). Order is the CSV column order.

@@ -406,7 +406,7 @@ class SideBySidePanel(QWidget):
                     where.append(alt.segments[c.segment].name)
                 if c.x_m is not None and math.isfinite(c.x_m):
                     where.append(units.format_value(c.x_m, "length", self.doc.unit_system))
-                rows.append((name, c.severity, " at ".join(where), c.message))
+                rows.append((name, c.severity, " at ".join(where), units.check_message(c, self.doc.unit_system)))
         t.setColumnCount(4)
         t.setRowCount(len(rows))
         t.setHorizontalHeaderLabels(["Alternative", "Severity", "Where", "Finding"])
