@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import json
 import os
+from pathlib import Path
 
 import pytest
 
@@ -394,3 +395,66 @@ def test_exports_write_files(win, tmp_path):
     assert pdf_path.read_bytes()[:5] == b"%PDF-"
     assert not win.export_csv(tmp_path / "missing" / "x.csv")  # says why, app keeps running
     assert win.messages[-1][0] == "CSV not written"
+
+
+def test_new_asks_about_unsaved_changes(win, tmp_path):
+    commit(win.segment_card.length_edit, "36")
+    asked = []
+    win.ask_save_changes = lambda: asked.append(1) or "cancel"
+    win.new_project()
+    assert asked and win.doc.current_alternative.segments[0].length_m == 36.0  # cancelled: kept
+    win.ask_save_changes = lambda: "discard"
+    win.new_project()
+    assert win.doc.project.name == "Untitled line" and not win.doc.modified
+    assert win.doc.undo_stack.count() == 0  # a new project starts a fresh history
+
+
+def test_recent_files_menu(win, tmp_path):
+    for name in ("a.json", "b.json"):
+        assert win.save_to(tmp_path / name)
+    win._fill_recent_menu()
+    texts = [a.text() for a in win.recent_menu.actions() if a.text()]
+    assert texts[:2] == [str((tmp_path / "b.json").resolve()), str((tmp_path / "a.json").resolve())]
+    commit(win.segment_card.length_edit, "39")
+    win.ask_save_changes = lambda: "discard"
+    win.recent_menu.actions()[1].trigger()  # open a.json again
+    assert win.doc.path == Path(texts[1])
+    assert win.doc.current_alternative.segments[0].length_m == 30.0
+
+
+def test_cautions_dialog_is_not_modal(win):
+    from app.main_window import CAUTIONS
+
+    dlg = win.show_cautions()
+    assert dlg.isVisible() and not dlg.isModal()
+    from PySide6.QtWidgets import QTextBrowser
+
+    shown = dlg.findChild(QTextBrowser).toPlainText()
+    for caution in CAUTIONS:
+        assert caution.split(":")[0] in shown
+    dlg.close()
+
+
+def test_bore_by_nps_then_by_diameter(win):
+    card = win.segment_card
+    i = card.nps_combo.findText("3")
+    card.nps_combo.setCurrentIndex(i)
+    card._on_nps(i)
+    pipe = win.doc.current_alternative.segments[0].pipe
+    assert (pipe.nps, pipe.schedule) == ("3", "40")
+    assert card.schedule_combo.findText("80") >= 0  # schedules offered for NPS 3
+    card.nps_combo.setCurrentIndex(card.nps_combo.findText("2"))
+    card._on_nps(card.nps_combo.currentIndex())
+    card.bore_combo.setCurrentIndex(card.bore_combo.findData("diameter"))  # emits: the card switches
+    pipe = win.doc.current_alternative.segments[0].pipe
+    assert pipe.bore == "diameter"
+    # NPS 2 schedule 40 per ASME B36.10M: OD 60.3 mm, wall 3.91 mm, bore 52.48 mm
+    assert pipe.inner_diameter_m == pytest.approx(0.05248, abs=1e-6)
+    assert pipe.wall_thickness_m == pytest.approx(0.00391, abs=1e-6)
+    assert card.id_edit.isVisibleTo(card) and not card.nps_row.isVisibleTo(card)
+    commit(card.id_edit, "2 in")
+    assert win.doc.current_alternative.segments[0].pipe.inner_diameter_m == pytest.approx(0.0508)  # 1 in = 25.4 mm
+    win.doc.undo_stack.undo()
+    win.doc.undo_stack.undo()
+    assert win.doc.current_alternative.segments[0].pipe.bore == "nps"
+    assert card.nps_row.isVisibleTo(card)
