@@ -343,3 +343,57 @@ def test_key_figures_follow_an_edit_of_the_feed(qtbot, doc):
         doc.push(SetAlternativeField(doc, 0, "feed.mass_flow_kg_per_s", 2.0))
     # mass flow shown in kg/h: 2 kg/s = 7200 kg/h
     assert _number(panel.value_text("mass_flow_kg_per_s")) == pytest.approx(7200.0)
+
+
+# --------------------------------------------------------------------------- redraw cost (DESIGN §6)
+
+
+def test_key_figures_update_their_items_in_place_and_resize_the_columns(qtbot, doc):
+    panel = show(qtbot, KeyFiguresPanel(doc), 900, 620)
+    doc.solve_now()
+    row = panel._row_of["mass_flow_kg_per_s"]
+    item = panel.table.item(row, 1)
+    doc.push(SetAlternativeField(doc, 0, "feed.mass_flow_kg_per_s", 2.0))
+    doc.solve_now()
+    QApplication.processEvents()
+    assert panel.table.item(row, 1) is item  # the same item, new text
+    # 2 kg/s = 7200 kg/h (1 h = 3600 s, exact)
+    assert _number(panel.value_text("mass_flow_kg_per_s")) == pytest.approx(7200.0)
+    assert item.toolTip().startswith("Mass flow: " + item.text())
+    # the one change notice the model sends still lets the value column fit its longer texts
+    assert panel.table.columnWidth(1) >= panel.table.sizeHintForColumn(1) > 0
+
+
+def test_strip_picture_is_reused_until_what_it_shows_changes(qtbot, doc):
+    strip = show(qtbot, LineStrip(doc))
+    doc.solve_now()
+    strip.canvas.repaint()
+    first = strip.canvas._pixmap
+    assert first is not None
+    doc.result_ready.emit(doc.result)  # same check marks: the picture is copied, not redrawn
+    strip.canvas.repaint()
+    assert strip.canvas._pixmap is first
+    doc.select_segment(3)
+    strip.canvas.repaint()
+    assert strip.canvas._pixmap is not first  # selection shows: redrawn
+    image_selected = strip.canvas.grab().toImage()
+    doc.push(SetSegmentField(doc, 0, 1, "length_m", 120.0))  # block widths move
+    strip.canvas.repaint()
+    assert strip.canvas.grab().toImage() != image_selected
+
+
+def test_profiles_take_the_new_range_before_painting(qtbot, doc):
+    panel = show(qtbot, ProfilesPanel(doc), 1000, 500)
+    doc.solve_now()
+    QApplication.processEvents()
+    doc.push(SetSegmentField(doc, 0, 1, "length_m", 400.0))  # a much longer line
+    result = doc.solve_now()
+    # no event processed yet: the view already spans the new line, so the first paint is the last
+    (x0, x1), _ = panel.temperature_plot.vb.viewRange()
+    assert x0 <= result.profile.x_m[0] and x1 >= result.profile.x_m[-1]
+    labels = [text for _x, text in panel.top_axis._tickLevels[0]] if panel.top_axis._tickLevels else []
+    assert any("Rack" in t for t in labels)
+    # grid lines sit behind the curves
+    grids = panel._grid_lines
+    assert len(grids) == 2 and all(g.zValue() < panel.curves["bulk"].zValue() for g in grids)
+    assert grids[0].boundingRect() == panel.temperature_plot.vb.viewRect()

@@ -22,7 +22,7 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from app import style
+from app import style, units
 from app.units import format_value
 
 COLUMNS = ("Severity", "Finding", "Segment", "Position")
@@ -160,11 +160,12 @@ class ChecksPanel(QWidget):
         for c in checks:
             sev = style.severity_style(c.severity)
             pos = format_value(c.x_m, "length", system) if c.x_m is not None else "—"
-            item = QTreeWidgetItem([sev.word, c.message, self._segment_name(c.segment), pos])
+            text = units.check_message(c, self.doc.unit_system)
+            item = QTreeWidgetItem([sev.word, text, self._segment_name(c.segment), pos])
             item.setIcon(0, style.severity_icon(c.severity))
             item.setFont(0, bold)
             item.setForeground(0, QBrush(style.qcolor(sev.colour).darker(125)))
-            item.setToolTip(1, c.message)
+            item.setToolTip(1, text)
             item.setToolTip(0, f"{sev.word} ({c.code})")
             item.setTextAlignment(3, Qt.AlignRight | Qt.AlignVCenter)
             item.setData(0, ROLE_CHECK, c)
@@ -176,7 +177,7 @@ class ChecksPanel(QWidget):
             self.detail.hide()
             return
         sev = style.severity_style(check.severity)
-        self.detail.setText(f"<b style='color:{style.qcolor(sev.colour).darker(125).name()}'>{sev.word}</b> — {html.escape(check.message)}")
+        self.detail.setText(f"<b style='color:{style.qcolor(sev.colour).darker(125).name()}'>{sev.word}</b> — {html.escape(units.check_message(check, self.doc.unit_system))}")
         self.detail.show()
 
     def activate_row(self, item: QTreeWidgetItem) -> None:

@@ -10,6 +10,7 @@ of the design: it reads ``doc.current_alternative`` on every paint.
 from __future__ import annotations
 
 import html
+import math
 from typing import Optional
 
 from PySide6.QtCore import QPointF, QRect, QRectF, QSize, Qt, Signal
@@ -22,6 +23,7 @@ from PySide6.QtGui import (
     QPainter,
     QPainterPath,
     QPen,
+    QPixmap,
     QPolygonF,
 )
 from PySide6.QtWidgets import (
@@ -36,7 +38,7 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from app import style
+from app import style, units
 from app.units import format_value
 
 # Symbol legend: key -> (title, explanation). The legend row and tooltips use it.
@@ -143,17 +145,85 @@ def wall_summary(segment, system: str) -> str:
 # --------------------------------------------------------------------------- symbol painting
 
 
-def _zigzag(painter: QPainter, x0: float, x1: float, y: float, amp: float = 2.6, period: float = 8.0) -> None:
+def _zigzag_path(x0: float, x1: float, y: float, amp: float, period: float) -> QPainterPath:
     path = QPainterPath(QPointF(x0, y))
     x, up = x0, True
     while x < x1:
         x = min(x + period / 2, x1)
         path.lineTo(QPointF(x, y - amp if up else y + amp))
         up = not up
-    painter.drawPath(path)
+    return path
+
+
+# Stroking a long antialiased zig-zag cost ~2.5 ms per run (most of a strip repaint), so each
+# (pen, amplitude, period) is stroked once into a long pixmap and the runs are copied from it.
+_ZIGZAG_LENGTH = 2048  # px of zig-zag held in a cached pixmap; longer runs are stroked directly
+_ZIGZAG_PAD = 3  # px around the stroke (pen width and antialiasing)
+_zigzag_pixmaps: dict[tuple, QPixmap] = {}
+
+
+def _zigzag_pixmap(pen: QPen, amp: float, period: float, dpr: float) -> QPixmap:
+    key = (pen.color().rgba(), pen.widthF(), amp, period, dpr)
+    pix = _zigzag_pixmaps.get(key)
+    if pix is None:
+        w, h = _ZIGZAG_LENGTH + 2 * _ZIGZAG_PAD, 2 * (amp + _ZIGZAG_PAD)
+        pix = QPixmap(int(math.ceil(w * dpr)), int(math.ceil(h * dpr)))
+        pix.setDevicePixelRatio(dpr)
+        pix.fill(Qt.transparent)
+        q = QPainter(pix)
+        q.setRenderHint(QPainter.Antialiasing, True)
+        q.setPen(pen)
+        q.setBrush(Qt.NoBrush)
+        q.drawPath(_zigzag_path(_ZIGZAG_PAD, _ZIGZAG_PAD + _ZIGZAG_LENGTH, h / 2, amp, period))
+        q.end()
+        _zigzag_pixmaps[key] = pix
+    return pix
+
+
+def _zigzag(painter: QPainter, x0: float, x1: float, y: float, amp: float = 2.6, period: float = 8.0) -> None:
+    """A zig-zag from x0 to x1 about y with the painter's pen (copied from a cached stroke)."""
+    span = x1 - x0
+    if span <= 0:
+        return
+    if span > _ZIGZAG_LENGTH:
+        painter.drawPath(_zigzag_path(x0, x1, y, amp, period))
+        return
+    dev = painter.device()
+    dpr = dev.devicePixelRatioF() if dev is not None else 1.0
+    pix = _zigzag_pixmap(painter.pen(), amp, period, dpr)
+    h = 2 * (amp + _ZIGZAG_PAD)
+    w = span + 2 * _ZIGZAG_PAD - 1  # the stroke ends at x1 (+ about a pixel of its width)
+    painter.drawPixmap(QRectF(x0 - _ZIGZAG_PAD, y - h / 2, w, h), pix, QRectF(0, 0, w * dpr, h * dpr))
+
+
+_streamline_pixmaps: dict[tuple, QPixmap] = {}
 
 
 def _streamline(painter: QPainter, x0: float, y: float, length: float) -> None:
+    """A short wavy arrow (ambient wind) from (x0, y), copied from a cached drawing of it."""
+    pen, brush = painter.pen(), painter.brush()
+    dev = painter.device()
+    dpr = dev.devicePixelRatioF() if dev is not None else 1.0
+    key = (pen.color().rgba(), pen.widthF(), brush.style().value, brush.color().rgba(), length, dpr,
+           painter.testRenderHint(QPainter.Antialiasing))
+    pix = _streamline_pixmaps.get(key)
+    pad = 3.0 + pen.widthF()
+    w, h = length + 2 * pad, 2 * (3.0 + pad)
+    if pix is None:
+        pix = QPixmap(int(math.ceil(w * dpr)), int(math.ceil(h * dpr)))
+        pix.setDevicePixelRatio(dpr)
+        pix.fill(Qt.transparent)
+        q = QPainter(pix)
+        q.setRenderHint(QPainter.Antialiasing, key[-1])
+        q.setPen(pen)
+        q.setBrush(brush)
+        _stroke_streamline(q, pad, h / 2, length)
+        q.end()
+        _streamline_pixmaps[key] = pix
+    painter.drawPixmap(QRectF(x0 - pad, y - h / 2, w, h), pix, QRectF(0, 0, w * dpr, h * dpr))
+
+
+def _stroke_streamline(painter: QPainter, x0: float, y: float, length: float) -> None:
     path = QPainterPath(QPointF(x0, y))
     path.cubicTo(QPointF(x0 + length * 0.33, y - 3), QPointF(x0 + length * 0.66, y + 3), QPointF(x0 + length, y))
     painter.drawPath(path)
@@ -301,6 +371,8 @@ class StripCanvas(QWidget):
         self._press_pos: Optional[QPointF] = None
         self._dragging = False
         self._drop_gap = -1
+        self._pixmap: Optional[QPixmap] = None  # the strip as last drawn (see paintEvent)
+        self._pixmap_key: tuple = ()
         self.setAccessibleName("Line Strip")
 
     # ---- geometry
@@ -341,8 +413,38 @@ class StripCanvas(QWidget):
 
     # ---- painting
 
+    def _cache_key(self, findings: dict[int, str]) -> tuple:
+        """Everything the strip picture depends on; equal keys give the same picture."""
+        doc = self.strip.doc
+        system = doc.unit_system
+        segs = tuple(
+            (seg.name, seg.length_m, seg.elevation_change_m, wall_model(seg),
+             sum(layer.thickness_m for layer in seg.insulation), seg.heat_input_W_per_m > 0,
+             sum(f.count for f in seg.fittings), wall_summary(seg, system))
+            for seg in self._segments()
+        )
+        return (segs, system, self.width(), self.height(), self.devicePixelRatioF(), self.font().key(),
+                doc.selected_segment, self._hover, tuple(sorted(findings.items())),
+                self._dragging, self._drop_gap)
+
     def paintEvent(self, event) -> None:  # noqa: N802 (Qt name)
+        # The picture is kept in a pixmap and redrawn only when what it shows changed: a result
+        # that leaves the check marks as they were, an expose or a scroll just copy it.
+        findings = self.strip.findings_by_segment()
+        key = self._cache_key(findings)
+        if self._pixmap is None or key != self._pixmap_key:
+            dpr = self.devicePixelRatioF()
+            pix = QPixmap(max(1, int(math.ceil(self.width() * dpr))), max(1, int(math.ceil(self.height() * dpr))))
+            pix.setDevicePixelRatio(dpr)
+            painter = QPainter(pix)
+            self._render(painter, findings)
+            painter.end()
+            self._pixmap, self._pixmap_key = pix, key
         p = QPainter(self)
+        p.drawPixmap(0, 0, self._pixmap)
+        p.end()
+
+    def _render(self, p: QPainter, findings: dict[int, str]) -> None:
         p.setRenderHint(QPainter.Antialiasing, True)
         p.fillRect(self.rect(), style.qcolor(style.CANVAS_BG))
         doc = self.strip.doc
@@ -350,7 +452,6 @@ class StripCanvas(QWidget):
         segs = self._segments()
         rects = self.block_rects()
         selected = doc.selected_segment
-        findings = self.strip.findings_by_segment()
         base = self.font()
         f_name, f_small, f_tiny = _font(base, 12, True), _font(base, 11), _font(base, 10)
         yc = PIPE_CENTRE_Y
@@ -462,7 +563,6 @@ class StripCanvas(QWidget):
                 x = rects[-1].right() + GAP / 2
             p.setPen(QPen(style.qcolor(style.SELECTION), 3.0))
             p.drawLine(QPointF(x, 6), QPointF(x, self.height() - 6))
-        p.end()
 
     # ---- mouse
 
@@ -784,7 +884,7 @@ class LineStrip(QWidget):
         if res is not None:
             for c in res.checks:
                 if c.segment == index:
-                    rows.append(f"{style.severity_style(c.severity).word}: {c.message}")
+                    rows.append(f"{style.severity_style(c.severity).word}: {units.check_message(c, self.doc.unit_system)}")
         return "<br>".join(rows[:1] + [html.escape(r) for r in rows[1:]])
 
     # ---- edits (through commands)
