@@ -23,6 +23,8 @@ import math
 
 import numpy as np
 
+from solver._numeric import clip as _clip
+
 from solver.errors import InputError
 
 __all__ = [
@@ -277,7 +279,7 @@ def friction_factor(Re, relative_roughness):
     eD = _require_non_negative("relative_roughness", relative_roughness)
     f = _colebrook(np.maximum(Re, RE_COLEBROOK_MIN), eD)  # Colebrook at 4000 wherever Re <= 4000
     f_laminar = 64.0 / np.minimum(Re, RE_LAMINAR_MAX)
-    weight = np.clip((Re - RE_LAMINAR_MAX) * (1.0 / (RE_COLEBROOK_MIN - RE_LAMINAR_MAX)), 0.0, 1.0)
+    weight = _clip((Re - RE_LAMINAR_MAX) * (1.0 / (RE_COLEBROOK_MIN - RE_LAMINAR_MAX)), 0.0, 1.0)
     f -= f_laminar
     f *= weight
     f += f_laminar
@@ -468,7 +470,7 @@ def nusselt_inside(Re, Pr, f_darcy, x_over_D, boundary, relative_roughness=0.0):
         f_at_1e4 = colebrook(RE_TURBULENT_MIN, relative_roughness)
     f_turb = np.where(turbulent, f_darcy, f_at_1e4)
     nu_turbulent = _gnielinski(np.maximum(Re, RE_TURBULENT_MIN), Pr, f_turb, cbrt_Pr, d_over_x)
-    gamma = np.clip((Re - RE_LAMINAR_MAX) * (1.0 / (RE_TURBULENT_MIN - RE_LAMINAR_MAX)), 0.0, 1.0)
+    gamma = _clip((Re - RE_LAMINAR_MAX) * (1.0 / (RE_TURBULENT_MIN - RE_LAMINAR_MAX)), 0.0, 1.0)
     nu_turbulent -= nu_laminar
     nu_turbulent *= gamma
     nu_turbulent += nu_laminar

@@ -33,6 +33,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from solver._numeric import clip as _clip
+
 from solver import catalogue, correlations, fittings as fittings_mod
 from solver.errors import CalorunError, InputError, PropertyRangeError, SolverError
 from solver.model import (
@@ -87,6 +89,7 @@ class _SegmentSetup:
     n_cells: int
     surroundings: object
     fittings: list
+    cells: np.ndarray = None  # indices of this segment's cells in the line
 
 
 def _resolve_segments(alt: Alternative) -> list[_SegmentSetup]:
@@ -96,14 +99,14 @@ def _resolve_segments(alt: Alternative) -> list[_SegmentSetup]:
         rp = catalogue.resolve_pipe(seg.pipe, field_prefix=f"{prefix}.pipe")
         d_in = rp.inner_diameter_m
         d_po = rp.outer_diameter_m
-        r_wall = float(correlations.cylinder_wall_resistance(d_in, d_po, rp.wall_conductivity_W_per_mK))
+        r_wall = _cylinder_resistance(d_in, d_po, rp.wall_conductivity_W_per_mK)
         sur = seg.surroundings
         d = d_po
         r_ins = 0.0
         if not isinstance(sur, (FixedWall, Jacket)):
             for layer in seg.insulation:
                 d_next = d + 2.0 * layer.thickness_m
-                r_ins += float(correlations.cylinder_wall_resistance(d, d_next, layer.conductivity_W_per_mK))
+                r_ins += _cylinder_resistance(d, d_next, layer.conductivity_W_per_mK)
                 d = d_next
         if isinstance(sur, (StillAir, Wind)):
             t_inf = sur.temperature_K
@@ -150,6 +153,12 @@ def _resolve_segments(alt: Alternative) -> list[_SegmentSetup]:
             )
         )
     return setups
+
+
+def _cylinder_resistance(d_inner: float, d_outer: float, k: float) -> float:
+    """Conduction through a cylindrical layer per unit length, ln(Do/Di)/(2πk) [K·m/W] (closed form;
+    the scalar twin of correlations.cylinder_wall_resistance, which validates arrays)."""
+    return math.log(d_outer / d_inner) / (2.0 * math.pi * k) if d_outer > d_inner else 0.0
 
 
 def _cells_for(setups: list[_SegmentSetup], refine: float, cells_per_segment: int | None) -> None:
@@ -229,6 +238,10 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
 
     # ---- cell geometry (cells of all segments concatenated)
     seg_of_cell = np.concatenate([np.full(s.n_cells, s.index) for s in setups])
+    first = 0
+    for s in setups:
+        s.cells = np.arange(first, first + s.n_cells)
+        first += s.n_cells
     dx_list, x_start = [], 0.0
     x_nodes_line = [0.0]
     for s in setups:
@@ -329,7 +342,7 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
         np.isfinite(fluid.saturation_temperature(np.array([p_in, max(p_in * 0.5, 2e3)]))).any())
     for iteration in range(max_iterations):
         # properties at the nodes; cell values are the means of their two nodes (second order)
-        T_eval = np.clip(T, t_lo, t_hi)
+        T_eval = _clip(T, t_lo, t_hi)
         if sat_possible:
             # keep property look-ups on the feed's side of saturation while a pass overshoots
             if tsat_nodes is None:
@@ -438,7 +451,7 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
                 raise SolverError(message, alternative=alt.name, segment=seg_bad.name, x_m=float(x_node[i_bad]))
         else:
             strikes = 0
-        T = np.clip(T_new, t_lo - 50.0, t_hi + 50.0)
+        T = _clip(T_new, t_lo - 50.0, t_hi + 50.0)
         T_surface = np.maximum(T_surface, 1.0)
         p = p_new
         h_target = h_nodes
@@ -637,7 +650,7 @@ class _AirAtOneAtmosphere:
         return cls._instance
 
     def at(self, t):
-        t = np.clip(t, self.T_min_K, self.T_max_K)
+        t = _clip(t, self.T_min_K, self.T_max_K)
         tk = self.t_knots
         return np.interp(t, tk, self.nu), np.interp(t, tk, self.alpha), np.interp(t, tk, self.k)
 
@@ -667,7 +680,7 @@ def _node_profiles(setups, seg_of_cell, x_node, T, p, dx, D, area, rel_rough, bo
     node_index, cell_index = [], []
     start_node = 0
     for s in setups:
-        cells = _cells_of(seg_of_cell, s.index)
+        cells = s.cells
         nodes = np.arange(cells[0], cells[-1] + 2)
         node_index.append(nodes)
         # node k of the segment uses the cell downstream of it, the outlet node the cell upstream
@@ -710,7 +723,7 @@ def _node_profiles(setups, seg_of_cell, x_node, T, p, dx, D, area, rel_rough, bo
     spans = []
     offset = 0
     for s, nodes in zip(setups, node_index):
-        cells = _cells_of(seg_of_cell, s.index)
+        cells = s.cells
         k0, k1 = offset, offset + nodes.size - 1
         duty = float(np.sum(Q_cell[cells]))
         heat_in = float(np.sum(input_cell[cells]))
@@ -900,7 +913,7 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
     # flow regime (cells -> segments)
     regime = correlations.flow_regime(Re)
     for s in setups:
-        sel = _cells_of(seg_of_cell, s.index)
+        sel = s.cells
         trans = sel[regime[sel] == 1]
         if trans.size:
             out.append(Check("warning", "TRANSITIONAL_FLOW",
@@ -910,7 +923,7 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
 
     # velocity (common practice ranges)
     for s in setups:
-        sel = _cells_of(seg_of_cell, s.index)
+        sel = s.cells
         v = velocity[sel]
         if fluid.compressible:
             if v.max() > 30.0:
@@ -927,7 +940,7 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
             elif v.min() < 0.3 and not any(ch.code == "VELOCITY_LOW" for ch in out):
                 # one note for the line is enough: slow flow is usually a design choice, not a fault
                 i = sel[int(np.argmin(v))]
-                slow = sum(1 for t in setups if velocity[_cells_of(seg_of_cell, t.index)].min() < 0.3)
+                slow = sum(1 for t in setups if velocity[t.cells].min() < 0.3)
                 more = f" ({slow} of {len(setups)} segments)" if len(setups) > 1 else ""
                 out.append(Check("info", "VELOCITY_LOW",
                                  f"Liquid velocity {_v(v.min())} is below about {_v(0.3)}{more} (common practice): "
@@ -965,7 +978,7 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
     bad_l = (regime == 0) & correlations.out_of_range("laminar_entry", Pr=Pr)
     for mask, name in ((bad_g, "Gnielinski"), (bad_l, "laminar entry")):
         for s in setups:
-            cells = _cells_of(seg_of_cell, s.index)
+            cells = s.cells
             sel = cells[mask[cells]]
             if sel.size:
                 out.append(Check("warning", "CORRELATION_RANGE",
@@ -978,7 +991,7 @@ def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_su
         ra = GRAVITY / t_film * np.abs(T_surface - np.nan_to_num(t_inf, nan=293.15)) * d_outer**3 / (nu_kin * alpha)
         bad_cc = film_mask & (ra > correlations.VALIDITY["churchill_chu"]["Ra"][1])
         for s in setups:
-            cells = _cells_of(seg_of_cell, s.index)
+            cells = s.cells
             sel = cells[bad_cc[cells]]
             if sel.size:
                 out.append(Check("warning", "CORRELATION_RANGE",
@@ -1012,7 +1025,7 @@ def _no_flow_checks(alt, fluid, setups, seg_of_cell, x_mid, q_in, t_inf, r_out_t
     for s in setups:
         if s.kind not in ("still_air", "wind", "buried"):
             continue
-        cells = _cells_of(seg_of_cell, s.index)
+        cells = s.cells
         t_eq = t_inf[cells] + q_in[cells] * r_out_total[cells]
         i = int(np.argmin(t_eq))
         if t_eq[i] < limit_T:

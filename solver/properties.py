@@ -48,6 +48,8 @@ from typing import NamedTuple, Optional, Union
 
 import numpy as np
 
+from solver._numeric import clip as _clip
+
 from solver.errors import InputError, PropertyRangeError
 from solver.model import PureFluid, SolutionFluid, TableFluid
 
@@ -212,7 +214,7 @@ class _LiquidTableModel(FluidModel):
 
     def _cell(self, T):
         i = np.searchsorted(self._T, T, side="right") - 1
-        return np.clip(i, 0, len(self._T) - 2)
+        return _clip(i, 0, len(self._T) - 2)
 
     def _check(self, T, p):
         self._check_finite(T, p)
@@ -243,7 +245,7 @@ class _LiquidTableModel(FluidModel):
         return u + self._h_offset + p / rho
 
     def _T_from_u(self, u):
-        j = np.clip(np.searchsorted(self._u, u, side="right") - 1, 0, len(self._T) - 2)
+        j = _clip(np.searchsorted(self._u, u, side="right") - 1, 0, len(self._T) - 2)
         du = u - self._u[j]
         c = self._cp[j]
         # root of a/2 x^2 + c x - du = 0 in the numerically stable form
@@ -262,14 +264,14 @@ class _LiquidTableModel(FluidModel):
         rho = np.full(h.shape, float(np.mean(self._rho)))
         T = self._T_from_u(hu - p / rho)
         for _ in range(40):
-            T = np.clip(T, self._T[0], self._T[-1])
+            T = _clip(T, self._T[0], self._T[-1])
             _, rho = self._u_rho(T, self._cell(T))
             T_new = self._T_from_u(hu - p / rho)
             done = np.max(np.abs(T_new - T), initial=0.0) < 1e-12 * 1000.0
             T = T_new
             if done:
                 break
-        T = np.clip(T, self._T[0], self._T[-1]) if not out.any() else T
+        T = _clip(T, self._T[0], self._T[-1]) if not out.any() else T
         self._check(T, p)  # names the first state outside the valid range
         return T
 
@@ -508,12 +510,12 @@ class PureFluidModel(FluidModel):
 
     def _p_index(self, p):
         y = (np.log(p) - self._lnp0) / self._dlnp
-        kk = np.clip(np.floor(y).astype(np.intp), 0, self._nP - 2)
+        kk = _clip(np.floor(y).astype(np.intp), 0, self._nP - 2)
         return kk, y - kk
 
     def _T_index(self, T):
         x = T / _DT - self._i0
-        i = np.clip(np.floor(x).astype(np.intp), 0, self._nT - 2)
+        i = _clip(np.floor(x).astype(np.intp), 0, self._nT - 2)
         return i, x - i
 
     def _check(self, T, p):
@@ -535,10 +537,29 @@ class PureFluidModel(FluidModel):
         T, p = _states(T, p)
         shape = T.shape
         T, p = T.ravel(), p.ravel()
-        self._check(T, p)
-        i, wt = self._T_index(T)
-        kk, wp = self._p_index(p)
-        self._ensure(i, kk)
+        # one pass of reductions serves the range checks and the table look-up (this is the hot path)
+        t_lo, t_hi = float(T.min(initial=np.inf)), float(T.max(initial=-np.inf))
+        p_lo, p_hi = float(p.min(initial=np.inf)), float(p.max(initial=-np.inf))
+        if not (self.T_min_K <= t_lo and t_hi <= self.T_max_K and self.p_min_Pa <= p_lo and p_hi <= self.p_max_Pa
+                and math.isfinite(t_lo + t_hi + p_lo + p_hi)):
+            self._check(T, p)  # raises with the first offending state
+        x = T * (1.0 / _DT) - self._i0
+        i = np.floor(x).astype(np.intp)
+        np.minimum(i, self._nT - 2, out=i)
+        wt = x - i
+        y = (np.log(p) - self._lnp0) * (1.0 / self._dlnp)
+        kk = np.floor(y).astype(np.intp)
+        np.minimum(kk, self._nP - 2, out=kk)
+        wp = y - kk
+        ci0, ci1 = int(t_lo / _DT - self._i0) // _CHUNK_T, (int(t_hi / _DT - self._i0) + 1) // _CHUNK_T
+        ck0 = int((math.log(p_lo) - self._lnp0) / self._dlnp) // _CHUNK_P
+        ck1 = (int((math.log(p_hi) - self._lnp0) / self._dlnp) + 1) // _CHUNK_P
+        ci1 = min(ci1, self._filled.shape[0] - 1)
+        ck1 = min(ck1, self._filled.shape[1] - 1)
+        if not (ci0 == ci1 and ck0 == ck1 and self._filled[ci0, ck0]) and \
+                not self._filled[ci0:ci1 + 1, ck0:ck1 + 1].all():
+            with self._lock:
+                self._fill(ci0, ci1, ck0, ck1)
         flat = self._flat
         f = i * self._nP + kk
         nP = self._nP
@@ -646,7 +667,7 @@ class PureFluidModel(FluidModel):
         linearly in ln p on the pressure knots (Clausius-Clapeyron makes this
         nearly exact)."""
         p = np.asarray(p, dtype=float)
-        kk, wp = self._p_index(np.clip(np.where(np.isfinite(p) & (p > 0), p, 1.0), self.p_min_Pa, self.p_max_Pa))
+        kk, wp = self._p_index(_clip(np.where(np.isfinite(p) & (p > 0), p, 1.0), self.p_min_Pa, self.p_max_Pa))
         if self._sat_arr is None:
             self._sat_arr = np.full(self._nP + 1, np.nan)
             self._sat_known = np.zeros(self._nP + 1, dtype=bool)

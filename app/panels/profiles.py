@@ -168,8 +168,10 @@ class ProfilesPanel(QWidget):
         self.curves["pressure"] = self.pressure_plot.plot(
             [], [], pen=style.curve_pen("pressure", 2.2), name="Pressure", antialias=True
         )
+        self._in_legend: set[int] = set()
         for key, curve in self.curves.items():
             self.legend.addItem(curve, curve.name())
+            self._in_legend.add(id(curve))
         # an invisible curve through the limits so auto-range keeps them in view
         self._limit_extent = pg.PlotCurveItem([], [], pen=pg.mkPen(0, 0, 0, 0))
         self.temperature_plot.addItem(self._limit_extent)
@@ -261,6 +263,16 @@ class ProfilesPanel(QWidget):
         self.mark_position(math.nan)
         self.refresh()
 
+    def _show_in_legend(self, curve, show: bool) -> None:
+        """A curve with nothing to draw (no saturation for this fluid) leaves the legend."""
+        present = id(curve) in self._in_legend
+        if show and not present:
+            self.legend.addItem(curve, curve.name())
+            self._in_legend.add(id(curve))
+        elif not show and present:
+            self.legend.removeItem(curve)
+            self._in_legend.discard(id(curve))
+
     def refresh(self) -> None:
         """Redraw everything from the result on screen in the current unit system."""
         system = self.doc.unit_system
@@ -281,9 +293,10 @@ class ProfilesPanel(QWidget):
             for key, (_name, attr, _line, _w) in TEMPERATURE_CURVES.items():
                 y = _display(getattr(prof, attr), "temperature", system)
                 if key == "saturation":
-                    finite = np.isfinite(y)
-                    self.curves[key].setVisible(bool(finite.any()))
+                    has_sat = bool(np.isfinite(y).any())
+                    self.curves[key].setVisible(has_sat)
                     self.curves[key].setData(x, y, connect="finite")
+                    self._show_in_legend(self.curves[key], has_sat)
                 else:
                     self.curves[key].setData(x, y)
             self.curves["pressure"].setData(x, _display(prof.pressure_Pa, "pressure", system))
