@@ -120,12 +120,19 @@ class _AlternativeSwap(QUndoCommand):
         self.select_before = doc.selected_segment if select_before is None else select_before
         self.select_after = select_after
 
+    def _show_alternative(self) -> None:
+        # an undo or redo that changes another alternative shows it, so no change happens out of sight
+        if self.alt_index != self.doc.current_index and self.alt_index < len(self.doc.project.alternatives):
+            self.doc.set_current_alternative(self.alt_index)
+
     def redo(self) -> None:
+        self._show_alternative()
         self.doc.replace_alternative(self.alt_index, self.new)
         if self.select_after is not None and self.alt_index == self.doc.current_index:
             self.doc.select_segment(self.select_after)
 
     def undo(self) -> None:
+        self._show_alternative()
         self.doc.replace_alternative(self.alt_index, self.old)
         if self.select_after is not None and self.alt_index == self.doc.current_index:
             self.doc.select_segment(self.select_before)

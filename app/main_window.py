@@ -249,6 +249,15 @@ class MainWindow(QMainWindow):
         self.addDockWidget(area, dock)
         return dock
 
+    def edit_project_details(self):
+        """File ▸ Project details and targets: a dialog; its changes are one undo step."""
+        from app.panels.project_details import ProjectDetailsDialog
+
+        dialog = ProjectDetailsDialog(self.doc, self)
+        if self.interactive:
+            dialog.exec()
+        return dialog
+
     def _build_banner(self) -> None:
         bar = QToolBar("Main", self)
         bar.setObjectName("MainBar")
@@ -328,6 +337,8 @@ class MainWindow(QMainWindow):
         self.save_as_action = act("Save &As…", self.save_as, QKeySequence.SaveAs, "Save the project under a new name")
         self.pdf_action = act("Export &PDF report…", self.export_pdf, None, "Summary report with inputs, results, plots, checks and cautions")
         self.csv_action = act("Export &CSV…", self.export_csv, None, "Profiles of the current alternative as CSV")
+        self.details_action = act("Project &details and targets…", self.edit_project_details, None,
+                                  "Name, prepared by, revision and the design targets every alternative is judged by")
         self.quit_action = act("&Quit", self.close, QKeySequence.Quit)
 
         self.undo_action = self.doc.undo_stack.createUndoAction(self, "&Undo")
@@ -361,6 +372,8 @@ class MainWindow(QMainWindow):
         self._fill_recent_menu()
         file_menu.addSeparator()
         file_menu.addActions([self.save_action, self.save_as_action])
+        file_menu.addSeparator()
+        file_menu.addAction(self.details_action)
         file_menu.addSeparator()
         file_menu.addActions([self.pdf_action, self.csv_action])
         file_menu.addSeparator()

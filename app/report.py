@@ -1362,6 +1362,10 @@ def write_report(
 
     ensure_gui_application()
     path = Path(path)
+    if not path.parent.is_dir():
+        raise FileNotFoundError(f"the folder {path.parent} does not exist")
+    if path.is_dir():
+        raise IsADirectoryError(f"{path} is a folder, not a file name")
     tmp = path.with_name(f".{path.name}.tmp")
     try:
         _render_pdf(html_doc, tmp, project.name, project.name, unit_system)

@@ -207,3 +207,16 @@ def test_results_arrive_on_the_gui_thread(doc, qtbot):
         doc.push(C.SetSegmentField(doc, 0, 2, "length_m", 7.0))  # quick solve: may run inline
     gui = QApplication.instance().thread()
     assert threads and all(t is gui or t == gui for t in threads)
+
+
+def test_undo_of_an_edit_in_another_alternative_shows_that_alternative(doc, qtbot):
+    from app.commands import InsertAlternative
+
+    doc.push(InsertAlternative(doc, 1, doc.project.alternatives[0].model_copy(update={"name": "Other"})))
+    doc.set_current_alternative(1)
+    before = doc.project.alternatives[1].segments[0].heat_input_W_per_m
+    doc.push(C.SetSegmentField(doc, 1, 0, "heat_input_W_per_m", before + 40.0))
+    doc.set_current_alternative(0)
+    doc.undo_stack.undo()
+    assert doc.current_index == 1  # the undone change is on screen, not out of sight
+    assert doc.project.alternatives[1].segments[0].heat_input_W_per_m == before

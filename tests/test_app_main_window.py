@@ -458,3 +458,56 @@ def test_bore_by_nps_then_by_diameter(win):
     win.doc.undo_stack.undo()
     assert win.doc.current_alternative.segments[0].pipe.bore == "nps"
     assert card.nps_row.isVisibleTo(card)
+
+
+def test_project_details_and_targets_edit_in_one_undo_step(win):
+    dialog = win.edit_project_details()
+    dialog.prepared_edit.setText("Process engineering")
+    dialog.revision_edit.setText("C")
+    dialog.target_edits["outlet_temperature_min_K"].setText("60")  # °C in SI display
+    dialog.target_edits["max_pressure_drop_Pa"].setText("2 bar")  # typed unit, a difference
+    assert dialog.apply() is None
+    p = win.doc.project
+    assert p.prepared_by == "Process engineering" and p.revision == "C"
+    assert p.targets.outlet_temperature_min_K == pytest.approx(333.15)  # 60 °C = 333.15 K (definition)
+    assert p.targets.max_pressure_drop_Pa == pytest.approx(2e5)  # 1 bar = 1e5 Pa (definition)
+    win.doc.undo_stack.undo()  # one step undoes all of it
+    assert win.doc.project.revision != "C" and win.doc.project.targets.outlet_temperature_min_K != pytest.approx(333.15)
+
+
+def test_project_details_refuses_a_bad_target_without_changing_the_model(win):
+    before = win.doc.project.model_dump()
+    dialog = win.edit_project_details()
+    dialog.target_edits["max_heat_input_W"].setText("-5 kW")  # a maximum heat input must be > 0
+    error = dialog.apply()
+    assert error and "max_heat_input_W" in error
+    assert win.doc.project.model_dump() == before
+
+
+def test_text_typed_before_a_unit_switch_is_kept_in_the_units_it_was_typed_in(win):
+    win.feed_panel.temp_edit.setText("80")  # typed in °C, not yet committed
+    win.set_unit_system("US")
+    # 80 °C = 353.15 K (definition of the Celsius scale)
+    assert win.doc.current_alternative.feed.inlet_temperature_K == pytest.approx(353.15)
+    assert win.feed_panel.temp_edit.text().startswith("176")  # 80 °C = 176 °F
+    win.set_unit_system("SI")
+
+
+def test_switching_surroundings_kind_and_back_restores_its_settings(win):
+    card = win.segment_card
+    doc = win.doc
+
+    def choose(kind):  # as a user picks it: the combo's activated signal
+        index = card.surr_combo.findData(kind)
+        card.surr_combo.setCurrentIndex(index)
+        card.surr_combo.activated.emit(index)
+
+    choose("still_air")
+    before = doc.selected.surroundings.model_dump()
+    heat = doc.selected.heat_input_W_per_m
+    choose("fixed_wall")
+    assert doc.selected.heat_input_W_per_m == 0.0  # a held wall takes no tracing
+    choose("adiabatic")
+    choose("still_air")
+    assert doc.selected.surroundings.model_dump() == before
+    assert doc.selected.heat_input_W_per_m == heat

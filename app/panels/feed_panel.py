@@ -341,6 +341,10 @@ class FeedPanel(QWidget):
     # ------------------------------------------------------------------ model -> widgets
 
     def _on_units(self, system: str) -> None:
+        # text typed but not committed is read in the units it was typed in, before they change
+        for e in list(self._qedits):
+            if e.isVisibleTo(self) and e.pending:
+                e.commit()
         for e in self._qedits:
             e.set_unit_system(system)
         self.refresh()

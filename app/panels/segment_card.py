@@ -109,6 +109,7 @@ class SegmentCard(QWidget):
 
     def __init__(self, doc, parent: Optional[QWidget] = None):
         super().__init__(parent)
+        self._surroundings_memory: dict = {}  # (alternative, segment, name) -> settings per kind
         self.doc = doc
         self._loading = False
         self._qedits: list[QuantityEdit] = []
@@ -383,6 +384,7 @@ class SegmentCard(QWidget):
     # ------------------------------------------------------------------ showing the model
 
     def _on_units(self, system: str) -> None:
+        self.flush_pending()  # read typed text in the units it was typed in, before they change
         for e in self._qedits:
             e.set_unit_system(system)
         self._layer_headers()
@@ -750,14 +752,25 @@ class SegmentCard(QWidget):
         kind = self.surr_combo.currentData()
         if seg is None or kind == seg.surroundings.kind:
             return
-        new: dict = {"kind": kind}
-        old_key = _SURR_TEMPERATURE_KEY.get(seg.surroundings.kind)
-        new_key = _SURR_TEMPERATURE_KEY.get(kind)
-        if old_key and new_key and kind != "fixed_wall" and seg.surroundings.kind != "fixed_wall":
-            new[new_key] = getattr(seg.surroundings, old_key)
+        # remember what this segment had under the kind it leaves, so switching back restores it
+        key = (self.doc.current_index, self.doc.selected_segment, seg.name)
+        remembered = self._surroundings_memory.setdefault(key, {})
+        remembered[seg.surroundings.kind] = seg.surroundings.model_dump()
+        if seg.heat_input_W_per_m > 0:
+            remembered["heat_input_W_per_m"] = seg.heat_input_W_per_m
+        if kind in remembered:
+            new: dict = dict(remembered[kind])
+        else:
+            new = {"kind": kind}
+            old_key = _SURR_TEMPERATURE_KEY.get(seg.surroundings.kind)
+            new_key = _SURR_TEMPERATURE_KEY.get(kind)
+            if old_key and new_key and kind != "fixed_wall" and seg.surroundings.kind != "fixed_wall":
+                new[new_key] = getattr(seg.surroundings, old_key)
         changes: dict = {"surroundings": new}
         if kind == "fixed_wall" and seg.heat_input_W_per_m > 0:
             changes["heat_input_W_per_m"] = 0.0  # a held wall takes no tracing; one undo step restores both
+        elif seg.surroundings.kind == "fixed_wall" and seg.heat_input_W_per_m == 0 and "heat_input_W_per_m" in remembered:
+            changes["heat_input_W_per_m"] = remembered["heat_input_W_per_m"]  # the tracing it had before
         self._set(changes, text=f"Set surroundings of '{seg.name}' to {SURROUNDINGS_KINDS[kind].split(' (')[0]}")
 
     def _on_fixed_source(self, button_id: int) -> None:
