@@ -186,7 +186,7 @@ def solve(
     refine: float = 1.0,
     cells_per_segment: int | None = None,
     max_iterations: int = 60,
-    tolerance_K: float = 1e-6,
+    tolerance_K: float = 1e-3,
 ) -> Result:
     """Solve one alternative and return its :class:`~solver.results.Result`.
 
