@@ -324,7 +324,7 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
     p = np.full(n + 1, p_in)
     T_surface = np.where(np.isfinite(t_inf), 0.5 * (t_in + np.nan_to_num(t_inf, nan=t_in)), t_in)
     e_corr = np.zeros(n)  # temperature change not explained by Q / (m cp): pressure effect, cp curvature
-    h0 = float(fluid.enthalpy(np.array([t_in]), np.array([p_in]))[0])
+    h0 = float(props_in.h[0])
     t_lo, t_hi = fluid.T_min_K, fluid.T_max_K
     t_inf_eff = np.nan_to_num(t_inf, nan=0.0)
     r_ins_film = r_ins[film_mask]
