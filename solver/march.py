@@ -360,7 +360,10 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
             change = max(float(np.max(np.abs(T_true - T))), last_step)
             if change < tol:
                 converged = True
-                T = T_true
+                # one more Newton step on h(T, p) = h_target so the reported temperatures agree with
+                # the enthalpy balance to round-off, not just to the iteration tolerance
+                pt = fluid.props(np.clip(T_true, t_lo, t_hi), p)
+                T = T_true + (h_target - pt.h) / pt.cp
                 break
             last_change = change
         rho = 0.5 * (pn.rho[:-1] + pn.rho[1:])

@@ -9,3 +9,11 @@ os.environ.setdefault("PYQTGRAPH_QT_LIB", "PySide6")
 ROOT = Path(__file__).resolve().parent.parent
 if str(ROOT) not in sys.path:
     sys.path.insert(0, str(ROOT))
+
+# CI runs the property-based tests on a fixed set of examples, so a run is repeatable;
+# locally hypothesis keeps exploring new ones.
+if os.environ.get("CI"):
+    from hypothesis import settings
+
+    settings.register_profile("ci", derandomize=True, deadline=None)
+    settings.load_profile("ci")

@@ -511,3 +511,18 @@ def test_switching_surroundings_kind_and_back_restores_its_settings(win):
     choose("still_air")
     assert doc.selected.surroundings.model_dump() == before
     assert doc.selected.heat_input_W_per_m == heat
+
+
+def test_choosing_the_user_table_again_after_another_fluid_restores_it(win):
+    from solver.model import PureFluid, TableFluid, TableRow
+    from app.commands import SetAlternativeField
+
+    row = dict(density_kg_per_m3=900.0, specific_heat_J_per_kgK=2000.0, viscosity_Pa_s=0.01,
+               conductivity_W_per_mK=0.13)
+    table = TableFluid(name="Demo oil", rows=[TableRow(temperature_K=280.0, **row), TableRow(temperature_K=420.0, **row)])
+    doc = win.doc
+    doc.push(SetAlternativeField(doc, doc.current_index, "fluid", table))
+    doc.push(SetAlternativeField(doc, doc.current_index, "fluid", PureFluid(name="Water")))
+    dlg = win.feed_panel.open_table_editor()
+    assert dlg.table.rowCount() == 2  # the table used before, not an empty editor
+    dlg.reject()

@@ -241,6 +241,7 @@ class FeedPanel(QWidget):
         super().__init__(parent)
         self.doc = doc
         self._loading = False
+        self._last_tables: dict = {}  # alternative name -> its last user-defined table fluid
         self.table_dialog: Optional[FluidTableDialog] = None
         self._qedits: list[QuantityEdit] = []
         col = QVBoxLayout(self)
@@ -360,6 +361,7 @@ class FeedPanel(QWidget):
 
     def refresh(self, *_args) -> None:
         self._shown_alt = self.doc.current_index
+        self.remember_table()
         self._loading = True
         try:
             self._show(self.doc.current_alternative)
@@ -462,12 +464,22 @@ class FeedPanel(QWidget):
     def open_table_editor(self) -> FluidTableDialog:
         """Open the user-defined fluid editor (non-blocking); OK applies it as one undo step."""
         fluid = self.doc.current_alternative.fluid
-        dlg = FluidTableDialog(fluid if fluid.kind == "table" else None, self.doc.unit_system, self)
+        if fluid.kind != "table":
+            # start from the last table this alternative (or the project) used, not an empty one
+            fluid = self._last_tables.get(self.doc.current_alternative.name) or next(
+                (a.fluid for a in self.doc.project.alternatives if a.fluid.kind == "table"), None)
+        dlg = FluidTableDialog(fluid, self.doc.unit_system, self)
         dlg.accepted.connect(lambda: self._apply_table(dlg))
         dlg.rejected.connect(self.refresh)  # put the combo back if the user cancels
         self.table_dialog = dlg
         dlg.open()
         return dlg
+
+    def remember_table(self) -> None:
+        """Keep the current alternative's user table, so choosing it again after another fluid restores it."""
+        alt = self.doc.current_alternative
+        if alt.fluid.kind == "table":
+            self._last_tables[alt.name] = alt.fluid
 
     def _apply_table(self, dlg: FluidTableDialog) -> None:
         if dlg.result_fluid is not None:
