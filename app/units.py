@@ -184,7 +184,7 @@ def _format_number(v: float, digits: int, quantity: str) -> str:
     if v == 0:
         return "0"
     mag = math.floor(math.log10(abs(v)))
-    if mag >= 6 or mag < -3:
+    if mag >= 9 or mag < -3:
         return f"{v:.{digits - 1}e}"
     decimals = max(0, digits - 1 - mag)
     return f"{v:,.{decimals}f}".replace(",", "\u2009")

@@ -43,13 +43,15 @@ PRESSURE_HINT = "Absolute pressure. Gauge pressure: add (g), e.g. 3 bar(g); plai
 
 
 def format_for_edit(value_si: Optional[float], quantity: str, system: str) -> str:
-    """Text put into the box: the display-unit number with up to 6 significant digits."""
+    """Text put into the box: the display-unit number with up to 5 significant digits.
+
+    Only shown: the model keeps its value until the user types a different one."""
     if value_si is None or not math.isfinite(value_si):
         return ""
     v = units.to_display(value_si, quantity, system)
     if abs(v) < 1e-12:
         v = 0.0
-    return f"{v:.6g}"
+    return f"{v:.5g}"
 
 
 class QuantityEdit(QWidget):
