@@ -277,6 +277,12 @@ def friction_factor(Re, relative_roughness):
     """
     Re = _require_positive("Re", Re)
     eD = _require_non_negative("relative_roughness", relative_roughness)
+    # whole arrays in one regime skip the others (same values: the blend weight is 0 or 1 there)
+    re_min, re_max = float(np.min(Re)), float(np.max(Re))
+    if re_max <= RE_LAMINAR_MAX:
+        return 64.0 / Re
+    if re_min >= RE_COLEBROOK_MIN:
+        return _colebrook(Re, eD)
     f = _colebrook(np.maximum(Re, RE_COLEBROOK_MIN), eD)  # Colebrook at 4000 wherever Re <= 4000
     f_laminar = 64.0 / np.minimum(Re, RE_LAMINAR_MAX)
     weight = _clip((Re - RE_LAMINAR_MAX) * (1.0 / (RE_COLEBROOK_MIN - RE_LAMINAR_MAX)), 0.0, 1.0)
@@ -461,13 +467,21 @@ def nusselt_inside(Re, Pr, f_darcy, x_over_D, boundary, relative_roughness=0.0):
     Pr = _require_positive("Pr", Pr)
     d_over_x = 1.0 / _x_over_d(x_over_D)
     cbrt_Pr = np.cbrt(Pr)
+    # whole arrays in one regime skip the others (same values: the blend weight is 0 or 1 there)
+    re_min, re_max = float(np.min(Re)), float(np.max(Re))
+    if re_min >= RE_TURBULENT_MIN:
+        return _gnielinski(Re, Pr, np.asarray(f_darcy, dtype=float), cbrt_Pr, d_over_x)
+    if re_max <= RE_LAMINAR_MAX:
+        return _laminar(Re, Pr, d_over_x, cbrt_Pr, boundary)
     nu_laminar = _laminar(np.minimum(Re, RE_LAMINAR_MAX), Pr, d_over_x, cbrt_Pr, boundary)
     turbulent = Re >= RE_TURBULENT_MIN
     relative_roughness = np.asarray(relative_roughness, dtype=float)
     if relative_roughness.ndim == 0:
         f_at_1e4 = _colebrook_at_1e4(float(relative_roughness))  # one value: skip the array machinery
     else:
-        f_at_1e4 = colebrook(RE_TURBULENT_MIN, relative_roughness)
+        # a line has one roughness per segment: solve Colebrook once per distinct value
+        values, where = np.unique(relative_roughness, return_inverse=True)
+        f_at_1e4 = np.array([_colebrook_at_1e4(float(v)) for v in values])[where.reshape(relative_roughness.shape)]
     f_turb = np.where(turbulent, f_darcy, f_at_1e4)
     nu_turbulent = _gnielinski(np.maximum(Re, RE_TURBULENT_MIN), Pr, f_turb, cbrt_Pr, d_over_x)
     gamma = _clip((Re - RE_LAMINAR_MAX) * (1.0 / (RE_TURBULENT_MIN - RE_LAMINAR_MAX)), 0.0, 1.0)
