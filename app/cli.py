@@ -27,7 +27,13 @@ SUBCOMMANDS = ("solve", "report", "schema")
 def main(argv: list[str] | None = None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
     if argv and argv[0] in SUBCOMMANDS:
-        return _headless(argv)
+        try:
+            return _headless(argv)
+        except BrokenPipeError:  # output piped into `head` and the like: stop quietly
+            import os
+
+            os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+            return EXIT_OK
     return _gui(argv)
 
 
