@@ -69,7 +69,7 @@ PROFILE_COLUMNS: dict[str, tuple[str, str]] = {
     "pressure_Pa": ("Pressure", "Pa"),
     "heat_flux_W_per_m2": ("Heat flux into fluid at inner wall", "W/m²"),
     "heat_to_fluid_W_per_m": ("Heat to fluid per length", "W/m"),
-    "heat_loss_W_per_m": ("Heat loss per length", "W/m"),
+    "heat_loss_W_per_m": ("Heat loss per length (− = gained)", "W/m"),
     "inside_coefficient_W_per_m2K": ("Inside film coefficient", "W/(m²·K)"),
     "reynolds": ("Reynolds number", "-"),
     "velocity_m_per_s": ("Velocity", "m/s"),
