@@ -16,13 +16,13 @@ import io
 import math
 import os
 import re
-import tempfile
 from pathlib import Path
 from typing import Iterable, Mapping, Sequence
 
 import numpy as np
 
 from app import units
+from solver.project_io import atomic_write_text
 from solver.results import PROFILE_COLUMNS, Result
 
 # Profile column -> quantity in app.units. Every PROFILE_COLUMNS key must be here.
@@ -86,22 +86,7 @@ def profiles_csv_text(result: Result, unit_system: str = "SI") -> str:
 
 
 def _atomic_write_text(path: Path, text: str) -> Path:
-    path = Path(path)
-    directory = path.parent if str(path.parent) else Path(".")
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=directory)
-    try:
-        with os.fdopen(fd, "w", encoding=_ENCODING, newline="") as fh:
-            fh.write(text)
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.replace(tmp, path)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
-        raise
-    return path
+    return atomic_write_text(path, text, encoding=_ENCODING, newline="")
 
 
 def write_profiles_csv(result: Result, path: str | os.PathLike, unit_system: str = "SI") -> Path:

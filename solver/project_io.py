@@ -145,16 +145,26 @@ def dump_project(project: Project) -> str:
 def save_project(project: Project, path: str | os.PathLike) -> Path:
     """Write atomically; on any failure the existing file is left as it was and OSError is raised."""
     target = Path(path)
-    text = dump_project(project)
-    directory = target.parent if str(target.parent) else Path(".")
     if target.is_dir():
         raise IsADirectoryError(f"cannot save over a folder: {target}")
+    return atomic_write_text(target, dump_project(project))
+
+
+def atomic_write_text(path: str | os.PathLike, text: str, encoding: str = "utf-8", newline: str | None = None) -> Path:
+    """Write ``text`` to a temporary file beside ``path``, flush it to disk, then replace ``path``.
+
+    A failure at any point leaves an existing file as it was and no temporary file behind. The
+    new file keeps the permissions of the one it replaces (or the usual ones for a new file).
+    """
+    target = Path(path)
+    directory = target.parent if str(target.parent) else Path(".")
     fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=directory)
     try:
-        with os.fdopen(fd, "w", encoding="utf-8") as fh:
+        with os.fdopen(fd, "w", encoding=encoding, newline=newline) as fh:
             fh.write(text)
             fh.flush()
             os.fsync(fh.fileno())
+        os.chmod(tmp, _mode_for(target))
         os.replace(tmp, target)
     except BaseException:
         try:
@@ -163,3 +173,12 @@ def save_project(project: Project, path: str | os.PathLike) -> Path:
             pass
         raise
     return target
+
+
+def _mode_for(target: Path) -> int:
+    try:
+        return target.stat().st_mode & 0o777
+    except OSError:
+        umask = os.umask(0)
+        os.umask(umask)
+        return 0o666 & ~umask

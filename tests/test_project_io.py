@@ -329,3 +329,20 @@ def test_unknown_nps_and_schedule_are_refused_on_load_with_their_paths():
     assert "got '2-3/8'" in problems["alternatives[0].segments[0].pipe.nps"]
     assert "got '170'" in problems["alternatives[0].segments[1].pipe.schedule"]
     assert "40" in problems["alternatives[0].segments[1].pipe.schedule"]  # lists what exists
+
+
+def test_saved_files_get_the_usual_permissions_not_the_temporary_files(tmp_path):
+    # mkstemp makes 0600 files; a saved project should be readable like any other file (common practice)
+    from solver.project_io import atomic_write_text
+
+    umask = os.umask(0o022)
+    try:
+        new = atomic_write_text(tmp_path / "new.txt", "x")
+        assert new.stat().st_mode & 0o777 == 0o644
+        existing = tmp_path / "shared.txt"
+        existing.write_text("old")
+        existing.chmod(0o664)
+        atomic_write_text(existing, "new")
+        assert existing.stat().st_mode & 0o777 == 0o664 and existing.read_text() == "new"
+    finally:
+        os.umask(umask)
