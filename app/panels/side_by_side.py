@@ -1,7 +1,7 @@
 """Side-by-Side: the project's alternatives compared.
 
 Profiles of the chosen alternatives overlaid (one colour and line style each,
-a legend, segment boundaries per alternative), Key Figures with one column per
+the chooser as colour key, segment boundaries per alternative), Key Figures with one column per
 alternative and the difference against the baseline, the design targets met or
 missed, and the Checks of each. Every alternative is solved here (off the GUI
 thread); unchanged alternatives are not solved again. Numbers come from
@@ -114,7 +114,7 @@ class SideBySidePanel(QWidget):
         left = QWidget(self)
         lv = QVBoxLayout(left)
         lv.setContentsMargins(0, 0, 0, 0)
-        lv.addWidget(QLabel("Overlay", left))
+        lv.addWidget(QLabel("Shown (colour key)", left))
         lv.addWidget(self.chooser, 1)
         lv.addWidget(self.status)
 
@@ -123,7 +123,8 @@ class SideBySidePanel(QWidget):
         self.pressure_plot = pg.PlotWidget(background="w")
         for p in (self.temperature_plot, self.pressure_plot):
             p.showGrid(x=True, y=True, alpha=0.25)
-            p.getPlotItem().addLegend(offset=(-10, 10))
+        # the chooser on the left, in each alternative's colour, is the legend: a legend inside the
+        # plots would cover the curves, which often run close together
         self.pressure_plot.setXLink(self.temperature_plot)
         plots = QWidget(self)
         pv = QVBoxLayout(plots)
@@ -319,9 +320,9 @@ class SideBySidePanel(QWidget):
             wall = units.to_display(np.asarray(r.profile.inner_wall_temperature_K, dtype=float), "temperature", system)
             pres = units.to_display(np.asarray(r.profile.pressure_Pa, dtype=float), "pressure", system)
             if name not in self._curves:
-                c_bulk = tp.plot(name=name, pen=self._pen(i, 2.2))
+                c_bulk = tp.plot(pen=self._pen(i, 2.2))
                 c_wall = tp.plot(pen=self._pen(i, 1.2, "dot"))  # same colour, dotted; no legend entry
-                c_pres = pp.plot(name=name, pen=self._pen(i, 2.0))
+                c_pres = pp.plot(pen=self._pen(i, 2.0))
                 self._curves[name] = (c_bulk, c_wall, c_pres)
             c_bulk, c_wall, c_pres = self._curves[name]
             c_bulk.setData(x, bulk)
