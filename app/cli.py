@@ -15,7 +15,6 @@ from __future__ import annotations
 import argparse
 import json
 import sys
-from pathlib import Path
 
 EXIT_OK = 0
 EXIT_SOLVER = 1

@@ -25,7 +25,6 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
-import numpy as np  # noqa: E402
 
 from solver import correlations  # noqa: E402
 from solver.catalogue import resolve_pipe  # noqa: E402

@@ -7,7 +7,8 @@ from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
-from solver.model import *
+from solver.model import (Alternative, Buried, Feed, Fitting, FixedWall, Layer, Limits, Pipe, Project, PureFluid,
+                          Segment, SolutionFluid, StillAir, TableFluid, TableRow, Targets, Wind)
 from solver.project_io import save_project
 from solver import solve
 
@@ -140,7 +141,6 @@ projects["nitrogen_header_outdoors"] = Project(
     targets=Targets(max_pressure_drop_Pa=bar(0.8), outlet_temperature_min_K=C(0)),
 )
 
-import json
 for key, proj in projects.items():
     for alt in proj.alternatives:
         r = solve(alt)

@@ -90,6 +90,7 @@ class _SegmentSetup:
     surroundings: object
     fittings: list
     cells: np.ndarray = None  # indices of this segment's cells in the line
+    node_range: tuple = (0, 0)  # first and last index of this segment's nodes in the profile
 
 
 def _resolve_segments(alt: Alternative) -> list[_SegmentSetup]:
@@ -265,7 +266,6 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
     q_in = per_cell("heat_input_W_per_m")
     t_inf = per_cell("medium_temperature_K")
     d_outer = per_cell("outer_diameter_m")
-    d_pipe_out = per_cell("pipe_outer_diameter_m")
     seg_len = per_cell("length_m")
     dz = per_cell("elevation_change_m") * dx / seg_len
     kinds = np.array([s.kind for s in setups])[seg_of_cell]
@@ -332,8 +332,9 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
     area_film = math.pi * d_film
     converged = False
     last_change = math.inf
-    h_target = None
-    dT_heat = None
+    h_target = None  # enthalpy at the nodes from the last pass (None before the first)
+    Q_cell = None  # heat to the fluid per cell from the last pass
+    last_step = math.inf
     strikes = 0
     tsat_in = float(fluid.saturation_temperature(np.array([p_in]))[0])
     liquid_feed = bool(math.isfinite(tsat_in) and t_in < tsat_in)
@@ -373,7 +374,6 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
             e_corr = np.diff(T_true) - Q_cell / (m_dot * cp)
         mu = np.sqrt(pn.mu[:-1] * pn.mu[1:])  # viscosity varies exponentially with T
         k = 0.5 * (pn.k[:-1] + pn.k[1:])
-        Tc = 0.5 * (T[:-1] + T[1:])
         velocity = m_dot / (rho * area)
         Re = m_dot * D / (area * mu)
         Pr = cp * mu / k
@@ -728,6 +728,7 @@ def _node_profiles(setups, seg_of_cell, x_node, T, p, dx, D, area, rel_rough, bo
     for s, nodes in zip(setups, node_index):
         cells = s.cells
         k0, k1 = offset, offset + nodes.size - 1
+        s.node_range = (k0, k1)
         duty = float(np.sum(Q_cell[cells]))
         heat_in = float(np.sum(input_cell[cells]))
         spans.append(SegmentSpan(
@@ -757,18 +758,10 @@ def _segment_K(s: _SegmentSetup, re_nodes: np.ndarray) -> float:
 def _exposed_mask(setups, prof: Profile) -> np.ndarray:
     """Nodes whose outer surface people can touch (in air)."""
     mask = np.zeros(prof.x_m.size, dtype=bool)
-    for span, s in zip(prof_spans(setups, prof), setups):
+    for span, s in zip([s.node_range for s in setups], setups):
         if s.kind in ("still_air", "wind"):
             mask[span[0]:span[1] + 1] = True
     return mask
-
-
-def prof_spans(setups, prof):
-    spans, offset = [], 0
-    for s in setups:
-        spans.append((offset, offset + s.n_cells))
-        offset += s.n_cells + 1
-    return spans
 
 
 def _phase_or_range_problem(fluid, T, p, t_lo, t_hi, liquid_feed, tsat):
@@ -819,13 +812,6 @@ def _check_state_in_range(fluid, t, p, alt_name):
 # --------------------------------------------------------------------------- checks
 
 
-def _cells_of(seg_of_cell: np.ndarray, index: int) -> np.ndarray:
-    """Cell indices of one segment (segments own contiguous runs of cells)."""
-    lo = int(np.searchsorted(seg_of_cell, index, side="left"))
-    hi = int(np.searchsorted(seg_of_cell, index, side="right"))
-    return np.arange(lo, hi)
-
-
 def _T(t: float) -> str:
     """A temperature [K] inside a check message, shown later in the reader's units."""
     return f"⟦T:{float(t):.6f}⟧"
@@ -851,7 +837,7 @@ def _first_where(mask: np.ndarray):
 def _checks(alt, fluid, setups, prof, seg_of_cell, x_mid, Re, Pr, velocity, T_surface, film_mask, t_inf, d_outer,
             wind_speed, air) -> list[Check]:
     out: list[Check] = []
-    spans = prof_spans(setups, prof)
+    spans = [s.node_range for s in setups]
     Tm = prof.bulk_temperature_K
     Tw = prof.inner_wall_temperature_K
     Ts = prof.outer_surface_temperature_K
@@ -1060,7 +1046,7 @@ def _no_flow_checks(alt, fluid, setups, seg_of_cell, x_mid, q_in, t_inf, r_out_t
 def _dew_point_checks(setups, prof: Profile) -> list[Check]:
     """Moisture condenses on an outer surface colder than the dew point of the surrounding air."""
     out = []
-    for s, (a, b) in zip(setups, prof_spans(setups, prof)):
+    for s, (a, b) in zip(setups, [s.node_range for s in setups]):
         rh = getattr(s.surroundings, "relative_humidity", None)
         if rh is None or rh <= 0.0:
             continue

@@ -18,6 +18,7 @@ from pydantic import (
     ConfigDict,
     Field,
     PositiveFloat,
+    ValidationInfo,
     field_validator,
     model_validator,
 )
@@ -155,26 +156,48 @@ class Pipe(_Model):
     roughness_m: Optional[NonNegativeFloat] = Field(None, description="absolute roughness; None = material default")
     wall_conductivity_W_per_mK: Optional[PositiveFloat] = Field(None, description="None = material default")
 
+    # An NPS or schedule that ASME B36.10M/B36.19M does not list is refused on entry, on the field
+    # itself, so a file or an edit with one never reaches the solver.
+    @field_validator("nps")
+    @classmethod
+    def _nps_listed(cls, nps: Optional[str]) -> Optional[str]:
+        if nps:
+            from solver.catalogue import normalise_nps  # late: the catalogue imports this module
+
+            _catalogue_check(lambda: normalise_nps(nps))
+        return nps
+
+    @field_validator("schedule")
+    @classmethod
+    def _schedule_listed(cls, schedule: Optional[str], info: ValidationInfo) -> Optional[str]:
+        nps = info.data.get("nps")
+        if schedule and nps and info.data.get("bore") == "nps":
+            from solver.catalogue import pipe_dimensions
+
+            _catalogue_check(lambda: pipe_dimensions(nps, schedule))
+        return schedule
+
     @model_validator(mode="after")
     def _bore_complete(self) -> "Pipe":
         if self.bore == "nps":
             if not self.nps or not self.schedule:
                 raise ValueError(f"bore 'nps' needs nps and schedule, got nps={self.nps!r}, schedule={self.schedule!r}")
-            # an NPS or schedule that ASME B36.10M/B36.19M does not list is refused on entry,
-            # so a file or an edit with one never reaches the solver
-            from solver.catalogue import pipe_dimensions  # late: the catalogue imports this module
-            from solver.errors import InputError
-
-            try:
-                pipe_dimensions(self.nps, self.schedule)
-            except InputError as exc:
-                raise ValueError(f"{exc.field.removeprefix('pipe.')}: {exc.reason}, got {exc.value!r}") from None
         else:
             if self.inner_diameter_m is None:
                 raise ValueError("bore 'diameter' needs inner_diameter_m, got None")
             if self.wall_thickness_m is None:
                 raise ValueError("bore 'diameter' needs wall_thickness_m (0 for a thin wall), got None")
         return self
+
+
+def _catalogue_check(look_up) -> None:
+    """Run a catalogue look-up; its InputError becomes the ValueError pydantic reports on the field."""
+    from solver.errors import InputError
+
+    try:
+        look_up()
+    except InputError as exc:
+        raise ValueError(f"{exc.reason}, got {exc.value!r}") from None
 
 
 class Layer(_Model):

@@ -11,7 +11,6 @@ from __future__ import annotations
 
 import json
 import os
-import re
 import tempfile
 from pathlib import Path
 from typing import Any, Callable
@@ -74,19 +73,6 @@ def _strip_union_tags(loc: tuple) -> tuple:
     return tuple(cleaned)
 
 
-def _all_field_names() -> set[str]:
-    import solver.model as model
-
-    names: set[str] = set()
-    for obj in vars(model).values():
-        if isinstance(obj, type) and issubclass(obj, model.BaseModel) and obj is not model.BaseModel:
-            names.update(obj.model_fields)
-    return names
-
-
-_FIELD_NAMES = _all_field_names()
-
-
 def validation_problems(exc: ValidationError) -> list[tuple[str, str]]:
     """Every pydantic error as ``(path, 'message, got value')``."""
     problems = []
@@ -94,11 +80,6 @@ def validation_problems(exc: ValidationError) -> list[tuple[str, str]]:
         loc = _strip_union_tags(tuple(err.get("loc", ())))
         msg = err.get("msg", "invalid")
         msg = msg.removeprefix("Value error, ")
-        # a model-level check that names one field ("nps: ...") points at that field
-        m = re.match(r"^([a-z_]+[A-Za-z0-9_]*): (.*)$", msg, re.S)
-        if m and m.group(1) in _FIELD_NAMES:
-            loc = loc + (m.group(1),)
-            msg = m.group(2)
         if err.get("type") in ("missing",):
             text = "required, missing"
         elif "got" in msg:

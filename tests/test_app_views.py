@@ -267,7 +267,9 @@ def test_checks_sorted_click_selects_and_marks(qtbot, doc):
         Check("info", "test_info", "An informative finding.", segment=0, x_m=1.0),
         Check("danger", "test_danger", "A dangerous finding.", segment=3, x_m=90.0),
     ]
-    doc.result_ready.emit(dataclasses.replace(result, checks=list(result.checks) + extra))
+    # as the document does: it holds the result the views read, then signals
+    doc.result = dataclasses.replace(result, checks=list(result.checks) + extra)
+    doc.result_ready.emit(doc.result)
     tree = panel.tree
     ranks = {"danger": 2, "warning": 1, "info": 0}
     sev = [tree.topLevelItem(i).data(0, ROLE_CHECK).severity for i in range(tree.topLevelItemCount())]
@@ -291,7 +293,8 @@ def test_checks_sorted_click_selects_and_marks(qtbot, doc):
 def test_checks_empty_says_no_findings(qtbot, doc):
     panel = show(qtbot, ChecksPanel(doc), 600, 200)
     result = doc.solve_now()
-    doc.result_ready.emit(dataclasses.replace(result, checks=[]))
+    doc.result = dataclasses.replace(result, checks=[])
+    doc.result_ready.emit(doc.result)
     assert panel.tree.topLevelItemCount() == 1
     assert "No findings" in panel.tree.topLevelItem(0).text(1)
     assert panel.tree.topLevelItem(0).data(0, ROLE_CHECK) is None

@@ -53,8 +53,6 @@ class ChecksPanel(QWidget):
         self.doc = doc
         self.setObjectName("Checks")
         self.setWindowTitle("Checks")
-        self._result = getattr(doc, "result", None)
-        self._stale = False
 
         self.header = QLabel("")
         self.header.setTextFormat(Qt.RichText)
@@ -95,26 +93,13 @@ class ChecksPanel(QWidget):
         lay.addWidget(self.detail)
         self.tree.currentItemChanged.connect(self._show_detail)
 
-        doc.result_ready.connect(self._on_result)
-        doc.solve_failed.connect(self._on_failed)
+        # the document holds the result and whether it is stale; this view only redraws
+        doc.result_ready.connect(lambda _r: self.refresh())
+        doc.solve_failed.connect(lambda _m: self.refresh())
         doc.units_changed.connect(lambda _s: self.refresh())
         doc.project_changed.connect(self.refresh)  # segment names may change
-        doc.project_replaced.connect(self._on_replaced)
-        doc.current_alternative_changed.connect(lambda _i: self._on_replaced())
-        self.refresh()
-
-    def _on_result(self, result) -> None:
-        self._result = result
-        self._stale = False
-        self.refresh()
-
-    def _on_failed(self, _message: str) -> None:
-        self._stale = True
-        self.refresh()
-
-    def _on_replaced(self) -> None:
-        self._result = getattr(self.doc, "result", None)
-        self._stale = False
+        doc.project_replaced.connect(self.refresh)
+        doc.current_alternative_changed.connect(lambda _i: self.refresh())
         self.refresh()
 
     def _segment_name(self, index) -> str:
@@ -123,15 +108,15 @@ class ChecksPanel(QWidget):
         segs = self.doc.current_alternative.segments
         if 0 <= index < len(segs):
             return segs[index].name
-        if self._result is not None and 0 <= index < len(self._result.segments):
-            return self._result.segments[index].name
+        if self.doc.result is not None and 0 <= index < len(self.doc.result.segments):
+            return self.doc.result.segments[index].name
         return f"segment {index + 1}"
 
     def refresh(self) -> None:
         self.tree.clear()
         self.detail.hide()
         system = self.doc.unit_system
-        res = self._result
+        res = self.doc.result
         if res is None:
             self.header.setText(f"<span style='color:{style.INK_MUTED}'>Checks appear once the line is solved.</span>")
             return
@@ -144,7 +129,7 @@ class ChecksPanel(QWidget):
             if n
         ]
         head = " · ".join(parts) if parts else "No findings"
-        if self._stale:
+        if self.doc.result_is_stale:
             head += f" &nbsp;<span style='color:{style.INK_MUTED}'>(stale: the last edit could not be solved)</span>"
         self.header.setText(head)
 
@@ -188,7 +173,7 @@ class ChecksPanel(QWidget):
         if check.segment is not None:
             self.doc.select_segment(check.segment)
         x = check.x_m
-        if x is None and check.segment is not None and self._result is not None and check.segment < len(self._result.segments):
-            span = self._result.segments[check.segment]
+        if x is None and check.segment is not None and self.doc.result is not None and check.segment < len(self.doc.result.segments):
+            span = self.doc.result.segments[check.segment]
             x = 0.5 * (span.x_start_m + span.x_end_m)
         self.doc.mark_position(float(x) if x is not None else math.nan)

@@ -341,20 +341,20 @@ class FeedPanel(QWidget):
 
     # ------------------------------------------------------------------ model -> widgets
 
-    def _on_units(self, system: str) -> None:
-        # text typed but not committed is read in the units it was typed in, before they change
+    def _commit_pending(self) -> None:
+        """Commit text typed but not yet committed (a selection or unit change may not take focus)."""
         for e in list(self._qedits):
             if e.isVisibleTo(self) and e.pending:
                 e.commit()
+
+    def _on_units(self, system: str) -> None:
+        self._commit_pending()  # read typed text in the units it was typed in, before they change
         for e in self._qedits:
             e.set_unit_system(system)
         self.refresh()
 
     def _on_alternative(self, *_args) -> None:
-        # text typed but not committed belongs to the alternative it was typed for
-        for e in list(self._qedits):
-            if e.isVisibleTo(self) and e.pending:
-                e.commit()
+        self._commit_pending()  # typed text belongs to the alternative it was typed for
         for e in self._qedits:
             e.reset()
         self.refresh()

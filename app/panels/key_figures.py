@@ -97,8 +97,6 @@ class KeyFiguresPanel(QWidget):
         self.doc = doc
         self.setObjectName("KeyFigures")
         self.setWindowTitle("Key Figures")
-        self._result = getattr(doc, "result", None)
-        self._stale = False
         self._row_of: dict[str, int] = {}
         self._layout: list[tuple[str, str]] = []  # (key, label) of each row the table holds
 
@@ -126,29 +124,16 @@ class KeyFiguresPanel(QWidget):
         lay.addWidget(self.note)
         lay.addWidget(self.table, 1)
 
-        doc.result_ready.connect(self._on_result)
-        doc.solve_failed.connect(self._on_failed)
+        # the document holds the result and whether it is stale; this view only redraws
+        doc.result_ready.connect(lambda _r: self.refresh())
+        doc.solve_failed.connect(lambda _m: self.refresh())
         doc.units_changed.connect(lambda _s: self.refresh())
-        doc.project_replaced.connect(self._on_replaced)
-        doc.current_alternative_changed.connect(lambda _i: self._on_replaced())
-        self.refresh()
-
-    def _on_result(self, result) -> None:
-        self._result = result
-        self._stale = False
-        self.refresh()
-
-    def _on_failed(self, message: str) -> None:
-        self._stale = True
-        self.refresh()
-
-    def _on_replaced(self) -> None:
-        self._result = getattr(self.doc, "result", None)
-        self._stale = False
+        doc.project_replaced.connect(self.refresh)
+        doc.current_alternative_changed.connect(lambda _i: self.refresh())
         self.refresh()
 
     def refresh(self) -> None:
-        res = self._result
+        res = self.doc.result
         if res is None:
             self.table.setRowCount(0)
             self._row_of = {}
@@ -157,11 +142,11 @@ class KeyFiguresPanel(QWidget):
             return
         system = self.doc.unit_system
         note = f"{res.name} · {res.fluid_label} · {res.cells} cells"
-        if self._stale:
+        if self.doc.result_is_stale:
             note = "Stale: the last edit could not be solved; these figures are from the previous result. " + note
         self.note.setText(note)
-        sheet = (f"color: {style.INK if self._stale else style.INK_MUTED}; padding: 3px 6px;"
-                 + ("background: #FCF0D8;" if self._stale else ""))
+        sheet = (f"color: {style.INK if self.doc.result_is_stale else style.INK_MUTED}; padding: 3px 6px;"
+                 + ("background: #FCF0D8;" if self.doc.result_is_stale else ""))
         if self.note.styleSheet() != sheet:  # re-polishing costs a few ms: only when it changes
             self.note.setStyleSheet(sheet)
         rows = key_figure_rows(res, system)
