@@ -13,7 +13,68 @@ from typing import Literal, Optional
 import numpy as np
 
 Severity = Literal["info", "warning", "danger"]
+#: The one severity order: higher is worse. Sort worst first with ``-SEVERITY_ORDER[s]``.
 SEVERITY_ORDER = {"info": 0, "warning": 1, "danger": 2}
+
+
+def check_sort_key(check: "Check") -> tuple:
+    """Worst first, then in flow order: the one order every list of checks uses."""
+    return (-SEVERITY_ORDER.get(check.severity, -1), check.x_m if check.x_m is not None else 0.0)
+
+
+# --------------------------------------------------------------------------- words every output shares
+
+#: Cautions shown in the app and printed in every report (common practice in engineering software for
+#: heated lines; the wording is ours). The banner is the one-line form of the same list.
+CAUTIONS: tuple[str, ...] = (
+    "Results are engineering estimates from idealised models and published correlations; their "
+    "uncertainty is often 10–25 % for film coefficients and more in transitional flow. They are not "
+    "a substitute for a design check.",
+    "Hot surfaces burn: heated lines and their supports can exceed safe touch temperatures; provide "
+    "personnel protection where the outer surface is hot.",
+    "A heated liquid that is blocked in (valves closed on both sides) expands and can overpressure "
+    "the line; provide thermal relief.",
+    "Lines can freeze or boil: loss of tracing, flow or insulation, or a control failure, can take "
+    "the fluid outside the range computed here.",
+    "Tracing in hazardous (classified) areas has temperature-class limits on the maximum sheath and "
+    "surface temperature; this tool does not certify compliance.",
+    "Defer to local codes, the applicable piping and electrical standards, the equipment "
+    "manufacturers' data and licensed engineering review before anything is bought or built.",
+)
+CAUTIONS_BANNER = (
+    "Engineering estimates only — hot surfaces burn · blocked-in heated liquid overpressures · "
+    "lines can freeze or boil · tracing in hazardous areas has temperature-class limits · "
+    "defer to local codes, the applicable standards and licensed engineering review."
+)
+
+#: What every solve assumes; the report prints this list.
+ASSUMPTIONS: tuple[str, ...] = (
+    "Steady state: no start-up, shut-down or cycling transients.",
+    "One-dimensional flow marched along the line in flow order; the fluid is single-phase. Where a "
+    "check reports boiling, flashing or freezing, the results beyond that point are not valid.",
+    "No axial heat conduction in the fluid or the wall.",
+    "Fluid properties from CoolProp (pure fluids, aqueous solutions) or from the user's table, "
+    "evaluated locally along the line at the bulk temperature; no wall-viscosity correction; table "
+    "data are not extrapolated.",
+    "Potential energy is in the energy balance; kinetic energy is neglected. Friction heats the fluid "
+    "(enthalpy includes flow work), so an adiabatic liquid line warms slightly.",
+    "Hydrodynamic and thermal entry lengths are counted from the line inlet.",
+    "Heat input (tracing) is uniform around the pipe and along each segment and enters at the outer "
+    "surface of the pipe wall, under the insulation; local hot spots at a tracer's contact line "
+    "are not modelled.",
+    "Pipe wall and insulation layers conduct radially with the constant conductivities entered or "
+    "taken from the material catalogue; no contact resistance between layers. With a jacket or a "
+    "fixed wall temperature, insulation layers play no part.",
+    "Outside: natural convection or wind in cross-flow plus radiation to surroundings at the ambient "
+    "temperature, in air at 1 atm; a buried pipe loses heat by conduction to a ground surface at the "
+    "soil temperature.",
+    "Fittings act through loss coefficients K on the local velocity head, spread evenly over their "
+    "segment; elevation changes act through the local density.",
+    "Hydraulic power is the local volume flow times the pressure drop summed along "
+    "the line; divide by the pump efficiency for shaft power.",
+    "Correlations are used within their published ranges where possible; a check is raised when a "
+    "state falls outside a correlation's range or in transitional flow.",
+)
 
 
 @dataclass(frozen=True)
@@ -137,6 +198,110 @@ class PressureDropBreakdown:
         return self.friction_Pa + self.fittings_Pa + self.elevation_Pa + self.acceleration_Pa
 
 
+# --------------------------------------------------------------------------- the one list of key figures
+
+
+@dataclass(frozen=True)
+class KeyFigure:
+    """One headline figure: its key, the one label every view prints, its quantity and its method.
+
+    ``key`` is the key of :meth:`Result.key_figures` and of the JSON results. ``quantity`` names a
+    quantity of ``app.units`` for the value; ``difference_quantity`` the one for a difference of two
+    values (a temperature difference is not a temperature). ``part_of`` names the figure this one is a
+    share of (indented under it). ``position_key`` names the key of the position where the value
+    occurs; ``inlet_key`` the inlet value it is read against. ``negative_label`` is the label to use,
+    with the sign turned, when the value is negative (heat loss that is really a gain).
+    """
+
+    key: str
+    label: str
+    quantity: str
+    group: str
+    method: str
+    difference_quantity: str = ""
+    part_of: str = ""
+    position_key: str = ""
+    inlet_key: str = ""
+    negative_label: str = ""
+
+    @property
+    def delta_quantity(self) -> str:
+        if self.difference_quantity:
+            return self.difference_quantity
+        return {"temperature": "temperature_difference", "pressure": "pressure_difference"}.get(
+            self.quantity, self.quantity)
+
+
+def _kf(key, label, quantity, group, method, **kw) -> KeyFigure:
+    return KeyFigure(key, label, quantity, group, method, **kw)
+
+
+#: The Key Figures, in reading order, read by the Key Figures panel, Side-by-Side, the CLI table,
+#: ``--json`` and the report.
+KEY_FIGURES: tuple[KeyFigure, ...] = (
+    _kf("outlet_temperature_K", "Outlet temperature", "temperature", "Outlet",
+        "Bulk (mixing-cup) temperature at the last node, from the outlet enthalpy and pressure.",
+        inlet_key="inlet_temperature_K"),
+    _kf("outlet_pressure_Pa", "Outlet pressure", "pressure", "Outlet",
+        "Absolute pressure at the last node.", inlet_key="inlet_pressure_Pa"),
+    _kf("pressure_drop_Pa", "Pressure drop", "pressure_difference", "Pressure",
+        "Inlet minus outlet pressure: friction + fittings + elevation + acceleration."),
+    _kf("pressure_drop_friction_Pa", "friction", "pressure_difference", "Pressure",
+        "Darcy friction factor × (dx/D) × velocity head, summed over cells.", part_of="pressure_drop_Pa"),
+    _kf("pressure_drop_fittings_Pa", "fittings", "pressure_difference", "Pressure",
+        "Loss coefficients K × velocity head, per segment.", part_of="pressure_drop_Pa"),
+    _kf("pressure_drop_elevation_Pa", "elevation", "pressure_difference", "Pressure",
+        "Local density × g × rise; negative where the line goes down.", part_of="pressure_drop_Pa"),
+    _kf("pressure_drop_acceleration_Pa", "acceleration", "pressure_difference", "Pressure",
+        "Mass flux² × change of 1/density (gases speeding up).", part_of="pressure_drop_Pa"),
+    _kf("pump_power_W", "Hydraulic power", "power", "Pressure",
+        "Local volume flow × pressure drop, summed along the line (before pump efficiency)."),
+    _kf("duty_W", "Heat to fluid", "power", "Heat",
+        "Heat taken up by the fluid = heat input − heat loss; negative when the fluid is cooled."),
+    _kf("heat_input_W", "Heat input", "power", "Heat",
+        "Tracing plus heat from heating or cooling media (jackets, fixed-temperature walls)."),
+    _kf("heat_input_tracing_W", "tracing", "power", "Heat",
+        "Tracing output in W/m × segment length, summed.", part_of="heat_input_W"),
+    _kf("heat_input_media_W", "jackets and heated walls", "power", "Heat",
+        "Heat from jackets and fixed-temperature walls; negative where they cool.", part_of="heat_input_W"),
+    _kf("heat_loss_W", "Heat loss to surroundings", "power", "Heat",
+        "Heat to the ambient air and soil; negative when the surroundings heat the line.",
+        negative_label="Heat gained from surroundings"),
+    _kf("energy_balance_residual_W", "Energy balance residual", "power", "Heat",
+        "m·(h_out − h_in + g·Δz) − heat to fluid; round-off when the march has closed."),
+    _kf("max_inner_wall_temperature_K", "Max inner-wall temperature", "temperature", "Wall and flow",
+        "Highest inner-wall temperature along the line (bulk + heat flux × inside film resistance).",
+        position_key="max_inner_wall_position_m"),
+    _kf("min_inner_wall_temperature_K", "Min inner-wall temperature", "temperature", "Wall and flow",
+        "Lowest inner-wall temperature along the line.", position_key="min_inner_wall_position_m"),
+    _kf("max_outer_surface_temperature_K", "Max outer-surface temperature (in air)", "temperature",
+        "Wall and flow", "Highest temperature of a surface exposed to air (over insulation where there is any).",
+        position_key="max_outer_surface_position_m"),
+    _kf("min_outer_surface_temperature_K", "Min outer-surface temperature (in air)", "temperature",
+        "Wall and flow", "Lowest temperature of a surface exposed to air.",
+        position_key="min_outer_surface_position_m"),
+    _kf("min_velocity_m_per_s", "Min velocity", "velocity", "Wall and flow", "Lowest mean velocity in a cell."),
+    _kf("max_velocity_m_per_s", "Max velocity", "velocity", "Wall and flow", "Highest mean velocity in a cell."),
+    _kf("min_reynolds", "Min Reynolds number", "dimensionless", "Wall and flow",
+        "Lowest Reynolds number in a cell (bore, local viscosity)."),
+    _kf("max_reynolds", "Max Reynolds number", "dimensionless", "Wall and flow",
+        "Highest Reynolds number in a cell."),
+    _kf("residence_time_s", "Residence time", "time", "Wall and flow", "Σ cell length / velocity, inlet to outlet."),
+    _kf("mass_flow_kg_per_s", "Mass flow", "mass_flow", "Wall and flow",
+        "As given, or the volume flow × inlet density."),
+)
+KEY_FIGURE_BY_KEY: dict[str, KeyFigure] = {f.key: f for f in KEY_FIGURES}
+
+
+def key_figure(key: str) -> KeyFigure:
+    """The :class:`KeyFigure` with this key (KeyError names the keys that exist)."""
+    try:
+        return KEY_FIGURE_BY_KEY[key]
+    except KeyError:
+        raise KeyError(f"no key figure {key!r}; known: {', '.join(KEY_FIGURE_BY_KEY)}") from None
+
+
+
 @dataclass
 class Result:
     """Everything solved for one alternative."""
@@ -183,6 +348,13 @@ class Result:
             return None
         return max(self.checks, key=lambda c: SEVERITY_ORDER[c.severity]).severity
 
+    def check_counts(self) -> dict[str, int]:
+        """Number of checks of each severity, worst first: {"danger": n, "warning": n, "info": n}."""
+        counts = {s: 0 for s in sorted(SEVERITY_ORDER, key=SEVERITY_ORDER.get, reverse=True)}
+        for c in self.checks:
+            counts[c.severity] = counts.get(c.severity, 0) + 1
+        return counts
+
     def key_figures(self) -> dict[str, float]:
         """Headline numbers, SI, with the key names of the JSON results."""
         return {
@@ -214,6 +386,8 @@ class Result:
             "min_reynolds": self.reynolds_range[0],
             "max_reynolds": self.reynolds_range[1],
             "mass_flow_kg_per_s": self.mass_flow_kg_per_s,
+            "inlet_temperature_K": self.inlet_temperature_K,
+            "inlet_pressure_Pa": self.inlet_pressure_Pa,
         }
 
     def to_dict(self, include_profile: bool = True) -> dict:
