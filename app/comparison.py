@@ -13,46 +13,14 @@ from typing import NamedTuple, Optional, Sequence
 
 from app import units
 from solver.model import Targets
-from solver.results import Result
+from solver.results import KEY_FIGURES, KeyFigure, Result
 
 
-@dataclass(frozen=True)
-class FigureSpec:
-    """One Key Figures row: result key, label, quantity of the value and of a difference."""
+#: One Key Figures row (the one list lives in :mod:`solver.results`).
+FigureSpec = KeyFigure
 
-    key: str
-    label: str
-    quantity: str
-    difference_quantity: str
-
-
-# The rows of the comparison, in reading order (keys of Result.key_figures()).
-KEY_FIGURE_SPECS: tuple[FigureSpec, ...] = (
-    FigureSpec("outlet_temperature_K", "Outlet temperature", "temperature", "temperature_difference"),
-    FigureSpec("max_inner_wall_temperature_K", "Max inner-wall temperature", "temperature", "temperature_difference"),
-    FigureSpec("min_inner_wall_temperature_K", "Min inner-wall temperature", "temperature", "temperature_difference"),
-    FigureSpec("max_outer_surface_temperature_K", "Max outer-surface temperature (in air)", "temperature",
-               "temperature_difference"),
-    FigureSpec("min_outer_surface_temperature_K", "Min outer-surface temperature (in air)", "temperature",
-               "temperature_difference"),
-    FigureSpec("outlet_pressure_Pa", "Outlet pressure", "pressure", "pressure_difference"),
-    FigureSpec("pressure_drop_Pa", "Pressure drop", "pressure_difference", "pressure_difference"),
-    FigureSpec("pressure_drop_friction_Pa", "  of which friction", "pressure_difference", "pressure_difference"),
-    FigureSpec("pressure_drop_fittings_Pa", "  of which fittings", "pressure_difference", "pressure_difference"),
-    FigureSpec("pressure_drop_elevation_Pa", "  of which elevation", "pressure_difference", "pressure_difference"),
-    FigureSpec("duty_W", "Heat duty to fluid", "power", "power"),
-    FigureSpec("heat_input_W", "Heat input", "power", "power"),
-    FigureSpec("heat_input_tracing_W", "  of which tracing", "power", "power"),
-    FigureSpec("heat_input_media_W", "  of which jackets and heated walls", "power", "power"),
-    FigureSpec("heat_loss_W", "Heat loss to ambient (− = gained)", "power", "power"),
-    FigureSpec("pump_power_W", "Hydraulic power (flow × Δp)", "power", "power"),
-    FigureSpec("mass_flow_kg_per_s", "Mass flow", "mass_flow", "mass_flow"),
-    FigureSpec("min_velocity_m_per_s", "Min velocity", "velocity", "velocity"),
-    FigureSpec("max_velocity_m_per_s", "Max velocity", "velocity", "velocity"),
-    FigureSpec("min_reynolds", "Min Reynolds number", "dimensionless", "dimensionless"),
-    FigureSpec("max_reynolds", "Max Reynolds number", "dimensionless", "dimensionless"),
-    FigureSpec("residence_time_s", "Residence time", "time", "time"),
-)
+#: The rows of the comparison, in reading order: the Key Figures worth comparing.
+KEY_FIGURE_SPECS: tuple[KeyFigure, ...] = tuple(f for f in KEY_FIGURES if f.compared)
 
 
 @dataclass
@@ -237,3 +205,68 @@ def format_target(verdict: TargetVerdict, system: str) -> str:
 
 def all_met(verdicts: Sequence[TargetVerdict]) -> bool:
     return all(v.met for v in verdicts)
+
+
+# --------------------------------------------------------------------------- the verdict at a glance
+
+
+@dataclass(frozen=True)
+class DesignVerdict:
+    """Targets and checks of one solved alternative, judged together.
+
+    A design with a danger or warning check is never shown as simply "met": ``level`` is the worst
+    of the target outcome and the checks: ``"danger"`` (a danger check), ``"missed"`` (a target
+    missed), ``"warning"`` (a warning check), or ``"met"``.
+    """
+
+    targets_met: int
+    targets_total: int
+    danger: int
+    warning: int
+    first_danger: str = ""  # message of the first danger check (worst first, in flow order)
+    first_warning: str = ""
+
+    @property
+    def level(self) -> str:
+        if self.danger:
+            return "danger"
+        if self.targets_met < self.targets_total:
+            return "missed"
+        if self.warning:
+            return "warning"
+        return "met"
+
+    def text(self, detail: bool = True) -> str:
+        """E.g. ``'4/4 targets met · 1 danger: freezes with flow stopped'``."""
+        parts = []
+        if self.targets_total:
+            parts.append(f"{self.targets_met}/{self.targets_total} targets met")
+        if self.danger:
+            parts.append(plural(self.danger, "danger") + (f": {self.first_danger}" if detail and self.first_danger else ""))
+        if self.warning:
+            parts.append(plural(self.warning, "warning")
+                         + (f": {self.first_warning}" if detail and self.first_warning and not self.danger else ""))
+        if not parts:
+            return "no targets set · no warnings"
+        if not self.danger and not self.warning:
+            parts.append("no warnings")
+        return " · ".join(parts)
+
+
+def plural(n: int, word: str, words: str = "") -> str:
+    """``'1 warning'``, ``'3 warnings'``."""
+    return f"{n} {word if n == 1 else (words or word + 's')}"
+
+
+def design_verdict(targets: Optional[Targets], result: Result) -> DesignVerdict:
+    """Targets met and checks raised for ``result``, for the at-a-glance verdict."""
+    verdicts = target_verdicts(targets, result)
+    first = {}
+    for c in result.checks:  # the solver lists the worst first, in flow order
+        first.setdefault(c.severity, c.title)
+    counts = result.check_counts()
+    return DesignVerdict(
+        targets_met=sum(v.met for v in verdicts), targets_total=len(verdicts),
+        danger=counts.get("danger", 0), warning=counts.get("warning", 0),
+        first_danger=first.get("danger", ""), first_warning=first.get("warning", ""),
+    )

@@ -88,6 +88,11 @@ class Check:
     x_m: Optional[float] = None  # position along the line from the inlet
     template: str = ""  # the message with its values as unit tokens; see render_message
 
+    @property
+    def title(self) -> str:
+        """A few plain words for the finding, for one-line verdicts ("freezes with the flow stopped")."""
+        return CHECK_TITLES.get(self.code, self.code.replace("_", " ").lower())
+
     def to_dict(self) -> dict:
         return {
             "severity": self.severity,
@@ -97,6 +102,31 @@ class Check:
             "x_m": self.x_m,
         }
 
+
+#: Short plain titles of the check codes (the messages say the rest).
+CHECK_TITLES: dict[str, str] = {
+    "BOILING_BULK": "the liquid boils",
+    "BOILING_WALL": "boiling at the wall",
+    "NEAR_BOILING": "close to boiling",
+    "CONDENSING_BULK": "the gas condenses",
+    "CONDENSING_WALL": "condensate on the wall",
+    "FREEZING_BULK": "the fluid freezes",
+    "FREEZING_WALL": "frozen layer on the wall",
+    "NEAR_FREEZING": "close to freezing",
+    "WALL_LIMIT": "wall above its limit",
+    "MIN_BULK_LIMIT": "bulk below its minimum",
+    "TRANSITIONAL_FLOW": "transitional flow",
+    "VELOCITY_HIGH": "velocity high",
+    "VELOCITY_LOW": "velocity low",
+    "HOT_SURFACE": "surface hot enough to burn",
+    "COLD_SURFACE": "surface cold enough to injure",
+    "HOT_JACKET": "jacket hot enough to burn",
+    "INSULATION_IGNORED": "insulation plays no part",
+    "CORRELATION_RANGE": "correlation outside its range",
+    "NO_FLOW_HOLD": "too cold with the flow stopped",
+    "NO_FLOW_OVERHEAT": "too hot with the flow stopped",
+    "SURFACE_CONDENSATION": "surface below the dew point",
+}
 
 _TOKEN = re.compile(r"⟦(T|dT|v|q):([-+0-9.eE]+)⟧")
 
@@ -223,16 +253,16 @@ class KeyFigure:
     position_key: str = ""
     inlet_key: str = ""
     negative_label: str = ""
+    compared: bool = True  # shown in comparisons of alternatives (a residual is not worth comparing)
 
-    @property
-    def delta_quantity(self) -> str:
-        if self.difference_quantity:
-            return self.difference_quantity
-        return {"temperature": "temperature_difference", "pressure": "pressure_difference"}.get(
-            self.quantity, self.quantity)
+    def indented_label(self, indent: str = "   ") -> str:
+        """The label, indented under the figure it is a share of."""
+        return f"{indent}{self.label}" if self.part_of else self.label
 
 
 def _kf(key, label, quantity, group, method, **kw) -> KeyFigure:
+    kw.setdefault("difference_quantity", {"temperature": "temperature_difference",
+                                          "pressure": "pressure_difference"}.get(quantity, quantity))
     return KeyFigure(key, label, quantity, group, method, **kw)
 
 
@@ -268,7 +298,7 @@ KEY_FIGURES: tuple[KeyFigure, ...] = (
         "Heat to the ambient air and soil; negative when the surroundings heat the line.",
         negative_label="Heat gained from surroundings"),
     _kf("energy_balance_residual_W", "Energy balance residual", "power", "Heat",
-        "m·(h_out − h_in + g·Δz) − heat to fluid; round-off when the march has closed."),
+        "m·(h_out − h_in + g·Δz) − heat to fluid; round-off when the march has closed.", compared=False),
     _kf("max_inner_wall_temperature_K", "Max inner-wall temperature", "temperature", "Wall and flow",
         "Highest inner-wall temperature along the line (bulk + heat flux × inside film resistance).",
         position_key="max_inner_wall_position_m"),
