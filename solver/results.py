@@ -123,6 +123,7 @@ CHECK_TITLES: dict[str, str] = {
     "HOT_JACKET": "jacket hot enough to burn",
     "INSULATION_IGNORED": "insulation plays no part",
     "CORRELATION_RANGE": "correlation outside its range",
+    "NO_FLOW_FREEZE": "freezes with the flow stopped",
     "NO_FLOW_HOLD": "too cold with the flow stopped",
     "NO_FLOW_OVERHEAT": "too hot with the flow stopped",
     "SURFACE_CONDENSATION": "surface below the dew point",
