@@ -13,6 +13,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from functools import lru_cache
 
+from solver.results import SEVERITY_ORDER
+
 # --------------------------------------------------------------------------- palette (hex)
 
 OKABE_ITO: dict[str, str] = {
@@ -79,9 +81,9 @@ class SeverityStyle:
 
 
 SEVERITIES: dict[str, SeverityStyle] = {
-    "info": SeverityStyle("info", "Info", "i", "circle", OKABE_ITO["blue"], 0),
-    "warning": SeverityStyle("warning", "Warning", "!", "triangle", OKABE_ITO["orange"], 1),
-    "danger": SeverityStyle("danger", "Danger", "×", "octagon", OKABE_ITO["vermillion"], 2),
+    "info": SeverityStyle("info", "Info", "i", "circle", OKABE_ITO["blue"], SEVERITY_ORDER["info"]),
+    "warning": SeverityStyle("warning", "Warning", "!", "triangle", OKABE_ITO["orange"], SEVERITY_ORDER["warning"]),
+    "danger": SeverityStyle("danger", "Danger", "×", "octagon", OKABE_ITO["vermillion"], SEVERITY_ORDER["danger"]),
 }
 OK_STYLE = SeverityStyle("ok", "OK", "✓", "circle", OKABE_ITO["bluish_green"], -1)
 
@@ -180,4 +182,5 @@ def severity_icon(severity: str, size: int = 16):
 
 
 def severity_rank(severity: str) -> int:
-    return SEVERITIES[severity].rank if severity in SEVERITIES else -1
+    """Higher is worse: the solver's one severity order (solver.results.SEVERITY_ORDER)."""
+    return SEVERITY_ORDER.get(severity, -1)

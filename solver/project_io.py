@@ -9,11 +9,12 @@ leaves the existing file untouched.
 
 from __future__ import annotations
 
+import contextlib
 import json
 import os
 import tempfile
 from pathlib import Path
-from typing import Any, Callable
+from typing import Any, Callable, Iterator
 
 from pydantic import ValidationError
 
@@ -132,28 +133,46 @@ def save_project(project: Project, path: str | os.PathLike) -> Path:
 
 
 def atomic_write_text(path: str | os.PathLike, text: str, encoding: str = "utf-8", newline: str | None = None) -> Path:
-    """Write ``text`` to a temporary file beside ``path``, flush it to disk, then replace ``path``.
+    """Write ``text`` to ``path`` through :func:`atomic_replace`."""
+    with atomic_replace(path) as tmp:
+        with open(tmp, "w", encoding=encoding, newline=newline) as fh:
+            fh.write(text)
+    return Path(path)
 
-    A failure at any point leaves an existing file as it was and no temporary file behind. The
-    new file keeps the permissions of the one it replaces (or the usual ones for a new file).
+
+@contextlib.contextmanager
+def atomic_replace(path: str | os.PathLike) -> Iterator[Path]:
+    """The one atomic write: yield a temporary file beside ``path`` to write; on success it is
+    flushed to disk and replaces ``path`` in one step.
+
+    A failure at any point (an exception in the block, an empty file, a failed replace) leaves an
+    existing file as it was and no temporary file behind. The new file keeps the permissions of the
+    one it replaces (or the usual ones for a new file). Used for projects, CSV exports, reports and
+    the autosave file.
     """
     target = Path(path)
+    if target.is_dir():
+        raise IsADirectoryError(f"{target} is a folder, not a file name")
     directory = target.parent if str(target.parent) else Path(".")
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=directory)
+    if not directory.is_dir():
+        raise FileNotFoundError(f"the folder {directory} does not exist")
+    fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=directory)
+    os.close(fd)
+    tmp = Path(tmp_name)
     try:
-        with os.fdopen(fd, "w", encoding=encoding, newline=newline) as fh:
-            fh.write(text)
-            fh.flush()
+        yield tmp
+        if tmp.stat().st_size == 0:
+            raise OSError(f"nothing was written to {target}")
+        with open(tmp, "rb+") as fh:
             os.fsync(fh.fileno())
         os.chmod(tmp, _mode_for(target))
         os.replace(tmp, target)
     except BaseException:
         try:
-            os.unlink(tmp)
+            tmp.unlink()
         except OSError:
             pass
         raise
-    return target
 
 
 def _mode_for(target: Path) -> int:
