@@ -19,10 +19,9 @@ import functools
 import re
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Optional
+from typing import Optional, Protocol
 
 from solver.errors import InputError
-from solver.model import Pipe
 
 # --------------------------------------------------------------------------- pipe table
 
@@ -397,6 +396,23 @@ def _material_key(name: str) -> Optional[str]:
 # --------------------------------------------------------------------------- resolved pipe
 
 
+class PipeSpec(Protocol):
+    """What :func:`resolve_pipe` reads from a pipe: the fields of :class:`solver.model.Pipe`.
+
+    Named here rather than imported, because the model validates NPS and schedule against this
+    table: the model imports the catalogue, never the other way round.
+    """
+
+    bore: str
+    nps: Optional[str]
+    schedule: Optional[str]
+    inner_diameter_m: Optional[float]
+    wall_thickness_m: Optional[float]
+    material: str
+    roughness_m: Optional[float]
+    wall_conductivity_W_per_mK: Optional[float]
+
+
 @dataclass(frozen=True)
 class ResolvedPipe:
     """The numbers the physics uses for one pipe, all SI.
@@ -415,7 +431,7 @@ class ResolvedPipe:
     description: str
 
 
-def resolve_pipe(pipe: Pipe, field_prefix: str = "pipe") -> ResolvedPipe:
+def resolve_pipe(pipe: PipeSpec, field_prefix: str = "pipe") -> ResolvedPipe:
     """Resolve a pipe of the model into dimensions and wall properties.
 
     ``bore == "nps"``: bore, outside diameter and wall from the ASME B36.10M /

@@ -39,6 +39,7 @@ __all__ = [
     "buried_cylinder_resistance",
     "colebrook",
     "cylinder_wall_resistance",
+    "dew_point_magnus",
     "flow_regime",
     "friction_factor",
     "nusselt_churchill_bernstein",
@@ -213,6 +214,14 @@ def colebrook(Re, relative_roughness):
     Turbulent flow, Re >= ~4000; the Moody chart covers 4e3 <= Re <= 1e8,
     0 <= ε/D <= 0.05 (``VALIDITY['colebrook']``). The equation is solved at
     any Re > 0 it is given; below 4000 it is not physical.
+
+    Examples
+    --------
+    At Re = 1e5 and ε/D = 1e-4 the Moody (1944) chart reads f ≈ 0.0185; the
+    ``fluids`` documentation gives ``Colebrook(1E5, 1E-4) = 0.018513866077471``:
+
+    >>> round(float(colebrook(1e5, 1e-4)), 6)
+    0.018514
     """
     Re = _require_positive("Re", Re)
     eD = _require_non_negative("relative_roughness", relative_roughness)
@@ -274,6 +283,16 @@ def friction_factor(Re, relative_roughness):
     Validity
     --------
     Laminar: Re <= 2300. Colebrook: as :func:`colebrook`.
+
+    Examples
+    --------
+    Laminar, f = 64/Re (Hagen–Poiseuille): 64/1000 = 0.064; turbulent, the
+    Colebrook value above (fluids: 0.018513866 at Re = 1e5, ε/D = 1e-4):
+
+    >>> float(friction_factor(1000.0, 1e-4))
+    0.064
+    >>> round(float(friction_factor(1e5, 1e-4)), 6)
+    0.018514
     """
     Re = _require_positive("Re", Re)
     eD = _require_non_negative("relative_roughness", relative_roughness)
@@ -298,6 +317,9 @@ def friction_factor(Re, relative_roughness):
 def flow_regime(Re):
     """Flow regime code: 0 laminar (Re <= 2300), 1 transitional, 2 turbulent (Re >= 1e4).
 
+    The limits are those of Gnielinski's (1995) transition blend, VDI Heat Atlas
+    (2010) G1: laminar up to Re = 2300, fully turbulent from Re = 1e4.
+
     Parameters
     ----------
     Re : array_like — Reynolds number based on the bore [-]
@@ -305,6 +327,15 @@ def flow_regime(Re):
     Returns
     -------
     regime : ndarray of int8
+
+    Validity
+    --------
+    Circular pipes with ordinary inlet disturbance; a very quiet inlet can stay laminar beyond 2300.
+
+    Examples
+    --------
+    >>> flow_regime([1000.0, 2300.0, 5000.0, 1e4]).tolist()
+    [0, 0, 1, 2]
     """
     Re = np.asarray(Re, dtype=float)
     return (Re > RE_LAMINAR_MAX).astype(np.int8) + (Re >= RE_TURBULENT_MIN).astype(np.int8)
@@ -355,6 +386,16 @@ def nusselt_laminar(Re, Pr, x_over_D, boundary):
     Validity
     --------
     Laminar, Re <= 2300; Pr 0.1–1000 (``VALIDITY['laminar_entry']``).
+
+    Examples
+    --------
+    Fully developed (x/D -> ∞), the values of Shah & London (1978): 3.657 for a
+    uniform wall temperature and 48/11 = 4.364 for a uniform heat flux:
+
+    >>> round(float(nusselt_laminar(1000.0, 5.0, np.inf, "T")), 3)
+    3.657
+    >>> round(float(nusselt_laminar(1000.0, 5.0, np.inf, "q")), 3)
+    4.364
     """
     boundary = _boundary(boundary)
     Re = np.asarray(Re, dtype=float)
@@ -406,6 +447,14 @@ def nusselt_gnielinski(Re, Pr, f_darcy, x_over_D=None):
     Validity
     --------
     2300 < Re < 5e6 (3000 in many texts), 0.5 < Pr < 2000 (``VALIDITY['gnielinski']``).
+
+    Examples
+    --------
+    The ``ht`` documentation example ``turbulent_Gnielinski(Re=1E5, Pr=1.2, fd=0.0185)``
+    gives 254.62682749359632 (fully developed):
+
+    >>> round(float(nusselt_gnielinski(1e5, 1.2, 0.0185)), 4)
+    254.6268
     """
     Re = np.asarray(Re, dtype=float)
     Pr = np.asarray(Pr, dtype=float)
@@ -461,6 +510,16 @@ def nusselt_inside(Re, Pr, f_darcy, x_over_D, boundary, relative_roughness=0.0):
     --------
     As the three parts: ``VALIDITY['laminar_entry']`` and ``VALIDITY['gnielinski']``;
     transitional results carry the uncertainty of the regime itself.
+
+    Examples
+    --------
+    Fully developed laminar flow with a uniform heat flux, 4.364 (Shah & London 1978);
+    turbulent flow, Gnielinski as in the ``ht`` example (254.6268 at Re = 1e5, Pr = 1.2, f = 0.0185):
+
+    >>> round(float(nusselt_inside(1000.0, 5.0, 0.064, np.inf, "q")), 3)
+    4.364
+    >>> round(float(nusselt_inside(1e5, 1.2, 0.0185, np.inf, "q")), 4)
+    254.6268
     """
     boundary = _boundary(boundary)
     Re = _require_positive("Re", Re)
@@ -513,6 +572,14 @@ def nusselt_churchill_chu_cylinder(Ra, Pr):
     Validity
     --------
     1e-5 <= Ra <= 1e12, all Pr (``VALIDITY['churchill_chu']``).
+
+    Examples
+    --------
+    The ``ht`` documentation example ``Nu_horizontal_cylinder_Churchill_Chu(Pr=0.69, Gr=2.63E9)``
+    gives 139.13493970073597; here Ra = Gr·Pr:
+
+    >>> round(float(nusselt_churchill_chu_cylinder(2.63e9 * 0.69, 0.69)), 4)
+    139.1349
     """
     Ra = np.asarray(Ra, dtype=float)
     Pr = np.asarray(Pr, dtype=float)
@@ -539,6 +606,15 @@ def nusselt_churchill_bernstein(Re, Pr):
     Validity
     --------
     Re·Pr >= 0.2 (``VALIDITY['churchill_bernstein']``, group ``RePr``).
+
+    Examples
+    --------
+    Air across a cylinder at Re = 6071, Pr = 0.70: Nu ≈ 40.6 in Incropera & DeWitt's
+    worked example (from memory); the ``ht`` documentation example
+    ``Nu_cylinder_Churchill_Bernstein(6071, 0.7)`` gives 40.63708594124974:
+
+    >>> round(float(nusselt_churchill_bernstein(6071.0, 0.7)), 4)
+    40.6371
     """
     Re = np.asarray(Re, dtype=float)
     Pr = np.asarray(Pr, dtype=float)
@@ -564,6 +640,18 @@ def nusselt_mixed(Nu_forced, Nu_natural):
     Returns
     -------
     Nu : ndarray — combined Nusselt number [-]
+
+    Validity
+    --------
+    Assisting and transverse flow, any Re and Ra where each part is valid; an
+    approximation (Churchill 1977), optimistic for opposing flow.
+
+    Examples
+    --------
+    Equal parts combine to 2^(1/3) = 1.26 times either (closed form):
+
+    >>> round(float(nusselt_mixed(10.0, 10.0)), 4)
+    12.5992
     """
     Nu_forced = np.asarray(Nu_forced, dtype=float)
     Nu_natural = np.asarray(Nu_natural, dtype=float)
@@ -588,6 +676,22 @@ def radiation_coefficient(T_surface_K, T_surroundings_K, emissivity):
     Returns
     -------
     h_r : ndarray — radiation heat-transfer coefficient [W/(m² K)]
+
+    Source: the Stefan–Boltzmann law for a small grey surface in large isothermal
+    surroundings (e.g. Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, ch. 1).
+
+    Validity
+    --------
+    A grey, diffuse surface that sees only surroundings much larger than itself, at one
+    temperature; no absorbing gas between them.
+
+    Examples
+    --------
+    A surface at 350 K with ε = 0.9 in surroundings at 300 K loses
+    εσ(Ts⁴ − T∞⁴) = 352.45 W/m² (closed form), so h_r = 352.45 / 50 K = 7.049:
+
+    >>> round(float(radiation_coefficient(350.0, 300.0, 0.9)), 3)
+    7.049
     """
     Ts = _require_positive("T_surface_K", T_surface_K)
     Tinf = _require_positive("T_surroundings_K", T_surroundings_K)
@@ -613,6 +717,21 @@ def cylinder_wall_resistance(D_inner_m, D_outer_m, conductivity):
     Returns
     -------
     R : ndarray — resistance per metre of pipe [K m/W]
+
+    Source: Fourier's law for steady radial conduction through a cylindrical shell
+    (e.g. Incropera & DeWitt, ch. 3).
+
+    Validity
+    --------
+    Steady, radial conduction with a constant conductivity; no contact resistance.
+
+    Examples
+    --------
+    A wall whose outer diameter is twice its inner, with k = 1 W/(m K):
+    ln 2 / (2π) = 0.1103 K m/W (closed form):
+
+    >>> round(float(cylinder_wall_resistance(0.1, 0.2, 1.0)), 4)
+    0.1103
     """
     Di = _require_positive("D_inner_m", D_inner_m)
     Do = _require_positive("D_outer_m", D_outer_m)
@@ -650,6 +769,19 @@ def buried_cylinder_resistance(D_outer_m, depth_m, soil_conductivity):
     ------
     CorrelationInputError (a ValueError) when the depth does not exceed D/2,
     naming the depth and the diameter.
+
+    Validity
+    --------
+    Steady conduction, uniform soil, an isothermal ground surface and an isothermal
+    pipe surface; z > D/2.
+
+    Examples
+    --------
+    A 0.2 m pipe with its centreline 1 m deep in soil of k = 1.2 W/(m K):
+    arccosh(10) / (2π · 1.2) = 0.3970 K m/W (closed form, Incropera & DeWitt Table 4.1):
+
+    >>> round(float(buried_cylinder_resistance(0.2, 1.0, 1.2)), 4)
+    0.397
     """
     D = _require_positive("D_outer_m", D_outer_m)
     z = np.asarray(depth_m, dtype=float)
@@ -684,6 +816,13 @@ def out_of_range(method: str, **groups) -> np.ndarray:
     Returns
     -------
     mask : ndarray of bool, the broadcast shape of the groups
+
+    Examples
+    --------
+    Gnielinski (1976) is published for 0.5 < Pr < 2000 (``VALIDITY['gnielinski']``):
+
+    >>> out_of_range("gnielinski", Re=1e5, Pr=[0.7, 5000.0]).tolist()
+    [False, True]
     """
     try:
         ranges = VALIDITY[method]
@@ -718,6 +857,14 @@ def dew_point_magnus(T_air_K, relative_humidity):
     Validity
     --------
     −40 °C <= t <= 50 °C, saturation vapour pressure within 0.4 % (Alduchov & Eskridge 1996).
+
+    Examples
+    --------
+    Air at 30 °C and 60 % relative humidity: psychrometric tables give a dew point of
+    21.4 °C (from memory):
+
+    >>> round(float(dew_point_magnus(303.15, 0.60)) - 273.15, 1)
+    21.4
     """
     t = np.asarray(T_air_K, dtype=float) - 273.15
     phi = _require_positive("relative_humidity", relative_humidity)

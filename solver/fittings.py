@@ -42,6 +42,8 @@ INCH_M = 0.0254
 _HOOPER = "Hooper, W.B. (1981), Chem. Eng. 88(17), 96-100, 2-K table"
 _DARBY = "Darby, R. (2001), Chem. Eng. 108(4), 127-130, 3-K table"
 _CRANE = "Crane Co., Technical Paper No. 410, 'Flow of Fluids through Valves, Fittings and Pipe'"
+#: The sources of the catalogue's loss coefficients, for the list of methods a solve used.
+SOURCES = (_DARBY, _HOOPER, _CRANE)
 
 
 @dataclass(frozen=True)

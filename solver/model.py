@@ -23,6 +23,9 @@ from pydantic import (
     model_validator,
 )
 
+from solver.catalogue import normalise_nps, pipe_dimensions
+from solver.errors import InputError
+
 FORMAT_TAG = "calorun-project"
 SCHEMA_VERSION = 1
 
@@ -162,8 +165,6 @@ class Pipe(_Model):
     @classmethod
     def _nps_listed(cls, nps: Optional[str]) -> Optional[str]:
         if nps:
-            from solver.catalogue import normalise_nps  # late: the catalogue imports this module
-
             _catalogue_check(lambda: normalise_nps(nps))
         return nps
 
@@ -172,8 +173,6 @@ class Pipe(_Model):
     def _schedule_listed(cls, schedule: Optional[str], info: ValidationInfo) -> Optional[str]:
         nps = info.data.get("nps")
         if schedule and nps and info.data.get("bore") == "nps":
-            from solver.catalogue import pipe_dimensions
-
             _catalogue_check(lambda: pipe_dimensions(nps, schedule))
         return schedule
 
@@ -192,8 +191,6 @@ class Pipe(_Model):
 
 def _catalogue_check(look_up) -> None:
     """Run a catalogue look-up; its InputError becomes the ValueError pydantic reports on the field."""
-    from solver.errors import InputError
-
     try:
         look_up()
     except InputError as exc:

@@ -450,7 +450,6 @@ class PureFluidModel(FluidModel):
             self._badcell = np.zeros((self._nT, self._nP), dtype=bool)
         CP = self._CP
         st = self._st
-        ln10 = math.log(10.0)
         for ci in range(ci0, ci1 + 1):
             for ck in range(ck0, ck1 + 1):
                 if self._filled[ci, ck]:
@@ -485,7 +484,6 @@ class PureFluidModel(FluidModel):
         s = self._side
         c = np.stack([s[:-1, :-1], s[1:, :-1], s[:-1, 1:], s[1:, 1:]])
         self._badcell[:-1, :-1] = (c == 2).any(axis=0) | ((c == -1).any(axis=0) & (c == 1).any(axis=0))
-        del ln10
 
     def _sat_T_at_knot(self, kk, p):
         if self._sat is None:
@@ -512,11 +510,6 @@ class PureFluidModel(FluidModel):
         y = (np.log(p) - self._lnp0) / self._dlnp
         kk = _clip(np.floor(y).astype(np.intp), 0, self._nP - 2)
         return kk, y - kk
-
-    def _T_index(self, T):
-        x = T / _DT - self._i0
-        i = _clip(np.floor(x).astype(np.intp), 0, self._nT - 2)
-        return i, x - i
 
     def _check(self, T, p):
         self._check_finite(T, p)

@@ -129,7 +129,7 @@ CHECK_TITLES: dict[str, str] = {
     "SURFACE_CONDENSATION": "surface below the dew point",
 }
 
-_TOKEN = re.compile(r"⟦(T|dT|v|q):([-+0-9.eE]+)⟧")
+_TOKEN = re.compile(r"⟦(T|dT|v|q|n):([-+0-9.eE]+)⟧")
 
 
 def _si_text(kind: str, value: float) -> str:
@@ -139,13 +139,28 @@ def _si_text(kind: str, value: float) -> str:
         return f"{value:g} K"
     if kind == "v":
         return f"{value:.1f} m/s" if abs(value) >= 10 else f"{value:.2f} m/s"
+    if kind == "n":
+        return plain_number(value)
     return f"{value:.0f} W/m"
+
+
+def plain_number(value: float, digits: int = 3) -> str:
+    """A dimensionless number to ``digits`` significant digits, thin-space grouped, never an exponent
+    (Reynolds 19 700, Prandtl 0.712). The app's units module writes the same format."""
+    if not np.isfinite(value):
+        return "—"
+    if value == 0:
+        return "0"
+    places = digits - 1 - int(np.floor(np.log10(abs(value))))  # decimal places; negative rounds to tens…
+    rounded = round(abs(value), places)
+    text = f"{rounded:,.{max(places, 0)}f}".replace(",", "\u2009")
+    return ("\u2212" if value < 0 else "") + text
 
 
 def render_message(template: str, formatter=None) -> str:
     """A check message with its value tokens written out.
 
-    Tokens are ``⟦T:kelvin⟧``, ``⟦dT:kelvin⟧``, ``⟦v:m/s⟧``, ``⟦q:W/m⟧``. ``formatter(kind, value)``
+    Tokens are ``⟦T:kelvin⟧``, ``⟦dT:kelvin⟧``, ``⟦v:m/s⟧``, ``⟦q:W/m⟧``, ``⟦n:number⟧``. ``formatter(kind, value)``
     writes one value (the GUI passes one for the user's unit system); the default writes SI.
     """
     fmt = formatter or _si_text

@@ -25,7 +25,8 @@ import math
 import numpy as np
 import pytest
 
-from solver.march import GRAVITY, solve
+from solver.line import GRAVITY
+from solver.march import solve
 from solver.model import (
     Adiabatic,
     Alternative,

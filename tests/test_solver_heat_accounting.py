@@ -1,6 +1,7 @@
 """Heat accounting by source, the energy equation with elevation, dew point and no-flow checks."""
 
 import math
+from pathlib import Path
 
 import pytest
 
@@ -118,10 +119,48 @@ def test_no_flow_hold_against_closed_form():
     r = solve(_no_flow_line(5.0))
     c = [c for c in r.checks if c.code == "NO_FLOW_HOLD"]
     assert c, [x.code for x in r.checks]
+    # settles at 286.1 K: above the 285 K freezing point, below only the 40 °C minimum bulk: a warning
+    assert 263.15 + 5.0 * r_o > 285.0
+    assert c[0].severity == "warning"
+    assert not any(x.code == "NO_FLOW_FREEZE" for x in r.checks)
     assert f"{263.15 + 5.0 * r_o - 273.15:.1f} °C" in c[0].message
     assert f"About {needed:.0f} W/m" in c[0].message
     held = solve(_no_flow_line(needed * 1.05))
     assert not any(c.code == "NO_FLOW_HOLD" for c in held.checks)
+
+
+def test_no_flow_below_freezing_is_a_danger_against_closed_form():
+    # Untraced, the stopped line settles at the air temperature, T = T∞ + 0 · R_o = −10 °C (closed form),
+    # below the 285 K freezing point: the product freezes in the line, a danger, not a warning.
+    r_o = math.log(0.15 / 0.05) / (2 * math.pi * 0.04) + 1.0 / (10.0 * math.pi * 0.15)
+    r = solve(_no_flow_line(0.0))
+    c = [c for c in r.checks if c.code == "NO_FLOW_FREEZE"]
+    assert c and c[0].severity == "danger", [(x.code, x.severity) for x in r.checks]
+    assert "-10.0 °C" in c[0].message and "11.9 °C" in c[0].message  # settling point; freezing point 285 K
+    # the advice holds the higher limit, the 40 °C minimum bulk temperature: (40 °C − T∞) / R_o
+    assert f"About {(313.15 - 263.15) / r_o:.0f} W/m" in c[0].message and "40.0 °C" in c[0].message
+    assert not any(x.code == "NO_FLOW_HOLD" for x in r.checks)  # one finding, at its worst severity
+
+
+def test_sample_untraced_residue_line_freezes_with_flow_stopped():
+    # sample_projects/traced_residue_line.json (invented demo data): the product freezes at 12 °C and the
+    # untraced alternative sits in −5 °C air. With no flow and no tracing the line settles at the air
+    # temperature (closed form T = T∞ + q' R_o with q' = 0), so the no-flow finding is a danger.
+    from solver.project_io import load_project
+
+    project = load_project(Path(__file__).resolve().parent.parent / "sample_projects" / "traced_residue_line.json")
+    alt = next(a for a in project.alternatives if a.name == "No tracing, 80 mm wool")
+    assert alt.fluid.freezing_point_K == pytest.approx(285.15)
+    r = solve(alt)
+    c = [c for c in r.checks if c.code == "NO_FLOW_FREEZE"]
+    assert c and c[0].severity == "danger", [(x.code, x.severity) for x in r.checks]
+    assert "-5.0 °C" in c[0].message
+    assert r.checks[0].code == "NO_FLOW_FREEZE"  # worst first
+    assert c[0].title == "freezes with the flow stopped"
+    # the traced alternatives hold the product with the flow stopped
+    for name in ("Trace 25 W/m, 50 mm wool", "Trace 15 W/m, 80 mm wool"):
+        traced = solve(next(a for a in project.alternatives if a.name == name))
+        assert not any(x.code in ("NO_FLOW_FREEZE", "NO_FLOW_HOLD") for x in traced.checks), name
 
 
 def test_no_flow_overheat_when_tracing_exceeds_wall_limit():

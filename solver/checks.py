@@ -1,0 +1,349 @@
+"""Checks on a converged line, and the list of methods it used.
+
+Everything here reads a converged state (:class:`solver.state.MarchState`), the line in cells
+(:class:`solver.line.LineGrid`) and the node profile; nothing is solved. Each check has a severity
+(``info``, ``warning``, ``danger``), a stable upper-case code (its short title is in
+``solver.results.CHECK_TITLES``), a plain message that says what it means and what to do, the
+segment and the position. Values in messages are tokens (``_T(kelvin)``, ``_dT``, ``_v``, ``_q``)
+so each reader sees them in their own units (``solver.results.render_message``).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+
+import numpy as np
+
+from solver import correlations, fittings as fittings_mod
+from solver.line import GRAVITY, LineGrid
+from solver.results import Check, Profile, check_sort_key, render_message
+from solver.state import MarchState
+
+BURN_THRESHOLD_K = 333.15  # 60 °C contact burn threshold for metal-like surfaces (common practice)
+COLD_CONTACT_K = 263.15  # −10 °C, cold-contact injury threshold (common practice)
+
+
+def line_checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> list[Check]:
+    """Every check on the solved line, worst first and then in flow order, messages in SI text."""
+    checks = _checks(alt, fluid, line, state, prof)
+    checks += _no_flow_checks(alt, fluid, line, state)
+    checks += _dew_point_checks(line, prof)
+    checks.sort(key=check_sort_key)
+    return [dataclasses.replace(ch, message=render_message(ch.message, None), template=ch.message)
+            if "⟦" in ch.message else ch for ch in checks]
+
+
+def _T(t: float) -> str:
+    """A temperature [K] inside a check message, shown later in the reader's units."""
+    return f"⟦T:{float(t):.6f}⟧"
+
+
+def _dT(d: float) -> str:
+    return f"⟦dT:{float(d):.6f}⟧"
+
+
+def _v(v: float) -> str:
+    return f"⟦v:{float(v):.6f}⟧"
+
+
+def _q(q: float) -> str:
+    return f"⟦q:{float(q):.6f}⟧"
+
+
+def _n(n: float) -> str:
+    """A dimensionless number (Reynolds, Prandtl, Rayleigh) in the one number format."""
+    return f"⟦n:{float(n):.6g}⟧"
+
+
+def _first_where(mask: np.ndarray):
+    idx = np.flatnonzero(mask)
+    return int(idx[0]) if idx.size else None
+
+
+def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> list[Check]:
+    out: list[Check] = []
+    setups = line.segments
+    x_mid = line.x_mid
+    Re, Pr, velocity = state.Re, state.Pr, state.velocity
+    Tm = prof.bulk_temperature_K
+    Tw = prof.inner_wall_temperature_K
+    Ts = prof.outer_surface_temperature_K
+    tsat = prof.saturation_temperature_K
+    x = prof.x_m
+
+    def per_segment(mask, severity, code, message_fn):
+        for s in setups:
+            i = _first_where(mask[s.nodes])
+            if i is not None:
+                k = s.nodes.start + i
+                out.append(Check(severity, code, message_fn(s, k), segment=s.index, x_m=float(x[k])))
+
+    def cells_where(mask, s):
+        """This segment's cells (line indices) where ``mask`` holds."""
+        return np.flatnonzero(mask[s.cells]) + s.cells.start
+
+    c = _T  # temperatures in messages are tokens, shown in the user's units (see results.render_message)
+
+    # boiling / flashing, or condensation for a gas
+    p_in = alt.feed.inlet_pressure_Pa
+    tsat_in = float(fluid.saturation_temperature(np.array([p_in]))[0])
+    has_sat = np.isfinite(tsat)
+    is_liquid_feed = math.isfinite(tsat_in) and alt.feed.inlet_temperature_K < tsat_in
+    if has_sat.any():
+        if is_liquid_feed:
+            per_segment(has_sat & (Tm >= tsat), "danger", "BOILING_BULK",
+                        lambda s, k: f"Bulk reaches boiling ({c(Tm[k])} at saturation {c(tsat[k])}): the liquid flashes; "
+                                     "two-phase flow is outside this model and results past here are not valid.")
+            per_segment(has_sat & (Tw >= tsat) & (Tm < tsat), "warning", "BOILING_WALL",
+                        lambda s, k: f"Inner wall at {c(Tw[k])} reaches saturation ({c(tsat[k])}): local boiling at the "
+                                     "wall (fouling, vapour pockets). Lower the wall temperature or raise the pressure.")
+            margin = has_sat & (Tm < tsat) & (Tm >= tsat - 5.0)
+            per_segment(margin, "warning", "NEAR_BOILING",
+                        lambda s, k: f"Bulk within {_dT(5.0)} of boiling ({c(Tm[k])}, saturation {c(tsat[k])}).")
+        else:
+            per_segment(has_sat & (Tm <= tsat), "danger", "CONDENSING_BULK",
+                        lambda s, k: f"Bulk gas cools to saturation ({c(Tm[k])}): condensate forms; "
+                                     "two-phase flow is outside this model.")
+            per_segment(has_sat & (Tw <= tsat) & (Tm > tsat), "warning", "CONDENSING_WALL",
+                        lambda s, k: f"Inner wall at {c(Tw[k])} is below the saturation temperature {c(tsat[k])}: "
+                                     "condensate forms on the wall.")
+
+    # freezing
+    t_freeze = fluid.freezing_temperature(p_in)
+    if t_freeze is not None and math.isfinite(t_freeze):
+        per_segment(Tm <= t_freeze, "danger", "FREEZING_BULK",
+                    lambda s, k: f"Bulk at {c(Tm[k])} is at or below the freezing point {c(t_freeze)}: the line can freeze.")
+        per_segment((Tw <= t_freeze) & (Tm > t_freeze), "warning", "FREEZING_WALL",
+                    lambda s, k: f"Inner wall at {c(Tw[k])} is below the freezing point {c(t_freeze)}: "
+                                 "a frozen layer can build up on the wall.")
+        per_segment((Tm > t_freeze) & (Tm <= t_freeze + 3.0), "warning", "NEAR_FREEZING",
+                    lambda s, k: f"Bulk within {_dT(3.0)} of the freezing point ({c(Tm[k])}, freezing {c(t_freeze)}).")
+
+    # user limits
+    lim = alt.limits
+    if lim.max_inner_wall_temperature_K is not None:
+        tl = lim.max_inner_wall_temperature_K
+        per_segment(Tw > tl, "danger", "WALL_LIMIT",
+                    lambda s, k: f"Inner wall at {c(Tw[k])} exceeds the wall-temperature limit {c(tl)}.")
+    if lim.min_bulk_temperature_K is not None:
+        tb = lim.min_bulk_temperature_K
+        per_segment(Tm < tb, "danger", "MIN_BULK_LIMIT",
+                    lambda s, k: f"Bulk at {c(Tm[k])} falls below the minimum bulk temperature {c(tb)}.")
+
+    # flow regime (cells -> segments)
+    regime = correlations.flow_regime(Re)
+    for s in setups:
+        trans = cells_where(regime == 1, s)
+        if trans.size:
+            out.append(Check("warning", "TRANSITIONAL_FLOW",
+                             f"Transitional flow (Re {_n(Re[trans].min())} to {_n(Re[trans].max())}): heat transfer and "
+                             "friction are uncertain by tens of percent between Re 2,300 and 10,000.",
+                             segment=s.index, x_m=float(x_mid[trans[0]])))
+
+    # velocity (common practice ranges)
+    for s in setups:
+        v = velocity[s.cells]
+        if fluid.compressible:
+            if v.max() > 30.0:
+                i = s.cells.start + int(np.argmax(v))
+                out.append(Check("warning", "VELOCITY_HIGH",
+                                 f"Gas velocity {_v(v.max())} exceeds about {_v(30.0)} (common practice): noise, erosion "
+                                 "and a large pressure drop.", segment=s.index, x_m=float(x_mid[i])))
+        else:
+            if v.max() > 3.0:
+                i = s.cells.start + int(np.argmax(v))
+                out.append(Check("warning", "VELOCITY_HIGH",
+                                 f"Liquid velocity {_v(v.max())} exceeds about {_v(3.0)} (common practice): erosion, noise "
+                                 "and pressure surge on valve closure.", segment=s.index, x_m=float(x_mid[i])))
+            elif v.min() < 0.3 and not any(ch.code == "VELOCITY_LOW" for ch in out):
+                # one note for the line is enough: slow flow is usually a design choice, not a fault
+                i = s.cells.start + int(np.argmin(v))
+                slow = sum(1 for t in setups if velocity[t.cells].min() < 0.3)
+                more = f" ({slow} of {len(setups)} segments)" if len(setups) > 1 else ""
+                out.append(Check("info", "VELOCITY_LOW",
+                                 f"Liquid velocity {_v(v.min())} is below about {_v(0.3)}{more} (common practice): "
+                                 "settling, fouling and poor heat transfer.", segment=s.index, x_m=float(x_mid[i])))
+
+    # surfaces people can touch
+    for s in setups:
+        a = s.nodes.start
+        if s.kind in ("still_air", "wind"):
+            seg_ts = Ts[s.nodes]
+            if seg_ts.max() >= BURN_THRESHOLD_K:
+                k = a + int(np.argmax(seg_ts))
+                out.append(Check("warning", "HOT_SURFACE",
+                                 f"Outer surface reaches {c(Ts[k])}: hot enough to burn on contact (above about {_T(BURN_THRESHOLD_K)}, "
+                                 "common practice). Insulate or guard for personnel protection.",
+                                 segment=s.index, x_m=float(x[k])))
+            if seg_ts.min() <= COLD_CONTACT_K:
+                k = a + int(np.argmin(seg_ts))
+                out.append(Check("warning", "COLD_SURFACE",
+                                 f"Outer surface falls to {c(Ts[k])}: cold enough to injure on contact (below about "
+                                 f"{_T(COLD_CONTACT_K)}, common practice). Insulate or guard.", segment=s.index, x_m=float(x[k])))
+        elif s.kind in ("jacket", "fixed_wall") and math.isfinite(s.medium_temperature_K):
+            if s.medium_temperature_K >= BURN_THRESHOLD_K:
+                out.append(Check("warning", "HOT_JACKET",
+                                 f"The jacket or heating medium is at {c(s.medium_temperature_K)}: its outer shell burns "
+                                 f"on contact unless insulated (above about {_T(BURN_THRESHOLD_K)}, common practice).",
+                                 segment=s.index, x_m=float(x[a])))
+            if alt.segments[s.index].insulation:
+                out.append(Check("info", "INSULATION_IGNORED",
+                                 "Insulation layers play no part with a jacket or fixed wall temperature; "
+                                 "they would insulate the jacket, not the line.", segment=s.index, x_m=float(x[a])))
+
+    # correlations outside their validity
+    regime_turb = regime == 2
+    bad_g = regime_turb & correlations.out_of_range("gnielinski", Re=Re, Pr=Pr)
+    bad_l = (regime == 0) & correlations.out_of_range("laminar_entry", Pr=Pr)
+    for mask, name in ((bad_g, "Gnielinski"), (bad_l, "laminar entry")):
+        for s in setups:
+            sel = cells_where(mask, s)
+            if sel.size:
+                out.append(Check("warning", "CORRELATION_RANGE",
+                                 f"The {name} correlation is used outside its published range here "
+                                 f"(Re {_n(Re[sel].min())}–{_n(Re[sel].max())}, Pr {_n(Pr[sel].min())}–{_n(Pr[sel].max())}).",
+                                 segment=s.index, x_m=float(x_mid[sel[0]])))
+    film_mask, air = line.film_mask, state.air
+    if air is not None and film_mask.any():
+        T_surface, t_inf = state.T_surface, line.t_inf
+        t_film = 0.5 * (T_surface + np.nan_to_num(t_inf, nan=293.15))
+        nu_kin, alpha, _ = air.at(t_film)
+        ra = GRAVITY / t_film * np.abs(T_surface - np.nan_to_num(t_inf, nan=293.15)) * line.d_outer**3 / (nu_kin * alpha)
+        bad_cc = film_mask & (ra > correlations.VALIDITY["churchill_chu"]["Ra"][1])
+        for s in setups:
+            sel = cells_where(bad_cc, s)
+            if sel.size:
+                out.append(Check("warning", "CORRELATION_RANGE",
+                                 f"Natural convection outside the Churchill–Chu range (Ra up to {_n(ra[sel].max())}).",
+                                 segment=s.index, x_m=float(x_mid[sel[0]])))
+    return out
+
+
+def _no_flow_checks(alt, fluid, line: LineGrid, state: MarchState) -> list[Check]:
+    """Where the line would settle if the flow stopped (common practice in tracing design).
+
+    With no flow the fluid in a cell comes to the temperature at which the heat input
+    balances the loss through the outside path: T = T∞ + q'_in · R_o (per unit length).
+    Below the freezing point the product freezes in the line, a danger to the plant
+    (``NO_FLOW_FREEZE``); below only the alternative's minimum bulk temperature it is a
+    warning (``NO_FLOW_HOLD``). The outer film is taken at its flowing value, a fair
+    estimate for insulated lines.
+    """
+    if fluid.compressible:
+        return []
+    limits = []
+    t_freeze = fluid.freezing_temperature(alt.feed.inlet_pressure_Pa)
+    if t_freeze is not None and math.isfinite(t_freeze):
+        limits.append((t_freeze, "the freezing point"))
+    else:
+        t_freeze = None
+    if alt.limits.min_bulk_temperature_K is not None:
+        limits.append((alt.limits.min_bulk_temperature_K, "the minimum bulk temperature"))
+    if not limits:
+        return []
+    limit_T, limit_name = max(limits)
+    q_in, t_inf, r_out_total, x_mid = line.q_in, line.t_inf, state.r_out_total, line.x_mid
+    cold, hot = [], []  # (t_eq, segment, cell) per segment
+    t_max_wall = alt.limits.max_inner_wall_temperature_K
+    for s in line.segments:
+        if s.kind not in ("still_air", "wind", "buried"):
+            continue
+        cells = s.cells
+        t_eq = t_inf[cells] + q_in[cells] * r_out_total[cells]
+        i = int(np.argmin(t_eq))
+        if t_eq[i] < limit_T:
+            cold.append((float(t_eq[i]), s, cells.start + i))
+        j = int(np.argmax(t_eq))
+        if t_max_wall is not None and q_in[cells][j] > 0 and t_eq[j] > t_max_wall:
+            hot.append((float(t_eq[j]), s, cells.start + j))
+    out = []
+    if cold:
+        t_eq, s, c = min(cold, key=lambda item: item[0])
+        needed = max(max((limit_T - t_inf[cc]) / r_out_total[cc] for _, _, cc in cold), 0.0)
+        frozen = [item for item in cold if t_freeze is not None and item[0] < t_freeze]
+        if frozen:
+            # the held limit may be the minimum bulk temperature above the freezing point
+            held = "the freezing point" if limit_T == t_freeze else f"{limit_name} ({_T(limit_T)})"
+            others = f" {len(frozen) - 1} more segment(s) freeze too." if len(frozen) > 1 else ""
+            out.append(Check(
+                "danger", "NO_FLOW_FREEZE",
+                f"If the flow stops, the line here settles at about {_T(t_eq)} (heat input {_q(q_in[c])}), "
+                f"below the freezing point ({_T(t_freeze)}): the product freezes in the line.{others} About "
+                f"{_q(needed)} of tracing would hold {held} at no flow; or provide drain-down "
+                "(common practice in tracing design).",
+                segment=s.index, x_m=float(x_mid[c])))
+        else:
+            others = f" {len(cold) - 1} more segment(s) too." if len(cold) > 1 else ""
+            out.append(Check(
+                "warning", "NO_FLOW_HOLD",
+                f"If the flow stops, the line here settles at about {_T(t_eq)} (heat input "
+                f"{_q(q_in[c])}), below {limit_name} ({_T(limit_T)}).{others} About {_q(needed)} of "
+                "tracing would hold the limit at no flow; or provide drain-down (common practice in tracing design).",
+                segment=s.index, x_m=float(x_mid[c])))
+    if hot:
+        t_eq, s, c = max(hot, key=lambda item: item[0])
+        out.append(Check(
+            "warning", "NO_FLOW_OVERHEAT",
+            f"If the flow stops, the tracing here heats the line to about {_T(t_eq)}, above the "
+            f"wall-temperature limit ({_T(t_max_wall)}). Use self-limiting tracing or a controller "
+            "(common practice in tracing design).", segment=s.index, x_m=float(x_mid[c])))
+    return out
+
+
+def _dew_point_checks(line: LineGrid, prof: Profile) -> list[Check]:
+    """Moisture condenses on an outer surface colder than the dew point of the surrounding air."""
+    out = []
+    for s in line.segments:
+        rh = getattr(s.surroundings, "relative_humidity", None)
+        if rh is None or rh <= 0.0:
+            continue
+        t_dew = float(correlations.dew_point_magnus(s.medium_temperature_K, rh))
+        seg_ts = prof.outer_surface_temperature_K[s.nodes]
+        k = int(np.argmin(seg_ts))
+        if seg_ts[k] < t_dew:
+            out.append(Check(
+                "warning", "SURFACE_CONDENSATION",
+                f"Outer surface at {_T(seg_ts[k])} is below the dew point of the surrounding air "
+                f"({_T(t_dew)} at {100 * rh:.0f} % relative humidity): moisture condenses, wetting the "
+                "insulation and corroding the pipe under it. Thicken the insulation or add a vapour barrier.",
+                segment=s.index, x_m=float(prof.x_m[s.nodes.start + k])))
+    return out
+
+
+def exposed_mask(line: LineGrid, prof: Profile) -> np.ndarray:
+    """Nodes whose outer surface people can touch (in air)."""
+    mask = np.zeros(prof.x_m.size, dtype=bool)
+    for s in line.segments:
+        if s.kind in ("still_air", "wind"):
+            mask[s.nodes] = True
+    return mask
+
+
+def methods_used(line: LineGrid, state: MarchState) -> list[str]:
+    """The published methods this solve used, with their citations (the report prints this list)."""
+    m = correlations.METHODS
+    regime = correlations.flow_regime(state.Re)
+    used = []
+    if (regime == 0).any() or (regime == 1).any():
+        used.append(f"Laminar inside heat transfer, developing flow: {m['laminar_entry']}")
+        used.append(f"Laminar friction factor: {m['laminar_friction']}")
+    if (regime == 1).any():
+        used.append(f"Friction in transition: {m['friction_transition']}")
+        used.append(f"Transition 2,300 < Re < 10,000: {m['transition_blend']}")
+    if (regime >= 1).any():
+        used.append(f"Turbulent inside heat transfer: {m['gnielinski']}")
+        used.append(f"Turbulent friction factor: {m['colebrook']}")
+    if line.film_mask.any():
+        used.append(f"Natural convection, horizontal cylinder: {m['churchill_chu']}")
+        used.append(f"Thermal radiation to surroundings: {m['radiation']}")
+    if (line.wind_speed > 0).any():
+        used.append(f"Wind in cross-flow: {m['churchill_bernstein']}")
+        used.append(f"Mixed convection: {m['mixed_convection']}")
+    if (line.kinds == "buried").any():
+        used.append(f"Buried pipe: {m['buried_cylinder']}")
+    used.append(f"Dew point of surrounding air (when humidity is given): {m['dew_point']}")
+    if line.any_fittings:
+        used.append(f"Fittings loss coefficients: {'; '.join(fittings_mod.SOURCES)}")
+    used.append("Fluid properties: CoolProp (Bell et al. 2014) or user table")
+    return used

@@ -1,0 +1,166 @@
+"""From the converged march to the Result: node profiles, segment spans, heat accounting, key figures.
+
+The profile has its own nodes per segment (the boundary node repeated), so wall and surface
+values can jump where the wall model changes. Cell-wise quantities are reported at a node as
+the value of the cell downstream of it (the cell upstream for a segment's outlet node); film
+coefficients are re-evaluated at the nodes from the converged bulk state.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from solver import checks as checks_mod, correlations, fittings as fittings_mod
+from solver.films import air_film, inside_nusselt
+from solver.line import GRAVITY, LineGrid, SegmentSetup
+from solver.model import Alternative
+from solver.results import PressureDropBreakdown, Profile, Result, SegmentSpan
+from solver.state import MarchState
+
+
+def line_result(alt: Alternative, fluid, line: LineGrid, state: MarchState) -> Result:
+    """Key figures, node profiles, checks and methods of the converged line."""
+    T, p, Q_cell, m_dot, h0 = state.T, state.p, state.Q_cell, state.m_dot, state.h_in
+    # Heat input = tracing + heat from heating or cooling media (jacket, fixed wall; signed);
+    # heat loss = heat to the ambient (air, soil). duty = heat input − heat loss.
+    media = (line.kinds == "jacket") | (line.kinds == "fixed_wall")
+    tracing_cell = line.q_in * line.dx
+    media_cell = np.where(media, Q_cell - tracing_cell, 0.0)
+    q_loss_cell = np.where(media, 0.0, tracing_cell - Q_cell)  # W to the ambient per cell
+    heat_tracing = float(np.sum(tracing_cell))
+    heat_media = float(np.sum(media_cell))
+    duty = float(np.sum(Q_cell))
+    h_out = float(fluid.enthalpy(np.array([T[-1]]), np.array([p[-1]]))[0])
+    potential = m_dot * GRAVITY * float(np.sum(line.dz))
+    residual = m_dot * (state.h_nodes[-1] - h0) + potential - duty
+    # the enthalpy re-evaluated from (T, p) at the outlet checks the inversion, not just the sum
+    residual = max(residual, m_dot * (h_out - h0) + potential - duty, key=abs)
+
+    prof, spans = _node_profiles(line, state, fluid, tracing_cell + media_cell)
+
+    wall = prof.inner_wall_temperature_K
+    surf = prof.outer_surface_temperature_K
+    i_wmax, i_wmin = int(np.argmax(wall)), int(np.argmin(wall))
+    surf_exposed = checks_mod.exposed_mask(line, prof)
+    if surf_exposed.any():
+        i_smax = int(np.argmax(np.where(surf_exposed, surf, -np.inf)))
+        i_smin = int(np.argmin(np.where(surf_exposed, surf, np.inf)))
+        smax, smax_x = float(surf[i_smax]), float(prof.x_m[i_smax])
+        smin, smin_x = float(surf[i_smin]), float(prof.x_m[i_smin])
+    else:
+        smax = smax_x = smin = smin_x = math.nan
+    velocity, Re = state.velocity, state.Re
+    return Result(
+        name=alt.name,
+        fluid_label=fluid.label,
+        mass_flow_kg_per_s=m_dot,
+        profile=prof,
+        segments=spans,
+        checks=checks_mod.line_checks(alt, fluid, line, state, prof),
+        inlet_temperature_K=alt.feed.inlet_temperature_K,
+        inlet_pressure_Pa=alt.feed.inlet_pressure_Pa,
+        outlet_temperature_K=float(T[-1]),
+        outlet_pressure_Pa=float(p[-1]),
+        pressure_drop=PressureDropBreakdown(
+            friction_Pa=float(np.sum(state.dp_friction)),
+            fittings_Pa=float(np.sum(state.dp_fittings)),
+            elevation_Pa=float(np.sum(state.dp_elevation)),
+            acceleration_Pa=float(np.sum(state.dp_accel)),
+        ),
+        duty_W=duty,
+        heat_input_W=heat_tracing + heat_media,
+        heat_input_tracing_W=heat_tracing,
+        heat_input_media_W=heat_media,
+        heat_loss_W=float(np.sum(q_loss_cell)),
+        energy_balance_residual_W=float(residual),
+        max_inner_wall_temperature_K=float(wall[i_wmax]),
+        max_inner_wall_position_m=float(prof.x_m[i_wmax]),
+        min_inner_wall_temperature_K=float(wall[i_wmin]),
+        min_inner_wall_position_m=float(prof.x_m[i_wmin]),
+        max_outer_surface_temperature_K=smax,
+        max_outer_surface_position_m=smax_x,
+        min_outer_surface_temperature_K=smin,
+        min_outer_surface_position_m=smin_x,
+        pump_power_W=float(np.sum(m_dot / state.rho * state.dp_cell)),  # local volume flow × pressure drop
+        residence_time_s=float(np.sum(line.dx / velocity)),
+        velocity_range_m_per_s=(float(np.min(velocity)), float(np.max(velocity))),
+        reynolds_range=(float(np.min(Re)), float(np.max(Re))),
+        cells=line.n,
+        methods=checks_mod.methods_used(line, state),
+    )
+
+
+def _node_profiles(line: LineGrid, state: MarchState, fluid, heat_in_cell: np.ndarray):
+    """Values at nodes. Each segment contributes its own nodes, so wall values can jump at a boundary.
+
+    ``heat_in_cell`` is the heat input per cell [W] (tracing and heating or cooling media).
+    """
+    # node k of a segment uses the cell downstream of it, the outlet node the cell upstream
+    node_index = [np.arange(s.cells.start, s.cells.stop + 1) for s in line.segments]
+    ni = np.concatenate(node_index)
+    ci = np.concatenate([np.minimum(nodes, s.cells.stop - 1) for s, nodes in zip(line.segments, node_index)])
+    m_dot = state.m_dot
+    x = line.x_node[ni]
+    Tm = state.T[ni]
+    pn = state.p[ni]
+    pr = fluid.props(Tm, pn)
+    Dn = line.D[ci]
+    An = line.area[ci]
+    velocity = m_dot / (pr.rho * An)
+    Re = m_dot * Dn / (An * pr.mu)
+    Pr = pr.cp * pr.mu / pr.k
+    rel_rough = line.rel_rough[ci]
+    f = correlations.friction_factor(Re, rel_rough)
+    # the local coefficient is unbounded at x = 0; report the inlet node at half the first cell
+    x_over_d = np.maximum(x, 0.5 * line.dx[0]) / Dn
+    boundary = line.boundary if isinstance(line.boundary, str) else line.boundary[ci]
+    Nu = inside_nusselt(Re, Pr, f, x_over_d, boundary, rel_rough)
+    h_i = Nu * pr.k / Dn
+    r_in = 1.0 / (h_i * math.pi * Dn)
+    r_a = r_in + line.r_wall[ci]
+    r_out = line.r_fixed_out[ci].copy()
+    fm = line.film_mask[ci]
+    r_ins_n = line.r_ins[ci]
+    if state.air is not None and fm.any():
+        d_out = line.d_outer[ci][fm]
+        h_out = air_film(state.air, state.T_surface[ci][fm], line.t_inf[ci][fm], d_out, line.wind_speed[ci][fm],
+                         line.emissivity[ci][fm])
+        r_out[fm] = r_ins_n[fm] + 1.0 / (h_out * math.pi * d_out)
+    u = np.where(np.isinf(r_out), 0.0, 1.0 / (r_a + r_out))
+    tinf = np.nan_to_num(line.t_inf[ci], nan=0.0)
+    q_in = line.q_in[ci]
+    q_fluid = q_in * (1.0 - r_a * u) + u * (tinf - Tm)  # W/m into the fluid at this node
+    t_inner_wall = Tm + q_fluid * r_in
+    t_heated = Tm + q_fluid * r_a
+    q_loss = q_in - q_fluid
+    # the outer surface: over insulation for air/buried; the pipe outer wall for jacket/fixed/adiabatic
+    t_surface = np.where(np.isin(line.kinds[ci], ("still_air", "wind", "buried")), t_heated - q_loss * r_ins_n, t_heated)
+    spans = []
+    dp_cell = state.dp_cell
+    for s in line.segments:
+        duty = float(np.sum(state.Q_cell[s.cells]))
+        heat_in = float(np.sum(heat_in_cell[s.cells]))
+        spans.append(SegmentSpan(
+            index=s.index, name=s.name, x_start_m=float(line.x_node[s.cells.start]),
+            x_end_m=float(line.x_node[s.cells.stop]), inner_diameter_m=s.inner_diameter_m,
+            outer_diameter_m=s.outer_diameter_m, node_start=s.nodes.start, node_end=s.nodes.stop - 1,
+            fittings_K=_segment_K(s, Re[s.nodes]), duty_W=duty, heat_input_W=heat_in,
+            heat_loss_W=heat_in - duty, pressure_drop_Pa=float(np.sum(dp_cell[s.cells])),
+        ))
+    prof = Profile(
+        x_m=x, bulk_temperature_K=Tm, inner_wall_temperature_K=t_inner_wall,
+        outer_surface_temperature_K=t_surface, pressure_Pa=pn,
+        heat_flux_W_per_m2=q_fluid / (math.pi * Dn), heat_to_fluid_W_per_m=q_fluid, heat_loss_W_per_m=q_loss,
+        inside_coefficient_W_per_m2K=h_i, reynolds=Re, velocity_m_per_s=velocity, density_kg_per_m3=pr.rho,
+        saturation_temperature_K=fluid.saturation_temperature(pn),
+    )
+    return prof, spans
+
+
+def _segment_K(s: SegmentSetup, re_nodes: np.ndarray) -> float:
+    if not s.fittings:
+        return 0.0
+    return float(fittings_mod.fittings_K_total(s.fittings, float(np.mean(re_nodes)), s.inner_diameter_m,
+                                               field_prefix=f"segments[{s.index}].fittings"))

@@ -1,0 +1,45 @@
+"""The converged march: what the line solver hands on to the node profiles and the checks.
+
+Plain arrays along the line, so the checks can read a solved line without importing the
+solver that produced it.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from solver.films import AirAtOneAtmosphere
+
+
+@dataclass
+class MarchState:
+    """The converged march, per cell (length n) or per cell edge (length n + 1), SI.
+
+    Cell values are those of the last full pass; ``T`` carries one more Newton step on
+    h(T, p) = ``h_nodes`` so the temperatures agree with the enthalpy balance to round-off.
+    Resistances are per metre of pipe [K·m/W]; pressure-drop parts are per cell [Pa].
+    """
+
+    m_dot: float  # [kg/s]
+    h_in: float  # enthalpy at the inlet [J/kg]
+    T: np.ndarray  # bulk temperature at the cell edges [K]
+    p: np.ndarray  # pressure at the cell edges [Pa]
+    h_nodes: np.ndarray  # enthalpy at the cell edges from the heat balance [J/kg]
+    Q_cell: np.ndarray  # heat to the fluid [W]
+    T_surface: np.ndarray  # outer surface in air (where the air film is computed) [K]
+    r_out_total: np.ndarray  # outside path: insulation + outer film or soil (inf adiabatic)
+    Re: np.ndarray
+    Pr: np.ndarray
+    velocity: np.ndarray  # [m/s]
+    rho: np.ndarray  # [kg/m³]
+    dp_friction: np.ndarray
+    dp_fittings: np.ndarray
+    dp_elevation: np.ndarray
+    dp_accel: np.ndarray
+    air: AirAtOneAtmosphere | None  # air properties where an outer air film is computed
+
+    @property
+    def dp_cell(self) -> np.ndarray:
+        return self.dp_friction + self.dp_fittings + self.dp_elevation + self.dp_accel
