@@ -5,6 +5,7 @@
     calorun solve PROJECT.json [--json] [--csv DIR] [--units SI|US] [--alternative NAME ...]
     calorun report PROJECT.json -o summary.pdf [--alternative NAME ...] [--units SI|US]
     calorun schema                         print the project file's JSON Schema
+    calorun --help                         all of the above; ``calorun COMMAND --help`` for one
 
 ``solve`` and ``schema`` never import Qt. Exit codes: 0 solved, 1 a solver
 failure (plain message on stderr), 2 an invalid project or command line.
@@ -13,14 +14,18 @@ failure (plain message on stderr), 2 an invalid project or command line.
 from __future__ import annotations
 
 import argparse
+import contextlib
+import io
 import json
 import sys
+import textwrap
 
 EXIT_OK = 0
 EXIT_SOLVER = 1
 EXIT_INVALID = 2
 
 SUBCOMMANDS = ("solve", "report", "schema")
+_HELP_FLAGS = ("-h", "--help")
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -33,7 +38,53 @@ def main(argv: list[str] | None = None) -> int:
 
             os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
             return EXIT_OK
+    if any(a in _HELP_FLAGS for a in argv):
+        print(full_help())
+        return EXIT_OK
     return _gui(argv)
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """The command line's commands and their options (the desktop app's own are in ``_gui``)."""
+    parser = argparse.ArgumentParser(
+        prog="calorun",
+        usage="calorun [FILE] [options]        open the desktop app\n"
+              "       calorun COMMAND [options]",
+        description="Design process heating and cooling lines.",
+        epilog="Without a command, calorun opens the desktop app on FILE (the demo project when no file is "
+               "given). `calorun COMMAND --help` shows the options of one command.",
+    )
+    sub = parser.add_subparsers(dest="command", required=True, title="commands", metavar="COMMAND")
+
+    p_solve = sub.add_parser("solve", help="solve a project; print key figures, the verdict and the checks")
+    p_solve.add_argument("project", metavar="PROJECT.json")
+    p_solve.add_argument("--json", action="store_true", help="print machine-readable results (SI)")
+    p_solve.add_argument("--csv", metavar="DIR", help="write the profiles of each alternative as CSV into DIR")
+    p_solve.add_argument("--units", choices=("SI", "US"), default="SI", help="units of the table and CSV (default SI)")
+    p_solve.add_argument("--alternative", action="append", metavar="NAME", help="solve only these alternatives")
+
+    p_report = sub.add_parser("report", help="write the summary report (PDF)")
+    p_report.add_argument("project", metavar="PROJECT.json")
+    p_report.add_argument("-o", "--output", required=True, metavar="summary.pdf")
+    p_report.add_argument("--units", choices=("SI", "US"), default="SI", help="units of the report (default SI)")
+    p_report.add_argument("--alternative", action="append", metavar="NAME", help="report only these alternatives")
+
+    sub.add_parser("schema", help="print the project file's JSON Schema")
+    return parser
+
+
+def full_help() -> str:
+    """One help text for every use of ``calorun``: the commands, then the desktop app's options."""
+    app_help = io.StringIO()
+    with contextlib.redirect_stdout(app_help):
+        try:
+            _gui(["--help"])  # argparse prints the desktop app's options and exits before any Qt import
+        except SystemExit:
+            pass
+    text = build_parser().format_help().rstrip()
+    if app_help.getvalue().strip():
+        text += "\n\ndesktop app (no COMMAND):\n" + textwrap.indent(app_help.getvalue().rstrip(), "  ")
+    return text
 
 
 # --------------------------------------------------------------------------- GUI
@@ -42,7 +93,10 @@ def main(argv: list[str] | None = None) -> int:
 def _gui(argv: list[str]) -> int:
     parser = argparse.ArgumentParser(prog="calorun", description="Design process heating and cooling lines.")
     parser.add_argument("file", nargs="?", help="project file to open (default: the bundled demo project)")
-    parser.add_argument("--screenshot", metavar="OUT.png", help="render the main window at 1600×1000 and exit")
+    parser.add_argument("--screenshot", metavar="OUT.png",
+                        help="render the main window at 1600×1000 and exit (writes no settings, no Recent files entry)")
+    parser.add_argument("--units", choices=("SI", "US"), default=None,
+                        help="display units for this run (default: the remembered ones; SI for --screenshot)")
     args = parser.parse_args(argv)
     if args.screenshot:
         import os
@@ -50,31 +104,14 @@ def _gui(argv: list[str]) -> int:
         os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
     from app.main_window import run
 
-    return run(args.file, screenshot=args.screenshot)
+    return run(args.file, screenshot=args.screenshot, unit_system=args.units)
 
 
 # --------------------------------------------------------------------------- headless
 
 
 def _headless(argv: list[str]) -> int:
-    parser = argparse.ArgumentParser(prog="calorun")
-    sub = parser.add_subparsers(dest="command", required=True)
-
-    p_solve = sub.add_parser("solve", help="solve a project and print key figures")
-    p_solve.add_argument("project")
-    p_solve.add_argument("--json", action="store_true", help="print machine-readable results (SI)")
-    p_solve.add_argument("--csv", metavar="DIR", help="write the profiles of each alternative as CSV into DIR")
-    p_solve.add_argument("--units", choices=("SI", "US"), default="SI", help="units of the table and CSV (default SI)")
-    p_solve.add_argument("--alternative", action="append", metavar="NAME", help="solve only these alternatives")
-
-    p_report = sub.add_parser("report", help="write the summary report (PDF)")
-    p_report.add_argument("project")
-    p_report.add_argument("-o", "--output", required=True, metavar="summary.pdf")
-    p_report.add_argument("--units", choices=("SI", "US"), default="SI")
-    p_report.add_argument("--alternative", action="append", metavar="NAME")
-
-    sub.add_parser("schema", help="print the project file's JSON Schema")
-    args = parser.parse_args(argv)
+    args = build_parser().parse_args(argv)
 
     if args.command == "schema":
         from solver.model import Project
@@ -88,9 +125,10 @@ def _headless(argv: list[str]) -> int:
     try:
         project = load_project(args.project)
     except ProjectFileError as exc:
-        print(f"calorun: {args.project}: {exc.summary}", file=sys.stderr)
-        for path, msg in exc.problems:
-            print(f"  {path}: {msg}" if path else f"  {msg}", file=sys.stderr)
+        summary, lines = project_problems(exc, args.units)
+        print(f"calorun: {args.project}: {summary}", file=sys.stderr)
+        for line in lines:
+            print(f"  {line}", file=sys.stderr)
         return EXIT_INVALID
 
     names = [a.name for a in project.alternatives]
@@ -115,6 +153,7 @@ def _headless(argv: list[str]) -> int:
         return EXIT_OK
 
     from solver import solve
+    from solver.results import CAUTIONS, CAUTIONS_BANNER
 
     results = []
     entries = []  # JSON entries in project order; a failed alternative carries its error
@@ -132,10 +171,10 @@ def _headless(argv: list[str]) -> int:
         results.append(r)
         entries.append(r.to_dict())
     if args.json:
-        print(json.dumps({"project": project.name, "alternatives": entries}, indent=1))
+        print(json.dumps({"project": project.name, "alternatives": entries, "cautions": list(CAUTIONS)}, indent=1))
     else:
         for r in results:
-            print(key_figures_table(r, args.units))
+            print(key_figures_table(r, args.units, targets=project.targets))
             print()
     if args.csv and results:
         from app.export import write_all_csv
@@ -148,60 +187,65 @@ def _headless(argv: list[str]) -> int:
         if not args.json:
             for path in paths:
                 print(f"Profiles written: {path}")
+    if not args.json and results:
+        print(f"Cautions: {CAUTIONS_BANNER}")
     return EXIT_SOLVER if failed else EXIT_OK
 
 
-def key_figures_table(result, system: str = "SI") -> str:
-    """A readable table of the key figures of one result, with units."""
-    from app.units import check_message, format_value as fv
+def project_problems(exc, system: str = "SI") -> tuple[str, list[str]]:
+    """A summary and each problem of an unreadable project: its file path, then what is wrong.
 
-    rows = [
-        ("Fluid", result.fluid_label),
-        ("Mass flow", fv(result.mass_flow_kg_per_s, "mass_flow", system)),
-        ("Inlet temperature", fv(result.inlet_temperature_K, "temperature", system)),
-        ("Outlet temperature", fv(result.outlet_temperature_K, "temperature", system)),
-        ("Inlet pressure", fv(result.inlet_pressure_Pa, "pressure", system)),
-        ("Outlet pressure", fv(result.outlet_pressure_Pa, "pressure", system)),
-        ("Pressure drop", fv(result.pressure_drop_Pa, "pressure_difference", system)),
-        ("  friction", fv(result.pressure_drop.friction_Pa, "pressure_difference", system)),
-        ("  fittings", fv(result.pressure_drop.fittings_Pa, "pressure_difference", system)),
-        ("  elevation", fv(result.pressure_drop.elevation_Pa, "pressure_difference", system)),
-        ("  acceleration", fv(result.pressure_drop.acceleration_Pa, "pressure_difference", system)),
-        ("Duty to fluid", fv(result.duty_W, "power", system)),
-        ("Heat input", fv(result.heat_input_W, "power", system)),
-        ("  tracing", fv(result.heat_input_tracing_W, "power", system)),
-        ("  jackets and heated walls", fv(result.heat_input_media_W, "power", system)),
-        (("Heat loss to surroundings", fv(result.heat_loss_W, "power", system)) if result.heat_loss_W >= 0 else
-         ("Heat gained from surroundings", fv(-result.heat_loss_W, "power", system))),
-        ("Energy-balance residual", f"{result.energy_balance_residual_W:.2e} W"),
-        ("Max inner-wall temperature",
-         f"{fv(result.max_inner_wall_temperature_K, 'temperature', system)} at {fv(result.max_inner_wall_position_m, 'length', system)}"),
-        ("Min inner-wall temperature",
-         f"{fv(result.min_inner_wall_temperature_K, 'temperature', system)} at {fv(result.min_inner_wall_position_m, 'length', system)}"),
-        ("Max outer-surface temperature (in air)",
-         f"{fv(result.max_outer_surface_temperature_K, 'temperature', system)}"
-         + (f" at {fv(result.max_outer_surface_position_m, 'length', system)}"
-            if result.max_outer_surface_position_m == result.max_outer_surface_position_m else "")),
-        ("Min outer-surface temperature (in air)",
-         f"{fv(result.min_outer_surface_temperature_K, 'temperature', system)}"
-         + (f" at {fv(result.min_outer_surface_position_m, 'length', system)}"
-            if result.min_outer_surface_position_m == result.min_outer_surface_position_m else "")),
-        ("Velocity", f"{fv(result.velocity_range_m_per_s[0], 'velocity', system, with_unit=False)} – "
-                     f"{fv(result.velocity_range_m_per_s[1], 'velocity', system)}"),
-        ("Reynolds number", f"{result.reynolds_range[0]:,.0f} – {result.reynolds_range[1]:,.0f}"),
-        ("Hydraulic power (flow × Δp)", fv(result.pump_power_W, "power", system)),
-        ("Residence time", f"{result.residence_time_s:,.1f} s"),
-    ]
+    ``"alternatives[0].segments[2].length_m — Length must be more than 0 m; you entered −5 m"``, in
+    the user's words and ``system``'s units. The validation error the file loader turned into
+    ``exc`` is its context; without one (not JSON, a newer version) the loader's own lines are used.
+    """
+    from pydantic import ValidationError
+
+    cause = exc.__cause__ or exc.__context__
+    if isinstance(cause, ValidationError):
+        from app.messages import plural, problems
+
+        found = problems(cause, system)
+        lines = [f"{path} — {message}" if path else message for path, message in found]
+        return f"Invalid project: {plural(len(found), 'problem')}", lines
+    return exc.summary, [f"{path}: {message}" if path else message for path, message in exc.problems]
+
+
+def key_figures_table(result, system: str = "SI", targets=None) -> str:
+    """The key figures of one result as a text table in ``system``, its verdict and its checks.
+
+    Rows are :data:`solver.results.KEY_FIGURES` with their labels, in the one number format of
+    :mod:`app.units`; the checks come worst first, in flow order (``check_sort_key``).
+    """
+    from app.comparison import design_verdict
+    from app.messages import plural
+    from app.texts import key_figure_label_and_value
+    from app.units import check_message, format_value
+    from solver.results import KEY_FIGURES, check_sort_key
+
+    figures = result.key_figures()
+    rows = []
+    for spec in KEY_FIGURES:
+        label, value = key_figure_label_and_value(spec, figures, system, indent="  ")
+        if spec.inlet_key and value != "—":
+            value += f"  (inlet {format_value(figures.get(spec.inlet_key), spec.quantity, system)})"
+        rows.append((label, value))
     width = max(len(k) for k, _ in rows)
-    lines = [f"== {result.name} ==", *(f"  {k.ljust(width)}  {v}" for k, v in rows)]
-    if result.checks:
-        lines.append("  Checks:")
-        for c in result.checks:
-            where = f" [segment {c.segment + 1}" if c.segment is not None else " ["
-            where += f", x = {fv(c.x_m, 'length', system)}]" if c.x_m is not None else "]"
-            lines.append(f"    {c.severity.upper():7s} {c.code}: {check_message(c, system)}{where}")
-    else:
-        lines.append("  Checks: none")
+    lines = [f"== {result.name} — {result.fluid_label} ==", *(f"  {k.ljust(width)}  {v}" for k, v in rows)]
+    lines.append(f"  {'Verdict'.ljust(width)}  {design_verdict(targets, result).text()}")
+    counts = result.check_counts()
+    words = {"danger": ("danger", ""), "warning": ("warning", ""), "info": ("info", "info")}
+    summary = ", ".join(plural(n, *words.get(sev, (sev, ""))) for sev, n in counts.items() if n)
+    lines.append(f"  Checks: {summary}" if summary else "  Checks: none")
+    for c in sorted(result.checks, key=check_sort_key):
+        where = []
+        if c.segment is not None:
+            name = result.segments[c.segment].name if 0 <= c.segment < len(result.segments) else ""
+            where.append(f"segment {c.segment + 1}" + (f" '{name}'" if name else ""))
+        if c.x_m is not None:
+            where.append(f"x = {format_value(c.x_m, 'length', system)}")
+        at = f" ({', '.join(where)})" if where else ""
+        lines.append(f"    {c.severity.upper():7s} {check_message(c, system)}{at} [{c.code}]")
     return "\n".join(lines)
 
 

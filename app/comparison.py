@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 from typing import NamedTuple, Optional, Sequence
 
 from app import units
+from app.messages import plural
 from solver.model import Targets
 from solver.results import KEY_FIGURES, KeyFigure, Result
 
@@ -105,32 +106,32 @@ def compare(results: Sequence[Result], baseline_name: Optional[str] = None) -> C
 def format_difference(diff: Optional[float], reference: Optional[float], spec: FigureSpec, system: str) -> str:
     """A signed difference in display units, with the relative change for non-temperatures.
 
-    E.g. ``'+2.4 K'`` or ``'−12.0 kPa (−8 %)'``; ``'—'`` when undefined, ``'±0'`` when equal.
+    E.g. ``'+2.4 K'`` or ``'−12.0 kPa (−8 %)'``; ``'—'`` when undefined, ``'±0'`` when equal. The
+    difference is shown in the unit the reference value is shown in and rounded to the resolution
+    it is shown with (4 significant digits; 0.1 degree for temperatures), so noise reads as ±0.
     """
     if diff is None:
         return "—"
-    u = units.unit(spec.difference_quantity, system)
-    shown = abs(diff) * u.scale  # a difference: no offset
-    # Round to the resolution the values themselves are shown with (4 significant
-    # digits of the reference; 0.1 degree for temperatures), so noise reads as ±0.
+    sign = "+" if diff > 0 else units.MINUS
+    if spec.quantity != "temperature" and reference in (None, 0):
+        # nothing to read the difference against: the one format, where round-off reads as "< 1 mW"
+        text = units.format_value(abs(diff), spec.difference_quantity, system)
+        return "±0" if diff == 0 or text.startswith("<") else f"{sign}{text}"
     if spec.quantity == "temperature":
+        u = units.unit(spec.difference_quantity, system)
         decimals = 1
     else:
-        ref_shown = abs(units.unit(spec.quantity, system).from_si(reference)) if reference not in (None, 0) else shown
-        mag = math.floor(math.log10(ref_shown)) if ref_shown > 0 else 0
+        u = units.pick_unit(reference, spec.difference_quantity, system)
+        mag = math.floor(math.log10(abs(u.scale * reference)))
         decimals = max(0, 3 - mag)
+    shown = abs(diff) * u.scale  # a difference: no offset
     if round(shown, decimals) == 0:
         return "±0"
-    if decimals > 6 or shown >= 1e6:
-        text = units.format_value(abs(diff), spec.difference_quantity, system)
-    else:
-        text = f"{shown:,.{decimals}f}".replace(",", "\u2009") + (f" {u.label}" if u.label else "")
-    sign = "+" if diff > 0 else "\u2212"
-    out = f"{sign}{text}"
+    out = f"{sign}{units.format_number(shown, decimals=decimals)}" + (f" {u.label}" if u.label else "")
     if spec.quantity != "temperature" and reference not in (None, 0):
         pct = 100.0 * diff / abs(reference)
         if 0.5 <= abs(pct) < 1000:
-            out += f" ({'+' if pct >= 0 else chr(0x2212)}{abs(pct):.0f} %)"
+            out += f" ({'+' if pct >= 0 else units.MINUS}{abs(pct):.0f} %)"
     return out
 
 
@@ -251,11 +252,6 @@ class DesignVerdict:
         if not self.danger and not self.warning:
             parts.append("no warnings")
         return " · ".join(parts)
-
-
-def plural(n: int, word: str, words: str = "") -> str:
-    """``'1 warning'``, ``'3 warnings'``."""
-    return f"{n} {word if n == 1 else (words or word + 's')}"
 
 
 def design_verdict(targets: Optional[Targets], result: Result) -> DesignVerdict:

@@ -8,6 +8,10 @@ redraw); parsing uses pint, so people can type ``2 in``, ``150 degF``, ``35 gpm`
 ``3 bar(g)``. Gauge pressure is handled here explicitly (pint has no gauge units):
 a typed value with ``(g)``/``g`` suffix (``barg``, ``psig``, ``bar(g)``, ``kPa(g)``)
 adds standard atmosphere, 101 325 Pa.
+
+Every table and view writes numbers through :func:`format_value` (one format: thin-space digit
+groups, a true minus sign, no exponents, a unit prefix picked from the quantity's ladder).
+Messages about entries it cannot read are worded by :mod:`app.messages`.
 """
 
 from __future__ import annotations
@@ -113,6 +117,7 @@ QUANTITIES: dict[str, tuple[DisplayUnit, DisplayUnit]] = {
         DisplayUnit("Btu/lb", _LB / _BTU, 0.0, "Btu/lb"),
     ),
     "dimensionless": (DisplayUnit("", 1.0, 0.0, "dimensionless"), DisplayUnit("", 1.0, 0.0, "dimensionless")),
+    "fraction": (DisplayUnit("%", 100.0, 0.0, "percent"), DisplayUnit("%", 100.0, 0.0, "percent")),
 }
 
 # What each quantity is in SI base units (for pint parsing).
@@ -142,6 +147,7 @@ _SI_BASE: dict[str, str] = {
     "time": "s",
     "energy_per_mass": "J/kg",
     "dimensionless": "dimensionless",
+    "fraction": "dimensionless",
 }
 
 
@@ -165,36 +171,213 @@ def label(quantity: str, system: UnitSystem) -> str:
     return unit(quantity, system).label
 
 
-def format_value(value_si: float | None, quantity: str, system: UnitSystem, digits: int = 4, with_unit: bool = True) -> str:
-    """Format an SI value for display, e.g. ``format_value(353.15, 'temperature', 'SI') -> '80.0 °C'``."""
-    if value_si is None or (isinstance(value_si, float) and not math.isfinite(value_si)):
+# --------------------------------------------------------------------------- the one number format
+#
+# Every table and view writes numbers the same way: digits grouped in threes with a thin space
+# ("14\u2009400"), a true minus sign, no exponents. A value too small or too large for the display
+# unit moves along its quantity's ladder of units (kW -> W -> mW, kPa -> Pa); a value below the
+# smallest unit worth showing reads "< 1 mW" rather than "1.2e-09 W". CSV files do not use this:
+# they keep plain machine-readable numbers.
+
+THIN_SPACE = "\u2009"
+NO_BREAK_SPACE = "\u00a0"
+MINUS = "\u2212"
+
+# Step to a smaller unit below this magnitude, to a larger one at or above the other.
+_STEP_DOWN_BELOW = 0.1
+_STEP_UP_FROM = 1e5
+_MAX_DECIMALS = 9
+
+# quantity -> (SI ladder, US ladder), smallest unit first; each ladder holds the system's own unit.
+_LADDERS: dict[str, tuple[tuple[DisplayUnit, ...], tuple[DisplayUnit, ...]]] = {
+    "power": (
+        (DisplayUnit("mW", 1e3, 0.0, "mW"), DisplayUnit("W", 1.0, 0.0, "W"), QUANTITIES["power"][0],
+         DisplayUnit("MW", 1e-6, 0.0, "MW")),
+        (QUANTITIES["power"][1],),
+    ),
+    "pressure_difference": (
+        (DisplayUnit("Pa", 1.0, 0.0, "Pa"), QUANTITIES["pressure_difference"][0], DisplayUnit("MPa", 1e-6, 0.0, "MPa")),
+        (QUANTITIES["pressure_difference"][1],),
+    ),
+    "pressure": (
+        (DisplayUnit("mbar(a)", 1e-2, 0.0, "mbar"), QUANTITIES["pressure"][0]),
+        (QUANTITIES["pressure"][1],),
+    ),
+    "mass_flow": (
+        (QUANTITIES["mass_flow"][0], DisplayUnit("t/h", 3.6, 0.0, "tonne/hour")),
+        (QUANTITIES["mass_flow"][1],),
+    ),
+    "volume_flow": (
+        (DisplayUnit("L/h", 3.6e6, 0.0, "L/hour"), QUANTITIES["volume_flow"][0]),
+        (QUANTITIES["volume_flow"][1],),
+    ),
+    "heat_flux": (
+        (QUANTITIES["heat_flux"][0], DisplayUnit("kW/m²", 1e-3, 0.0, "kW/m**2")),
+        (QUANTITIES["heat_flux"][1],),
+    ),
+    "time": (
+        (QUANTITIES["time"][0], DisplayUnit("h", 1 / 3600, 0.0, "hour")),
+        (QUANTITIES["time"][1], DisplayUnit("h", 1 / 3600, 0.0, "hour")),
+    ),
+}
+
+# The smallest magnitude worth showing, in the smallest unit of the ladder (default 0.001 of it).
+# Below it a value reads "< floor unit": round-off, not a result.
+_FLOORS: dict[tuple[str, UnitSystem], float] = {
+    ("power", "SI"): 1.0,  # 1 mW
+    ("roughness", "SI"): 1e-4,  # 0.1 µm: smoother than any pipe
+    ("roughness", "US"): 1e-6,
+    ("diameter", "US"): 1e-4,
+    ("thickness", "US"): 1e-4,
+    ("dimensionless", "SI"): 1e-4,
+    ("dimensionless", "US"): 1e-4,
+    ("viscosity", "SI"): 1e-4,
+    ("viscosity", "US"): 1e-4,
+}
+_DEFAULT_FLOOR = 1e-3
+
+# Read to a fixed resolution rather than significant digits (and never moved along a ladder).
+_FIXED_DECIMALS = {"temperature": 1, "temperature_difference": 1}
+_POSITIONS = ("length", "elevation", "depth")  # centimetres below 10 m, decimetres above
+
+
+def ladder(quantity: str, system: UnitSystem) -> tuple[DisplayUnit, ...]:
+    """The display units ``quantity`` may be shown in, smallest first (the system's unit among them)."""
+    pair = _LADDERS.get(quantity)
+    if pair is None:
+        return (unit(quantity, system),)
+    return pair[1] if system == "US" else pair[0]
+
+
+def pick_unit(value_si: float | None, quantity: str, system: UnitSystem) -> DisplayUnit:
+    """The unit of the ladder that shows ``value_si`` without a string of zeros.
+
+    The system's own unit unless the value is below 0.1 of it (then smaller units) or at least
+    100 000 of it (then larger units). Temperatures and lengths keep their unit.
+    """
+    steps = ladder(quantity, system)
+    default = unit(quantity, system)
+    if len(steps) == 1 or value_si is None or not math.isfinite(value_si) or value_si == 0:
+        return default
+    i = steps.index(default)
+    magnitude = abs(float(value_si))
+    while i > 0 and magnitude * steps[i].scale < _STEP_DOWN_BELOW:
+        i -= 1
+    while i < len(steps) - 1 and magnitude * steps[i].scale >= _STEP_UP_FROM:
+        i += 1
+    return steps[i]
+
+
+def display_unit_for(values_si, quantity: str, system: UnitSystem) -> DisplayUnit:
+    """One unit for several values shown together (a row, a column, a range): the one that suits the largest."""
+    finite = [abs(float(v)) for v in values_si if v is not None and math.isfinite(v)]
+    return pick_unit(max(finite) if finite else None, quantity, system)
+
+
+def format_value(value_si: float | None, quantity: str, system: UnitSystem, digits: int = 4,
+                 with_unit: bool = True, display_unit: DisplayUnit | None = None) -> str:
+    """An SI value in the one number format, e.g. ``format_value(353.15, 'temperature', 'SI') -> '80.0 °C'``.
+
+    ``digits`` significant digits (whole numbers keep all their digits), grouped with thin
+    spaces, never an exponent. With the unit, the value may move along its quantity's
+    :func:`ladder` (``'21.86 mPa'`` is not used; ``0.02186 Pa`` is); ``with_unit=False`` keeps
+    the system's unit, because the caller states it (a column header). ``display_unit`` forces a
+    unit, e.g. one chosen by :func:`display_unit_for` for a whole row.
+    """
+    if value_si is None:
         return "—"
-    u = unit(quantity, system)
+    try:
+        value_si = float(value_si)
+    except (TypeError, ValueError):
+        return "—"
+    if not math.isfinite(value_si):
+        return "—"
+    if display_unit is not None:
+        u = display_unit
+    elif with_unit and quantity not in _FIXED_DECIMALS and quantity not in _POSITIONS:
+        u = pick_unit(value_si, quantity, system)
+    else:
+        u = unit(quantity, system)
     v = u.from_si(value_si)
-    text = _format_number(v, digits, quantity)
-    return f"{text} {u.label}".rstrip() if with_unit and u.label else text
+    if quantity in _FIXED_DECIMALS:
+        text = format_number(v, decimals=_FIXED_DECIMALS[quantity])
+    elif quantity in _POSITIONS:
+        text = format_number(v, decimals=1 if abs(v) >= 10 else 2)
+    else:
+        steps = ladder(quantity, system)
+        floor = _FLOORS.get((quantity, system), _DEFAULT_FLOOR) if u == steps[0] and with_unit else None
+        text = format_number(v, digits=digits, floor=floor)
+    return f"{text} {u.label}" if with_unit and u.label else text
 
 
-def _format_number(v: float, digits: int, quantity: str) -> str:
-    if quantity in ("temperature", "temperature_difference"):
-        return f"{v:.1f}"  # engineers read temperatures to 0.1 degree
-    if quantity in ("length", "elevation", "depth"):
-        # positions and lengths along a line: centimetres are plenty
-        return f"{v:,.1f}".replace(",", "\u2009") if abs(v) >= 10 else f"{v:.2f}"
+def format_range(low_si: float | None, high_si: float | None, quantity: str, system: UnitSystem,
+                 digits: int = 4) -> str:
+    """``'0.52 – 1.31 m/s'``: both ends in one unit, stated once."""
+    u = display_unit_for([low_si, high_si], quantity, system)
+    low = format_value(low_si, quantity, system, digits, with_unit=False, display_unit=u)
+    high = format_value(high_si, quantity, system, digits, display_unit=u)
+    return f"{low} – {high}"
+
+
+def format_number(v: float, digits: int = 4, decimals: int | None = None, floor: float | None = None) -> str:
+    """A plain number in the one format: ``digits`` significant digits or fixed ``decimals``.
+
+    Thin-space groups of three in the whole part, a true minus sign, no exponent, no "−0".
+    A non-zero magnitude below ``floor`` reads ``'< floor'``.
+    """
+    if not math.isfinite(v):
+        return "—"
+    a = abs(v)
+    if floor is not None and 0 < a < floor:
+        return "< " + _group(_trim(f"{floor:.{_MAX_DECIMALS}f}"))
+    if decimals is None:
+        if a == 0:
+            return "0"
+        magnitude = math.floor(math.log10(a))
+        decimals = min(max(0, digits - 1 - magnitude), _MAX_DECIMALS)
+    text = f"{a:.{decimals}f}"
+    if float(text) == 0:
+        return text if decimals else "0"  # no "−0.0"
+    return (MINUS if v < 0 else "") + _group(text)
+
+
+def _group(text: str) -> str:
+    whole, dot, frac = text.partition(".")
+    if len(whole) > 3:
+        whole = f"{int(whole):,}".replace(",", THIN_SPACE)
+    return whole + dot + frac
+
+
+def _trim(text: str) -> str:
+    return text.rstrip("0").rstrip(".") if "." in text else text
+
+
+def format_exact(value_si: float, quantity: str, system: UnitSystem, digits: int = 5) -> str:
+    """A value as a person would type it: up to ``digits`` significant digits, no trailing zeros.
+
+    For limits and entries quoted in messages ("more than 0 m; you entered −5 m"), in the
+    system's own unit (the one the field is typed in), joined to it by a no-break space.
+    """
+    u = unit(quantity, system)
+    v = u.from_si(float(value_si))
+    if abs(v) < 1e-12:
+        v = 0.0
     if v == 0:
-        return "0"
-    mag = math.floor(math.log10(abs(v)))
-    if mag >= 9 or mag < -3:
-        return f"{v:.{digits - 1}e}"
-    decimals = max(0, digits - 1 - mag)
-    return f"{v:,.{decimals}f}".replace(",", "\u2009")
+        text = "0"
+    else:
+        magnitude = math.floor(math.log10(abs(v)))
+        text = _trim(f"{abs(v):.{min(max(0, digits - 1 - magnitude), _MAX_DECIMALS)}f}")
+        text = (MINUS if v < 0 and text != "0" else "") + _group(text)
+    return f"{text}{NO_BREAK_SPACE}{u.label}" if u.label else text  # a wrapped message keeps "−5 m" whole
 
 
 # --------------------------------------------------------------------------- parsing
 
-_GAUGE = re.compile(r"^(?P<num>.*?)\s*(?P<unit>bar|psi|kPa|MPa|Pa)\s*(\(g\)|g)\s*$", re.IGNORECASE)
-_ABS = re.compile(r"^(?P<num>.*?)\s*(?P<unit>bar|psi|kPa|MPa|Pa)\s*(\(a\)|a)\s*$", re.IGNORECASE)
+_GAUGE = re.compile(r"^(?P<num>.*?)\s*(?P<unit>mbar|bar|psi|kPa|MPa|Pa)\s*(\(g\)|g)\s*$", re.IGNORECASE)
+_ABS = re.compile(r"^(?P<num>.*?)\s*(?P<unit>mbar|bar|psi|kPa|MPa|Pa)\s*(\(a\)|a)\s*$", re.IGNORECASE)
 _NUMBER = re.compile(r"^\s*[-+]?(\d+(\.\d*)?|\.\d+)([eE][-+]?\d+)?\s*$")
+_LEADING_NUMBER = re.compile(r"^\s*([-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*)$")
+_DIGIT_GROUP = re.compile(r"(?<=\d)[ \u2009\u202f\u00a0](?=\d{3}(?!\d))")
 _ALIASES = {
     "°c": "degC",
     "°f": "degF",
@@ -214,11 +397,30 @@ _ALIASES = {
     "cp": "cP",
     "mpa·s": "mPa*s",
     "mpa.s": "mPa*s",
+    "%": "percent",
+    "mil": "thou",  # a thousandth of an inch (pint's "mil" is an angle)
+    "mils": "thou",
 }
 
 
 class UnitParseError(ValueError):
-    """A typed quantity that cannot be understood; the message says why."""
+    """A typed quantity that cannot be understood; the message says why in the user's words.
+
+    ``reason`` is ``"empty"``, ``"unreadable"`` (no number first), ``"unknown_unit"``,
+    ``"wrong_kind"`` (a unit of another kind of quantity: ``typed_kind`` names it, e.g.
+    ``"volume_flow"`` for ``35 gpm`` typed as a mass flow) or ``"not_finite"``. ``field`` and
+    ``text`` are what :func:`parse` was given; ``quantity`` is the quantity the field holds.
+    """
+
+    def __init__(self, message: str, *, field: str = "", text: str = "", quantity: str = "",
+                 reason: str = "", typed_kind: str = "", unit_text: str = ""):
+        super().__init__(message)
+        self.field = field
+        self.text = text
+        self.quantity = quantity
+        self.reason = reason
+        self.typed_kind = typed_kind
+        self.unit_text = unit_text
 
 
 @lru_cache(maxsize=1)
@@ -230,53 +432,130 @@ def registry():
     return reg
 
 
+def _plain_text(text: str) -> str:
+    """Typed text in a form the parser reads: the true minus, grouped digits, display-unit symbols."""
+    text = text.strip().replace(MINUS, "-")
+    text = _DIGIT_GROUP.sub("", text)
+    return text
+
+
+def _pint_unit_text(unit_text: str, quantity: str) -> str:
+    """A typed unit in pint's spelling; display labels such as ``W/(m²·K)`` read as written."""
+    unit_text = _ALIASES.get(unit_text.lower(), unit_text)
+    if quantity == "temperature_difference" and unit_text in ("degC", "degF"):
+        return "delta_" + unit_text
+    compound = any(ch in unit_text for ch in "/*·()") or unit_text.startswith("Btu")
+    unit_text = unit_text.replace("·", "*").replace("²", "**2").replace("³", "**3").replace("µ", "u")
+    if compound:  # a degree inside a compound unit is a temperature difference
+        unit_text = re.sub(r"°\s*([CF])", r"delta_deg\1", unit_text)
+    return unit_text.replace("°C", "degC").replace("°F", "degF")
+
+
 def parse(text: str, quantity: str, system: UnitSystem, field: str = "value") -> float:
     """Parse a typed quantity into SI.
 
-    A bare number is read in the display unit of ``system``. Raises
-    :class:`UnitParseError` naming ``field`` and the text.
+    A bare number is read in the display unit of ``system``; a number with a unit is read in
+    that unit (``2 in``, ``150 degF``, ``35 gpm``, ``3 bar(g)``, and every display label, e.g.
+    ``0.04 W/(m·K)``); thin-space digit groups and the true minus sign are read too. Raises
+    :class:`UnitParseError` whose message names the field by its label (``field`` may be a model
+    path such as ``feed.mass_flow_kg_per_s``) and says in plain words what is wrong, e.g.
+    ``"Mass flow: 35 gpm is a volume flow — choose Volume flow, or give a mass flow such as
+    1200 kg/h"``. Never a unit library's own wording.
     """
-    raw = text.strip()
+    from app import messages  # the wording; it imports this module
+
+    raw = _plain_text(text)
+    info = dict(field=field, text=text, quantity=quantity)
     if not raw:
-        raise UnitParseError(f"{field}: a value is required, got an empty entry")
+        raise UnitParseError(messages.value_required(field, quantity, system), reason="empty", **info)
     if _NUMBER.match(raw):
-        value = float(raw)
-        return from_display(value, quantity, system)
+        return from_display(float(raw), quantity, system)
 
     if quantity in ("pressure",):
         m = _GAUGE.match(raw)
         if m:
-            return _parse_with_pint(f"{m.group('num')} {m.group('unit')}", "pressure_difference", field, raw) + STANDARD_ATMOSPHERE_PA
+            return _parse_with_pint(f"{m.group('num')} {m.group('unit')}", "pressure_difference", system, info) \
+                + STANDARD_ATMOSPHERE_PA
         m = _ABS.match(raw)
         if m:
             raw = f"{m.group('num')} {m.group('unit')}"
-    return _parse_with_pint(raw, quantity, field, text)
+    return _parse_with_pint(raw, quantity, system, info)
 
 
-def _parse_with_pint(raw: str, quantity: str, field: str, original: str) -> float:
-    m = re.match(r"^\s*([-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*)$", raw)
+def _parse_with_pint(raw: str, quantity: str, system: UnitSystem, info: dict) -> float:
+    import pint
+    import tokenize
+
+    from app import messages
+
+    m = _LEADING_NUMBER.match(raw)
     if not m:
-        raise UnitParseError(f"{field}: cannot read {original!r} as a number with a unit")
+        raise UnitParseError(messages.unreadable_entry(info["text"], info["quantity"], system, info["field"]),
+                             reason="unreadable", **info)
     number = float(m.group(1))
-    unit_text = m.group(2).strip()
-    unit_text = _ALIASES.get(unit_text.lower(), unit_text)
-    if quantity == "temperature_difference" and unit_text in ("degC", "degF"):
-        unit_text = "delta_" + unit_text
+    typed_unit = m.group(2).strip()
+    unit_text = _pint_unit_text(typed_unit, quantity)
     reg = registry()
     try:
         q = reg.Quantity(number, unit_text)
+    # pint's expression parser raises these for unit text it cannot read (e.g. "kg/", "m/s)", "1/0")
+    except (pint.errors.PintError, AssertionError, tokenize.TokenError, ZeroDivisionError, SyntaxError,
+            TypeError, ValueError, AttributeError) as exc:
+        unknown = exc.args[0] if isinstance(exc, pint.errors.UndefinedUnitError) and exc.args else typed_unit
+        raise UnitParseError(messages.unknown_unit(info["text"], unknown, info["quantity"], system, info["field"]),
+                             reason="unknown_unit", unit_text=typed_unit, **info) from None
+    try:
         si = q.to(_SI_BASE[quantity]).magnitude
-    except Exception as exc:  # pint raises several types; all mean "not this"
-        expected = label(quantity, "SI")
-        raise UnitParseError(
-            f"{field}: cannot read {original!r} as {quantity.replace('_', ' ')} (e.g. '12 {expected}'): {exc}"
-        ) from None
+    except pint.errors.DimensionalityError:
+        kind = typed_kind(q)
+        raise UnitParseError(messages.wrong_kind(info["text"], typed_unit, kind, info["quantity"], system, info["field"]),
+                             reason="wrong_kind", typed_kind=kind, unit_text=typed_unit, **info) from None
     if not math.isfinite(si):
-        raise UnitParseError(f"{field}: {original!r} is not a finite number")
+        raise UnitParseError(messages.unreadable_entry(info["text"], info["quantity"], system, info["field"]),
+                             reason="not_finite", **info)
     return float(si)
 
 
-_TOKEN_QUANTITY = {"T": "temperature", "dT": "temperature_difference", "v": "velocity", "q": "power_per_length"}
+# Kinds of quantity a typed unit can be, in the order they are tried (first match names it).
+_KINDS: tuple[tuple[str, str], ...] = (
+    ("temperature", "kelvin"),
+    ("pressure", "Pa"),
+    ("length", "m"),
+    ("mass_flow", "kg/s"),
+    ("volume_flow", "m**3/s"),
+    ("power", "W"),
+    ("power_per_length", "W/m"),
+    ("heat_flux", "W/m**2"),
+    ("film_coefficient", "W/m**2/K"),
+    ("conductivity", "W/m/K"),
+    ("speed", "m/s"),
+    ("density", "kg/m**3"),
+    ("specific_heat", "J/kg/K"),
+    ("viscosity", "Pa*s"),
+    ("time", "s"),
+    ("energy_per_mass", "J/kg"),
+    ("mass", "kg"),
+    ("volume", "m**3"),
+    ("area", "m**2"),
+    ("energy", "J"),
+    ("kinematic_viscosity", "m**2/s"),
+    ("frequency", "1/s"),
+    ("angle", "radian"),
+    ("dimensionless", "dimensionless"),
+)
+
+
+def typed_kind(q) -> str:
+    """The kind of quantity a pint quantity is (``"volume_flow"`` for gallon/minute), or ``""``."""
+    reg = registry()
+    for kind, base in _KINDS:
+        if q.dimensionality == reg.Quantity(1, base).dimensionality:
+            return kind
+    return ""
+
+
+_TOKEN_QUANTITY = {"T": "temperature", "dT": "temperature_difference", "v": "velocity", "q": "power_per_length",
+                   "n": "dimensionless"}
 
 
 def check_message(check, system: UnitSystem) -> str:
@@ -289,7 +568,7 @@ def check_message(check, system: UnitSystem) -> str:
         quantity = _TOKEN_QUANTITY[kind]
         if quantity == "temperature_difference":
             u = unit(quantity, system)
-            return f"{u.from_si(value):g} {u.label}"
+            return f"{_trim(format_number(u.from_si(value), digits=3))} {u.label}"  # "5 K", not "5.00 K"
         return format_value(value, quantity, system, digits=3)
 
     return render_message(check.template, one)

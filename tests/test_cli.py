@@ -10,6 +10,7 @@ from __future__ import annotations
 import csv
 import json
 import os
+import re
 import subprocess
 import sys
 from pathlib import Path
@@ -30,6 +31,7 @@ from solver.model import (
     Wind,
 )
 from solver.project_io import dump_project, save_project
+from solver.results import CAUTIONS, CAUTIONS_BANNER, KEY_FIGURES
 
 ROOT = Path(__file__).resolve().parent.parent
 
@@ -111,6 +113,7 @@ def test_solve_json_shape(solved_json):
         assert abs(alt["energy_balance_residual_W"]) < 1e-6 * max(abs(alt["duty_W"]), alt["heat_input_W"], 1.0)
         assert alt["pressure_drop_Pa"] == pytest.approx(alt["profile"]["pressure_Pa"][0] - alt["outlet_pressure_Pa"])
         assert alt["outlet_temperature_K"] == alt["profile"]["bulk_temperature_K"][-1]
+    assert data["cautions"] == list(CAUTIONS)
     traced = data["alternatives"][0]
     assert traced["heat_input_W"] == pytest.approx(20.0 * 60.0)  # q' L (closed form)
     # a bare 80 °C water pipe in a 20 °C room is hot enough to burn (above ~60 °C, common practice)
@@ -135,9 +138,81 @@ def test_solve_table(project_file):
     out = proc.stdout
     for name in ("Traced", "Hot water bare"):
         assert name in out
-    for label in ("Outlet temperature", "Pressure drop", "Heat input", "Heat loss", "Energy-balance residual"):
+    for label in ("Outlet temperature", "Pressure drop", "Heat input", "Heat loss", "Energy balance residual",
+                  "Verdict", "Checks"):
         assert label in out
-    assert "°C" in out and ("Pa" in out or "bar" in out) and " W" in out
+    assert "°C" in out and ("Pa" in out or "bar" in out) and " kW" in out
+    # the cautions close the table output (after every alternative and the CSV lines)
+    assert out.rstrip().endswith(CAUTIONS_BANNER)
+    assert out.count(CAUTIONS_BANNER) == 1
+
+
+@pytest.fixture(scope="module")
+def solved_traced():
+    from solver import solve
+
+    return solve(two_alternative_project().alternatives[0])
+
+
+@pytest.mark.parametrize("system", ["SI", "US"])
+def test_table_rows_are_the_key_figures(solved_traced, system):
+    """The CLI prints the one list of key figures, with its labels, in its order."""
+    from app.cli import key_figures_table
+
+    figures = solved_traced.key_figures()
+    expected = [f.negative_label if f.negative_label and figures[f.key] < 0 else f.label for f in KEY_FIGURES]
+    lines = key_figures_table(solved_traced, system).splitlines()
+    rows = lines[1:1 + len(KEY_FIGURES)]
+    width = len(max(expected, key=len))
+    shown = [line[2:2 + width + 2].strip() for line in rows]
+    assert shown == expected
+    assert lines[1 + len(KEY_FIGURES)].strip().startswith("Verdict")
+
+
+def test_residual_follows_the_unit_system(solved_traced):
+    from app.cli import key_figures_table
+
+    for system, unit_text in (("SI", "W"), ("US", "Btu/h")):
+        row = next(line for line in key_figures_table(solved_traced, system).splitlines()
+                   if "Energy balance residual" in line)
+        assert row.rstrip().endswith(unit_text), row
+        assert not re.search(r"\d[eE][-+]?\d", row), row  # never "1.2e-09 W"
+    us_row = next(line for line in key_figures_table(solved_traced, "US").splitlines() if "residual" in line)
+    assert " W" not in us_row and "mW" not in us_row
+
+
+def test_checks_are_counted_with_plurals_and_listed_worst_first(solved_traced):
+    from app.cli import key_figures_table
+
+    # the slow syrup line raises more than one warning (laminar entry range) and a low-velocity note
+    text = key_figures_table(solved_traced, "SI")
+    counts = solved_traced.check_counts()
+    assert counts["warning"] >= 2
+    assert f"{counts['warning']} warnings" in text
+    for n in re.findall(r"\b(\d+) (?:danger|warning)\b(?!s)", text):
+        assert n == "1", text  # "3 warning" never
+    for n in re.findall(r"\b(\d+) (?:danger|warning)s\b", text):
+        assert n != "1", text
+    listed = text.split("  Checks:", 1)[1].splitlines()[1:]
+    severities = [line.split()[0] for line in listed]
+    order = {"DANGER": 0, "WARNING": 1, "INFO": 2}
+    assert len(severities) == len(solved_traced.checks)
+    assert severities == sorted(severities, key=order.__getitem__)
+
+
+def test_help_lists_every_command_without_qt():
+    for flag in ("--help", "-h"):
+        proc = run_cli(flag)
+        assert proc.returncode == 0, proc.stderr
+        for word in ("solve", "report", "schema", "--screenshot", "FILE"):
+            assert word in proc.stdout, (flag, word)
+    code = ("import sys, io, contextlib\nfrom app.cli import main\n"
+            "with contextlib.redirect_stdout(io.StringIO()):\n    assert main(['--help']) == 0\n"
+            "assert 'PySide6' not in sys.modules\nprint('NO-QT-OK')\n")
+    proc = subprocess.run([sys.executable, "-c", code], cwd=ROOT, env=dict(os.environ, PYTHONPATH=str(ROOT)),
+                          capture_output=True, text=True, timeout=60)
+    assert proc.returncode == 0, proc.stderr
+    assert "NO-QT-OK" in proc.stdout
 
 
 def test_solve_csv(tmp_path, project_file):
@@ -168,16 +243,22 @@ def test_alternative_selection(project_file):
 # --------------------------------------------------------------------------- exit codes
 
 
-def test_invalid_project_exit_2(tmp_path):
+@pytest.mark.parametrize("system, length_text", [("SI", "\u22122 m"), ("US", "\u22126.5617 ft")])
+def test_invalid_project_exit_2(tmp_path, system, length_text):
     data = json.loads(dump_project(two_alternative_project()))
     data["alternatives"][1]["segments"][0]["length_m"] = -2
     data["alternatives"][0]["feed"]["mass_flow_kg_per_s"] = "lots"
     path = tmp_path / "bad.json"
     path.write_text(json.dumps(data), encoding="utf-8")
-    proc = run_cli("solve", str(path))
+    proc = run_cli("solve", str(path), "--units", system)
+    proc.stderr = proc.stderr.replace("\u00a0", " ")  # no-break space between number and unit
     assert proc.returncode == 2
-    assert "alternatives[1].segments[0].length_m" in proc.stderr and "-2" in proc.stderr
-    assert "alternatives[0].feed.mass_flow_kg_per_s" in proc.stderr and "lots" in proc.stderr
+    # the file path stays, then the problem in the user's words and units (2 m = 6.5617 ft, 1 ft = 0.3048 m)
+    assert "alternatives[1].segments[0].length_m — Length must be more than 0" in proc.stderr
+    assert f"you entered {length_text}" in proc.stderr
+    assert "alternatives[0].feed.mass_flow_kg_per_s — Mass flow must be a number; you entered 'lots'" in proc.stderr
+    assert "2 problems" in proc.stderr and "problem(s)" not in proc.stderr
+    assert "Input should" not in proc.stderr
     assert "Traceback" not in proc.stderr
     assert proc.stdout == ""
 

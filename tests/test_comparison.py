@@ -112,3 +112,15 @@ def test_format_difference_rounds_to_shown_resolution():
     # 3 Pa on 100 kPa is below the shown resolution
     assert comparison.format_difference(3.0, 100_000.0, spec_dp, "SI") == "±0"
     assert comparison.format_difference(None, 100_000.0, spec_dp, "SI") == "—"
+
+
+def test_format_difference_speaks_the_unit_the_value_is_shown_in():
+    spec_dp = next(s for s in comparison.KEY_FIGURE_SPECS if s.key == "pressure_drop_Pa")
+    # a 50 Pa pressure drop is shown as "50.00 Pa" (below 0.1 kPa), so its difference is in Pa too
+    assert comparison.format_difference(20.0, 50.0, spec_dp, "SI") == "+20.00 Pa (+40 %)"
+    spec_q = next(s for s in comparison.KEY_FIGURE_SPECS if s.key == "heat_input_W")
+    # against a baseline with no heat input: round-off is no difference, 1.5 kW is
+    assert comparison.format_difference(1e-9, 0.0, spec_q, "SI") == "±0"
+    assert comparison.format_difference(1500.0, 0.0, spec_q, "SI") == "+1.500 kW"
+    # 1 kW = 3412.14 Btu/h (IT Btu); grouped with a thin space, no comma, no exponent
+    assert comparison.format_difference(-1000.0, 10_000.0, spec_q, "US") == "\u22123\u2009412 Btu/h (\u221210 %)"

@@ -123,3 +123,16 @@ def test_nan_written_as_empty_cell(result, tmp_path):
     for row in rows[1:]:
         for cell in row:
             assert cell == "" or math.isfinite(float(cell))
+
+
+@pytest.mark.parametrize("system", ["SI", "US"])
+def test_csv_numbers_stay_machine_readable(result, system):
+    """The display's digit groups and minus sign are for people; a CSV cell must parse as a number."""
+    text = export.profiles_csv_text(result, system)
+    rows = list(csv.reader(text.splitlines()))
+    assert rows[0] == [export.column_header(k, system) for k in PROFILE_COLUMNS]
+    for row in rows[1:]:
+        for cell in row:
+            assert "\u2009" not in cell and "\u2212" not in cell and "," not in cell
+            if cell:
+                float(cell)
