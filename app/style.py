@@ -51,6 +51,35 @@ CURVE_COLOURS: dict[str, str] = {
     "marker": OKABE_ITO["reddish_purple"],
 }
 
+#: One colour per alternative in overlaid plots (Okabe–Ito, yellow left out: too pale on white).
+ALTERNATIVE_COLOURS: tuple[str, ...] = (
+    OKABE_ITO["blue"], OKABE_ITO["vermillion"], OKABE_ITO["bluish_green"], OKABE_ITO["reddish_purple"],
+    OKABE_ITO["orange"], OKABE_ITO["sky_blue"], OKABE_ITO["black"],
+)
+#: Line styles cycled with the colours, so colour is never the only cue.
+ALTERNATIVE_STYLES: tuple[str, ...] = ("solid", "dash", "dashdot", "dot")
+
+# Verdicts and severities as text colours on white (the amber is darkened from Okabe–Ito orange so
+# it reads as text).
+MET_COLOUR = OKABE_ITO["bluish_green"]
+MISSED_COLOUR = OKABE_ITO["vermillion"]
+WARNING_TEXT = "#A86A00"
+#: DesignVerdict.level -> colour of the verdict text.
+VERDICT_COLOURS: dict[str, str] = {
+    "danger": MISSED_COLOUR, "missed": MISSED_COLOUR, "warning": WARNING_TEXT, "met": MET_COLOUR,
+}
+#: DesignVerdict.level -> symbol shown with the verdict, so colour is never the only cue.
+VERDICT_SYMBOLS: dict[str, str] = {"danger": "✗", "missed": "✗", "warning": "!", "met": "✓"}
+SEVERITY_WORDS: dict[str, tuple[str, str]] = {
+    "danger": ("DANGER", OKABE_ITO["vermillion"]), "warning": ("WARNING", WARNING_TEXT),
+    "info": ("INFO", OKABE_ITO["blue"]),
+}
+
+# Printed report chrome (ours): headings and header rules, table rules, header shading.
+ACCENT = "#2E4A62"
+RULE = "#C9D1D7"
+SHADE = "#EEF2F5"
+
 # Line Strip symbols
 PIPE_WALL = "#4A5660"  # steel
 FLUID_FILL = "#D6ECF8"  # light sky blue: the fluid inside

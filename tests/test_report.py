@@ -155,20 +155,135 @@ def test_comparison_differences_printed(sample):
         assert _norm(expected) in text
 
 
-def test_target_verdicts_printed(sample):
+def test_verdicts_count_targets_and_checks(sample):
+    """Each alternative's verdict counts its targets met and its danger and warning checks."""
     project, _, pages, results = sample
     text = " ".join(pages)
     if not comparison.targets_set(project.targets):
         pytest.skip("sample has no targets")
     assert "Design targets" in text
-    n_met = {name: 0 for name in results}
-    total = 0
     for name, r in results.items():
         verdicts = comparison.target_verdicts(project.targets, r)
-        total = len(verdicts)
-        n_met[name] = sum(v.met for v in verdicts)
-    for name in results:
-        assert f"{n_met[name]} of {total} targets met" in text
+        section = _section(pages, name)
+        verdict = section.split("Verdict:", 1)[1][:160]
+        assert f"{sum(v.met for v in verdicts)}/{len(verdicts)} targets met" in verdict, (name, verdict)
+        for severity in ("danger", "warning"):
+            n = sum(c.severity == severity for c in r.checks)  # counted here from the solver's checks
+            if n:
+                assert f"{n} {severity}" in verdict, (name, verdict)
+        if not any(c.severity in ("danger", "warning") for c in r.checks):
+            assert "no warnings" in verdict
+
+
+def _section(pages: list[str], name: str) -> str:
+    """The text of the page that opens an alternative's section."""
+    return next(p for p in pages if "ALTERNATIVE" in p and "Segments (in flow order)" in p and _norm(name) in p)
+
+
+def _coloured_text(path: Path, page_index: int) -> list[tuple[str, tuple]]:
+    """(text, fill colour as RGB 0..1) of each text run on a page, read from the PDF's operators."""
+    page = pypdf.PdfReader(str(path)).pages[page_index]
+    state = {"colour": (0.0, 0.0, 0.0)}
+    stack, runs = [], []
+
+    def before(op, args, cm, tm):
+        if op == b"q":
+            stack.append(state["colour"])
+        elif op == b"Q" and stack:
+            state["colour"] = stack.pop()
+        elif op in (b"rg", b"scn", b"sc") and len(args) == 3:
+            state["colour"] = tuple(round(float(a), 3) for a in args)
+
+    def visit(t, cm, tm, font, size):
+        if t.strip():
+            runs.append((_norm(t.replace("\t", " ")), state["colour"]))
+
+    page.extract_text(visitor_operand_before=before, visitor_text=visit)
+    return runs
+
+
+def _rgb(hex_colour: str) -> tuple:
+    return tuple(round(int(hex_colour[i:i + 2], 16) / 255, 3) for i in (1, 3, 5))
+
+
+def test_verdict_shows_the_no_flow_danger(tmp_path):
+    """A design that meets all its targets but fails a check is never shown as simply "met"
+    (issue 7: "No tracing: 4 of 4 targets met" beside a line that freezes with the flow stopped)."""
+    from app.style import MET_COLOUR, VERDICT_COLOURS
+
+    project = _sample_project()
+    name = "No tracing, 80 mm wool"
+    if name not in [a.name for a in project.alternatives]:
+        pytest.skip("sample changed")
+    r = solve(next(a for a in project.alternatives if a.name == name))
+    worst = [c for c in r.checks if c.severity in ("danger", "warning") and c.code.startswith("NO_FLOW")]
+    assert worst, "precondition: the sample's untraced line has a no-flow check"
+    assert all(v.met for v in comparison.target_verdicts(project.targets, r))  # and meets its targets
+    path = write_report(project, tmp_path / "verdict.pdf", alternatives=[name])
+    pages = _pages(path)
+    section_index = next(i for i, p in enumerate(pages) if "ALTERNATIVE" in p and "Segments (in flow order)" in p)
+    glance = pages[0].split("Verdict at a glance", 1)[1]
+    severity = "danger" if any(c.severity == "danger" for c in r.checks) else "warning"
+    first = next(c for c in r.checks if c.severity == severity)  # the solver lists the worst first
+    for text in (glance, pages[section_index].split("Verdict:", 1)[1]):
+        assert f"{severity}: {_norm(first.title)}" in text[:400]
+        assert "no warnings" not in text[:400]
+    # the verdict is printed in the colour of its level, not in the "met" green
+    runs = _coloured_text(path, section_index)
+    verdict_runs = [c for t, c in runs if "targets met" in t]
+    assert verdict_runs, runs[:10]
+    level = "danger" if severity == "danger" else "warning"
+    assert verdict_runs[0] == _rgb(VERDICT_COLOURS[level]) != _rgb(MET_COLOUR)
+
+
+def test_given_results_are_not_solved_again(tmp_path, monkeypatch):
+    """Export PDF hands over the results the app holds; the report must not solve them again."""
+    import solver
+
+    project = _demo_project()
+    held = {a.name: solve(a) for a in project.alternatives[:2]}
+    calls = []
+    real_solve = solver.solve
+    monkeypatch.setattr(solver, "solve", lambda alt, *a, **k: calls.append(alt.name) or real_solve(alt, *a, **k))
+    path = write_report(project, tmp_path / "held.pdf", results=held)
+    assert calls == [project.alternatives[2].name]  # only the one not handed over
+    text = " ".join(_pages(path))
+    for r in held.values():
+        assert _norm(units.format_value(r.outlet_temperature_K, "temperature", "SI")) in text
+
+
+def test_one_description_of_the_fluid(tmp_path):
+    """The fluid reads the same in every section: the solver's own label, e.g. "Ethylene glycol 30 % (mass)"."""
+    project = _demo_project()  # MEG at 30 % by mass (CoolProp INCOMP "MEG": ethylene glycol, mass based)
+    path = write_report(project, tmp_path / "fluid.pdf", alternatives=["Thick wool", "Trace 10 W/m"])
+    text = " ".join(_pages(path))
+    label = solve(project.alternatives[1]).fluid_label
+    assert label == "Ethylene glycol 30 % (mass)"
+    assert text.count(label) == 3  # the job sentence and each alternative's Feed table
+    assert "MEG" not in text
+
+
+def test_key_figures_use_the_one_list(tmp_path):
+    """Labels as the one list writes them; a heat loss that is a gain reads as a gain, sign turned."""
+    from solver.results import KEY_FIGURES
+
+    project = _demo_project()
+    warm = project.alternatives[1].model_copy(update={
+        "name": "Warm hall",
+        "segments": [s.model_copy(update={"surroundings": StillAir(temperature_K=363.15)})
+                     for s in project.alternatives[1].segments],
+    })
+    project = project.model_copy(update={"alternatives": [warm], "baseline": "Warm hall"})
+    r = solve(warm)
+    assert r.heat_loss_W < 0  # precondition: air at 90 °C heats a line carrying 60 °C glycol
+    section = _section(_pages(write_report(project, tmp_path / "kf.pdf")), "Warm hall")
+    figures = section.split("Key Figures", 1)[1]
+    for spec in KEY_FIGURES:
+        label = spec.negative_label if spec.key == "heat_loss_W" else spec.label
+        assert _norm(label) in figures, label
+    assert "Heat loss to surroundings" not in figures
+    gained = _norm(units.format_value(-r.heat_loss_W, "power", "SI"))
+    assert f"Heat gained from surroundings {gained}" in figures
 
 
 def test_cautions_methods_assumptions(sample):
@@ -302,10 +417,10 @@ def _straddling_rows(doc, page_h):
 def test_no_row_straddles_a_page_break(tmp_path, monkeypatch, extra_lines):
     """Comparison rows hold a value and its difference on two lines; Qt alone may
     split such a row across pages. The final layout must have none."""
-    import app.report as report
+    import app.reporting.pdf as pdf
 
     found = []
-    monkeypatch.setattr(report, "_LAYOUT_HOOK", lambda doc, page_h: found.extend(_straddling_rows(doc, page_h)))
+    monkeypatch.setattr(pdf, "LAYOUT_HOOK", lambda doc, page_h: found.extend(_straddling_rows(doc, page_h)))
     # a long description shifts every table down by whole lines
     project = _demo_project().model_copy(update={"description": " ".join(["Shift the layout by a few lines."] * (8 * extra_lines))})
     write_report(project, tmp_path / "rows.pdf")

@@ -1,0 +1,192 @@
+"""Plain words about a design: fluid, pipe, wall, surroundings, fittings, key figures, methods.
+
+No Qt here (a headless module like :mod:`app.units`): the report writes these words into its
+HTML, and any other view or the CLI may print them too. Values are converted for display with
+:mod:`app.units` in the reader's unit system, the unit stated beside every value. The results are
+plain, unescaped text; :func:`esc` escapes them for HTML.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import html
+import math
+from typing import Iterable, Mapping
+
+from app import units
+from solver.errors import CalorunError
+from solver.model import (
+    Adiabatic,
+    Buried,
+    FixedWall,
+    Jacket,
+    PureFluid,
+    Segment,
+    SolutionFluid,
+    StillAir,
+    TableFluid,
+    Wind,
+)
+from solver.results import KeyFigure, Result
+
+__all__ = [
+    "esc", "fmt", "num", "ulabel", "fluid_text", "fluid_source_text", "surroundings_text", "pipe_text",
+    "insulation_text", "fittings_text", "method_entries", "key_figure_label_and_value",
+]
+
+
+def esc(text) -> str:
+    """Escape any text for HTML (quotes too), so typed ``<b>`` or ``&`` print as typed."""
+    return html.escape("" if text is None else str(text), quote=True)
+
+
+def fmt(value, quantity: str, system: str, digits: int = 4) -> str:
+    """A value in display units with its unit, e.g. ``'80.0 °C'``."""
+    return units.format_value(value, quantity, system, digits=digits)
+
+
+def num(value, quantity: str, system: str, digits: int = 4) -> str:
+    """A value in display units without its unit (for table columns that state it in the header)."""
+    return units.format_value(value, quantity, system, digits=digits, with_unit=False)
+
+
+def ulabel(quantity: str, system: str) -> str:
+    """The display unit of ``quantity``, or a dash for dimensionless quantities."""
+    return units.label(quantity, system) or "-"
+
+
+def fluid_text(fluid) -> str:
+    """The one description of a fluid, as the solver's fluid model names it in its results.
+
+    E.g. ``'Ethylene glycol 30 % (mass)'``, ``'Water'``, ``'Residue R-7 (user table)'``. A fluid the
+    property library refuses (the solve fails too, and says why) is described from its entry.
+    """
+    from solver.properties import fluid_model
+
+    try:
+        return fluid_model(fluid).label
+    except CalorunError:
+        if isinstance(fluid, PureFluid):
+            return fluid.name
+        if isinstance(fluid, SolutionFluid):
+            return f"{fluid.solute} solution {fluid.concentration * 100:g} %"
+        if isinstance(fluid, TableFluid):
+            return f"{fluid.name} (user table)"
+        return str(fluid)
+
+
+def fluid_source_text(fluid) -> str:
+    """Where the fluid's properties come from."""
+    if isinstance(fluid, PureFluid):
+        return "CoolProp, pure fluid"
+    if isinstance(fluid, SolutionFluid):
+        return "CoolProp incompressible library, aqueous solution"
+    if isinstance(fluid, TableFluid):
+        return f"the user's table, {len(fluid.rows)} rows (not extrapolated)"
+    return "—"
+
+
+def surroundings_text(s, system: str) -> str:
+    """What a segment's outside exchanges heat with."""
+    t = lambda v: fmt(v, "temperature", system)  # noqa: E731
+    if isinstance(s, (StillAir, Wind)):
+        out = (f"Still air at {t(s.temperature_K)}" if isinstance(s, StillAir)
+               else f"Wind {fmt(s.wind_speed_m_per_s, 'velocity', system)} at {t(s.temperature_K)}")
+        out += f", emissivity {s.emissivity:g}"
+        if s.film_coefficient_W_per_m2K is not None:
+            out += f", outer film {fmt(s.film_coefficient_W_per_m2K, 'film_coefficient', system)} (entered)"
+        return out
+    if isinstance(s, Buried):
+        return (
+            f"Buried {fmt(s.depth_m, 'depth', system)} deep, soil at {t(s.soil_temperature_K)}, "
+            f"k {fmt(s.soil_conductivity_W_per_mK, 'conductivity', system)}"
+        )
+    if isinstance(s, Jacket):
+        return f"Jacket medium at {t(s.medium_temperature_K)}, film {fmt(s.film_coefficient_W_per_m2K, 'film_coefficient', system)}"
+    if isinstance(s, FixedWall):
+        if s.steam_pressure_Pa is not None:
+            return f"Wall held by condensing steam at {fmt(s.steam_pressure_Pa, 'pressure', system)}"
+        return f"Wall held at {t(s.wall_temperature_K)}"
+    if isinstance(s, Adiabatic):
+        return "Adiabatic (no exchange)"
+    return str(getattr(s, "kind", s))
+
+
+def pipe_text(seg: Segment, system: str) -> str:
+    """The pipe as the trade names it (NPS and schedule) or by its bore and wall, and its material."""
+    p = seg.pipe
+    if p.bore == "nps":
+        out = f"NPS {p.nps} sch. {p.schedule}"
+    else:
+        out = f"ID {fmt(p.inner_diameter_m, 'diameter', system)}, wall {fmt(p.wall_thickness_m, 'thickness', system)}"
+    return f"{out}, {p.material}"
+
+
+def insulation_text(seg: Segment, system: str) -> str:
+    """Insulation layers from the pipe outwards, or ``'none'``."""
+    if not seg.insulation:
+        return "none"
+    return "; ".join(
+        f"{fmt(layer.thickness_m, 'thickness', system)} {layer.material} "
+        f"(k {fmt(layer.conductivity_W_per_mK, 'conductivity', system, digits=3)})"
+        for layer in seg.insulation
+    )
+
+
+def fittings_text(seg: Segment) -> str:
+    """Fittings with their counts, or ``'none'``."""
+    if not seg.fittings:
+        return "none"
+    parts = []
+    for f in seg.fittings:
+        name = f.label or f.kind.replace("_", " ")
+        if f.kind == "custom" and f.K is not None:
+            name += f" (K {f.K:g})"
+        parts.append(f"{f.count} × {name}")
+    return "; ".join(parts)
+
+
+def method_entries(results: Iterable[Result]) -> list[tuple[str, str]]:
+    """Methods used across ``results`` as ``(name, source)``, in first-use order, without repeats.
+
+    A method the solver names by a key of ``solver.correlations.METHODS`` gets
+    that entry's published source.
+    """
+    from solver.correlations import METHODS
+
+    seen: set[str] = set()
+    out: list[tuple[str, str]] = []
+    for r in results:
+        for m in r.methods:
+            text = str(m)
+            if text in seen:
+                continue
+            seen.add(text)
+            if text in METHODS:
+                out.append((text.replace("_", " "), METHODS[text]))
+            else:
+                name, sep, source = text.partition(": ")
+                out.append((name, source) if sep and len(name) < 60 else ("", text))
+    return out
+
+
+def key_figure_label_and_value(spec: KeyFigure, figures: Mapping[str, float], system: str,
+                               indent: str = "   ") -> tuple[str, str]:
+    """One Key Figure as ``(label, value text)`` in the reader's units.
+
+    The label is the list's label (indented with ``indent`` under the figure it is a share of); a
+    negative value of a figure with a ``negative_label`` is shown under that label with its sign
+    turned ("Heat gained from surroundings 4.6 kW", not "Heat loss −4.6 kW"); a figure with a
+    ``position_key`` says where it occurs.
+    """
+    value = figures.get(spec.key)
+    label = spec.indented_label(indent)
+    if spec.negative_label and value is not None and math.isfinite(value) and value < 0:
+        label = dataclasses.replace(spec, label=spec.negative_label).indented_label(indent)
+        value = -value
+    if spec.position_key:
+        position = figures.get(spec.position_key)
+        if value is None or not math.isfinite(value):
+            return label, "—"  # e.g. no surface in air
+        return label, f"{fmt(value, spec.quantity, system)} at {fmt(position, 'length', system)}"
+    return label, fmt(value, spec.quantity, system)
