@@ -8,11 +8,14 @@ treated as immutable values, which keeps undo exact and lets the solve thread re
 
 Dotted paths name fields inside a segment or alternative: ``"length_m"``, ``"pipe.nps"``,
 ``"surroundings.temperature_K"``, ``"insulation.0.thickness_m"``, ``"feed.inlet_pressure_Pa"``.
+
+Segments: set fields, insert, duplicate, remove, move. Alternatives: add, duplicate, rename,
+move, remove, set the baseline. Project fields. New names come from :func:`unique_name`.
 """
 
 from __future__ import annotations
 
-from typing import Any, Mapping, Optional
+from typing import Any, Iterable, Mapping, Optional
 
 from pydantic import BaseModel
 from PySide6.QtGui import QUndoCommand
@@ -102,6 +105,21 @@ def updated_model(model: BaseModel, changes: Mapping[str, Any]) -> BaseModel:
     return type(model).model_validate(data)
 
 
+def unique_name(existing: Iterable[str], wanted: str) -> str:
+    """``wanted``, or ``wanted (2)``, ``wanted (3)``... whichever is not taken.
+
+    The one rule for every name the program makes up (new and copied segments and
+    alternatives), so names look alike wherever they come from.
+    """
+    taken = set(existing)
+    if wanted not in taken:
+        return wanted
+    n = 2
+    while f"{wanted} ({n})" in taken:
+        n += 1
+    return f"{wanted} ({n})"
+
+
 class _AlternativeSwap(QUndoCommand):
     """Base: swap one alternative for a validated new version; optionally move the selection."""
 
@@ -171,14 +189,6 @@ class SetSegmentField(SetSegmentFields):
         self.value = value
 
 
-class ReplaceSegment(_AlternativeSwap):
-    def __init__(self, doc, alt_index: int, seg_index: int, segment: Segment, text: Optional[str] = None):
-        alt = doc.project.alternatives[alt_index]
-        segs = list(alt.segments)
-        segs[seg_index] = Segment.model_validate(segment.model_dump())
-        super().__init__(doc, alt_index, _with_segments(alt, segs), text or f"Edit '{segment.name}'")
-
-
 class SetAlternativeFields(_AlternativeSwap):
     """Change fields of an alternative (fluid, feed, limits, name) in one undo step."""
 
@@ -219,20 +229,38 @@ class DuplicateSegment(InsertSegment):
     """Insert a copy of a segment right after it (downstream) and select the copy."""
 
     def __init__(self, doc, alt_index: int, index: int):
-        seg = doc.project.alternatives[alt_index].segments[index]
-        copy = seg.model_copy(update={"name": _unique_name(doc.project.alternatives[alt_index], seg.name)})
+        alt = doc.project.alternatives[alt_index]
+        seg = alt.segments[index]
+        copy = seg.model_copy(update={"name": unique_name((s.name for s in alt.segments), f"{seg.name} (copy)")})
         super().__init__(doc, alt_index, index + 1, copy, text=f"Duplicate segment '{seg.name}'")
 
 
-def _unique_name(alt: Alternative, base: str) -> str:
-    names = {s.name for s in alt.segments}
-    stem = base.split(" (copy")[0]
-    candidate = f"{stem} (copy)"
-    n = 2
-    while candidate in names:
-        candidate = f"{stem} (copy {n})"
-        n += 1
-    return candidate
+def continuation_of(segment: Segment, name: str) -> Segment:
+    """A new segment that continues ``segment``'s pipe and wall model.
+
+    It keeps what sets the heat path (pipe, heat input, insulation, surroundings), so a segment
+    inserted into a traced, insulated run is traced and insulated too and opens no cold gap;
+    it starts level, without fittings and at the default length, since those belong to the
+    place along the line, not to the wall.
+    """
+    return Segment(name=name, pipe=segment.pipe, heat_input_W_per_m=segment.heat_input_W_per_m,
+                   insulation=list(segment.insulation), surroundings=segment.surroundings)
+
+
+def positional_name(alt: Alternative, position: int) -> str:
+    """The name a new segment gets at ``position`` (0 = first): "Segment 3" for the third,
+    "Segment 3 (2)" if that is taken. Other segments keep their names."""
+    return unique_name((s.name for s in alt.segments), f"Segment {position + 1}")
+
+
+class InsertContinuation(InsertSegment):
+    """Insert, at ``position``, a segment continuing the wall model of segment ``template``."""
+
+    def __init__(self, doc, alt_index: int, position: int, template: int):
+        alt = doc.project.alternatives[alt_index]
+        self.template = alt.segments[template]
+        self.segment = continuation_of(self.template, positional_name(alt, position))
+        super().__init__(doc, alt_index, position, self.segment)
 
 
 class RemoveSegment(_AlternativeSwap):
@@ -324,3 +352,105 @@ class SetProjectField(QUndoCommand):
 
     def undo(self) -> None:
         self.doc.set_project_field(self.name, self.old)
+
+
+# --------------------------------------------------------------------------- alternatives
+# Each validates the new project state when created (a bad name raises before anything
+# changes). Removing an alternative is RemoveAlternative above.
+
+
+def _names(doc) -> list[str]:
+    return [a.name for a in doc.project.alternatives]
+
+
+class _ProjectAlternativesSwap(QUndoCommand):
+    """Base: replace the list of alternatives and the baseline together; keep the
+    same alternative current (followed by identity, not by position)."""
+
+    def __init__(self, doc, new_alternatives: list[Alternative], new_baseline: Optional[str], text: str,
+                 current_after: Optional[int] = None):
+        super().__init__(text)
+        self.doc = doc
+        self.old = list(doc.project.alternatives)
+        self.old_baseline = doc.project.baseline
+        self.new = list(new_alternatives)
+        self.new_baseline = new_baseline
+        Project.model_validate({**dict(doc.project), "alternatives": self.new, "baseline": self.new_baseline})
+        self.current_before = doc.current_index
+        self.current_after = doc.current_index if current_after is None else current_after
+
+    def _apply(self, alternatives, baseline, current) -> None:
+        self.doc.project.baseline = None  # lift the name rule while the list changes
+        self.doc.set_alternatives(alternatives)
+        self.doc.set_project_field("baseline", baseline)
+        if 0 <= current < len(alternatives) and current != self.doc.current_index:
+            self.doc.set_current_alternative(current)
+
+    def redo(self) -> None:
+        self._apply(self.new, self.new_baseline, self.current_after)
+
+    def undo(self) -> None:
+        self._apply(self.old, self.old_baseline, self.current_before)
+
+
+class AddAlternative(_ProjectAlternativesSwap):
+    """Add a blank alternative (one default segment) at the end, or a given one, and make it current."""
+
+    def __init__(self, doc, alternative: Optional[Alternative] = None, position: Optional[int] = None):
+        alt = alternative or Alternative(name="New alternative", segments=[Segment()])
+        alt = alt.model_copy(update={"name": unique_name(_names(doc), alt.name)})
+        alts = list(doc.project.alternatives)
+        pos = len(alts) if position is None else max(0, min(position, len(alts)))
+        alts.insert(pos, Alternative.model_validate(alt.model_dump()))
+        super().__init__(doc, alts, doc.project.baseline, f"Add alternative '{alt.name}'", current_after=pos)
+
+
+class DuplicateAlternative(AddAlternative):
+    """Copy an alternative (default: the current one) right after it, named '<name> (copy)'."""
+
+    def __init__(self, doc, index: Optional[int] = None):
+        index = doc.current_index if index is None else index
+        src = doc.project.alternatives[index]
+        copy = Alternative.model_validate(src.model_dump())
+        copy = copy.model_copy(update={"name": unique_name(_names(doc), f"{src.name} (copy)")})
+        super().__init__(doc, copy, position=index + 1)
+        self.setText(f"Duplicate alternative '{src.name}'")
+
+
+class RenameAlternative(_ProjectAlternativesSwap):
+    """Rename an alternative; the baseline follows the name."""
+
+    def __init__(self, doc, index: int, new_name: str):
+        new_name = new_name.strip()
+        old = doc.project.alternatives[index]
+        if not new_name:
+            raise ValueError("An alternative needs a name; the entry is empty.")
+        if new_name != old.name and new_name in _names(doc):
+            raise ValueError(f"Another alternative is already called '{new_name}'; choose another name.")
+        alts = list(doc.project.alternatives)
+        alts[index] = old.model_copy(update={"name": new_name})
+        baseline = new_name if doc.project.baseline == old.name else doc.project.baseline
+        super().__init__(doc, alts, baseline, f"Rename alternative '{old.name}' to '{new_name}'")
+
+
+class MoveAlternative(_ProjectAlternativesSwap):
+    """Move an alternative from one position to another (the current one stays current)."""
+
+    def __init__(self, doc, from_index: int, to_index: int):
+        alts = list(doc.project.alternatives)
+        n = len(alts)
+        if not (0 <= from_index < n and 0 <= to_index < n):
+            raise IndexError(f"alternative move {from_index} -> {to_index} out of range 0..{n - 1}")
+        current_obj = alts[doc.current_index]
+        alt = alts.pop(from_index)
+        alts.insert(to_index, alt)
+        current_after = next(i for i, a in enumerate(alts) if a is current_obj)
+        super().__init__(doc, alts, doc.project.baseline, f"Move alternative '{alt.name}'", current_after=current_after)
+
+
+class SetBaseline(_ProjectAlternativesSwap):
+    """Mark one alternative as the baseline the others are compared against."""
+
+    def __init__(self, doc, index: int):
+        name = doc.project.alternatives[index].name
+        super().__init__(doc, list(doc.project.alternatives), name, f"Set baseline to '{name}'")

@@ -11,7 +11,6 @@ import re
 from typing import Optional
 
 from pydantic import ValidationError
-from PySide6.QtCore import Signal
 from PySide6.QtGui import QGuiApplication
 from PySide6.QtWidgets import (
     QAbstractItemView,
@@ -34,8 +33,9 @@ from PySide6.QtWidgets import (
 )
 
 from app import commands, units
-from app.panels.segment_card import _hint, _section, validation_message
+from app.panels.editing import EditorPanel, error_hint, hint, push_edit, refusal_text, section
 from app.widgets.quantity_edit import ERROR_COLOUR, QuantityEdit
+from solver.properties import PURE_FLUIDS, SOLUTIONS
 
 # columns of a user-defined fluid table: model key, heading, quantity
 TABLE_COLUMNS = [
@@ -53,24 +53,6 @@ PASTE_HELP = (
     "T [°C]   rho [kg/m3]   cp [kJ/(kg K)]   mu [mPa s]   k [W/(m K)]\n"
     "Columns without a stated unit are read in the units shown in the table heading."
 )
-
-
-def _pure_fluids() -> dict[str, str]:
-    try:
-        from solver.properties import PURE_FLUIDS
-
-        return dict(PURE_FLUIDS)
-    except Exception:
-        return {"Water": "Water"}
-
-
-def _solutions() -> dict[str, tuple[str, str, float, float]]:
-    try:
-        from solver.properties import SOLUTIONS
-
-        return dict(SOLUTIONS)
-    except Exception:
-        return {"MEG": ("Ethylene glycol", "mass", 0.0, 0.6)}
 
 
 def _unit_text(text: str) -> str:
@@ -157,7 +139,7 @@ class FluidTableDialog(QDialog):
             buttons.addWidget(b)
         buttons.addStretch(1)
         v.addLayout(buttons)
-        v.addWidget(_hint(PASTE_HELP + " Values are interpolated between rows, never extrapolated."))
+        v.addWidget(hint(PASTE_HELP + " Values are interpolated between rows, never extrapolated."))
         self.error_label = QLabel()
         self.error_label.setWordWrap(True)
         self.error_label.setStyleSheet(f"color: {ERROR_COLOUR};")
@@ -216,7 +198,7 @@ class FluidTableDialog(QDialog):
         try:
             return TableFluid.model_validate(data)
         except ValidationError as exc:
-            raise ValueError(validation_message(exc, "fluid")) from None
+            raise ValueError(refusal_text(exc, self.system, prefix="fluid")) from None
 
     def try_accept(self) -> None:
         for e in (self.freeze_edit, self.boil_edit):
@@ -232,29 +214,25 @@ class FluidTableDialog(QDialog):
         self.accept()
 
 
-class FeedPanel(QWidget):
+class FeedPanel(EditorPanel):
     """Fluid, inlet state, flow and limits of the current alternative."""
 
-    edit_refused = Signal(str)
-
     def __init__(self, doc, parent: Optional[QWidget] = None):
-        super().__init__(parent)
-        self.doc = doc
-        self._loading = False
+        super().__init__(doc, parent)
+        self._shown_alt = doc.current_index
         self._last_tables: dict = {}  # alternative name -> its last user-defined table fluid
         self.table_dialog: Optional[FluidTableDialog] = None
-        self._qedits: list[QuantityEdit] = []
         col = QVBoxLayout(self)
         col.setContentsMargins(6, 4, 6, 6)
         col.setSpacing(8)
 
-        box, form = _section("Fluid")
+        box, form = section("Fluid")
         self.fluid_combo = QComboBox()
         self.fluid_combo.setToolTip("Generic fluids; properties along the line from CoolProp or your table")
-        for code, label in _pure_fluids().items():
+        for code, label in PURE_FLUIDS.items():
             self.fluid_combo.addItem(label, f"pure:{code}")
         self.fluid_combo.insertSeparator(self.fluid_combo.count())
-        for code, (label, basis, _lo, _hi) in _solutions().items():
+        for code, (label, basis, _lo, _hi) in SOLUTIONS.items():
             self.fluid_combo.addItem(f"{label} in water", f"solution:{code}")
         self.fluid_combo.insertSeparator(self.fluid_combo.count())
         self.fluid_combo.addItem("User-defined (table)…", "table:")
@@ -269,7 +247,7 @@ class FeedPanel(QWidget):
         form.addRow(self.conc_label, self.conc_spin)
         self.table_btn = QPushButton("Edit table…")
         self.table_btn.clicked.connect(self.open_table_editor)
-        self.table_label = _hint("")
+        self.table_label = hint("")
         trow = QWidget()
         th = QHBoxLayout(trow)
         th.setContentsMargins(0, 0, 0, 0)
@@ -277,16 +255,15 @@ class FeedPanel(QWidget):
         th.addWidget(self.table_label, 1)
         self.table_row = trow
         form.addRow("", trow)
-        self.fluid_error = _hint("")
-        self.fluid_error.setStyleSheet(f"color: {ERROR_COLOUR};")
-        self.fluid_error.hide()
+        self.fluid_error = error_hint()
+        self.panel_error = self.fluid_error  # refusals of the fluid choices show here
         form.addRow(self.fluid_error)
         col.addWidget(box)
 
-        box, form = _section("Inlet")
-        self.temp_edit = self._qedit("temperature", "feed.inlet_temperature_K")
+        box, form = section("Inlet")
+        self.temp_edit = self.quantity_edit("temperature", "Inlet temperature", "feed.inlet_temperature_K")
         form.addRow("Temperature", self.temp_edit)
-        self.pressure_edit = self._qedit("pressure", "feed.inlet_pressure_Pa")
+        self.pressure_edit = self.quantity_edit("pressure", "Inlet pressure", "feed.inlet_pressure_Pa")
         form.addRow("Pressure (absolute)", self.pressure_edit)
         flow_row = QWidget()
         fh = QHBoxLayout(flow_row)
@@ -302,8 +279,8 @@ class FeedPanel(QWidget):
         fh.addWidget(self.volume_radio)
         fh.addStretch(1)
         form.addRow("Flow given as", flow_row)
-        self.mass_edit = self._qedit("mass_flow", "feed.mass_flow_kg_per_s")
-        self.volume_edit = self._qedit("volume_flow", "feed.volume_flow_m3_per_s")
+        self.mass_edit = self.quantity_edit("mass_flow", "Mass flow", "feed.mass_flow_kg_per_s")
+        self.volume_edit = self.quantity_edit("volume_flow", "Volume flow", "feed.volume_flow_m3_per_s")
         self.flow_label = QLabel("Mass flow")
         flow_stack = QWidget()
         fs = QVBoxLayout(flow_stack)
@@ -313,14 +290,16 @@ class FeedPanel(QWidget):
         form.addRow(self.flow_label, flow_stack)
         col.addWidget(box)
 
-        box, form = _section("Limits (empty = none)")
-        self.max_wall_edit = self._qedit("temperature", "limits.max_inner_wall_temperature_K",
-                                         allow_empty=True, empty_text="none")
+        box, form = section("Limits (empty = none)")
+        self.max_wall_edit = self.quantity_edit("temperature", "Max inner-wall temperature",
+                                                "limits.max_inner_wall_temperature_K", allow_empty=True,
+                                                empty_text="none")
         self.max_wall_edit.line_edit.setToolTip(
             "Highest allowed inner-wall temperature (film or degradation limit of the fluid). Empty = none.")
         form.addRow("Max inner-wall temperature", self.max_wall_edit)
-        self.min_bulk_edit = self._qedit("temperature", "limits.min_bulk_temperature_K",
-                                         allow_empty=True, empty_text="none")
+        self.min_bulk_edit = self.quantity_edit("temperature", "Min bulk temperature",
+                                                "limits.min_bulk_temperature_K", allow_empty=True,
+                                                empty_text="none")
         self.min_bulk_edit.line_edit.setToolTip(
             "Lowest allowed bulk temperature (e.g. pour or cloud point). Empty = none.")
         form.addRow("Min bulk temperature", self.min_bulk_edit)
@@ -333,40 +312,25 @@ class FeedPanel(QWidget):
         doc.units_changed.connect(self._on_units)
         self.refresh()
 
-    def _qedit(self, quantity: str, path: str, **kw) -> QuantityEdit:
-        e = QuantityEdit(quantity, self.doc.unit_system, path, **kw)
-        e.value_committed.connect(lambda v, p=path, ed=e: self._set({p: v}, source=ed))
-        self._qedits.append(e)
-        return e
-
     # ------------------------------------------------------------------ model -> widgets
 
-    def _commit_pending(self) -> None:
-        """Commit text typed but not yet committed (a selection or unit change may not take focus)."""
-        for e in list(self._qedits):
-            if e.isVisibleTo(self) and e.pending:
-                e.commit()
-
     def _on_units(self, system: str) -> None:
-        self._commit_pending()  # read typed text in the units it was typed in, before they change
-        for e in self._qedits:
-            e.set_unit_system(system)
+        self.set_unit_system(system)
         self.refresh()
 
     def _on_alternative(self, *_args) -> None:
-        self._commit_pending()  # typed text belongs to the alternative it was typed for
-        for e in self._qedits:
-            e.reset()
+        self.commit_pending()  # typed text belongs to the alternative it was typed for
+        self.reset_edits()
         self.refresh()
 
     def refresh(self, *_args) -> None:
         self._shown_alt = self.doc.current_index
         self.remember_table()
-        self._loading = True
+        self.loading = True
         try:
             self._show(self.doc.current_alternative)
         finally:
-            self._loading = False
+            self.loading = False
 
     def _show(self, alt) -> None:
         fluid = alt.fluid
@@ -386,7 +350,7 @@ class FeedPanel(QWidget):
         self.conc_label.setVisible(is_solution)
         self.conc_spin.setVisible(is_solution)
         if is_solution:
-            label, basis, lo, hi = _solutions().get(fluid.solute, (fluid.solute, "mass", 0.0, 1.0))
+            label, basis, lo, hi = SOLUTIONS.get(fluid.solute, (fluid.solute, "mass", 0.0, 1.0))
             self.conc_label.setText(f"Concentration (by {basis})")
             self.conc_spin.blockSignals(True)
             self.conc_spin.setRange(lo * 100.0, hi * 100.0)
@@ -416,50 +380,37 @@ class FeedPanel(QWidget):
 
     # ------------------------------------------------------------------ widgets -> commands
 
-    def _set(self, changes: dict, source: Optional[QuantityEdit] = None, text: Optional[str] = None) -> bool:
-        if self._loading:
+    def set_fields(self, changes: dict, source: Optional[QuantityEdit] = None, text: Optional[str] = None,
+                   error_label: Optional[QLabel] = None) -> bool:
+        """One SetAlternativeFields command (one undo step) on the alternative the panel shows."""
+        if self.loading:
             return False
-        alt_index = getattr(self, "_shown_alt", self.doc.current_index)
+        alt_index = self._shown_alt
         if alt_index >= len(self.doc.project.alternatives):
             return False
-        alt = self.doc.project.alternatives[alt_index]
-        try:
-            if all(commands.get_path(alt, p) == v for p, v in changes.items()):
-                return True
-        except (AttributeError, IndexError, KeyError):
-            pass
-        try:
-            cmd = commands.SetAlternativeFields(self.doc, alt_index, changes, text)
-        except ValidationError as exc:
-            msg = validation_message(exc)
-            if source is not None:
-                source.show_error(msg)
-            else:
-                self.fluid_error.setText(msg)
-                self.fluid_error.show()
-            self.edit_refused.emit(msg)
-            return False
-        self.doc.push(cmd)
-        return True
+        return push_edit(self.doc,
+                         lambda: commands.SetAlternativeFields(self.doc, alt_index, changes, text),
+                         lambda msg: self.refuse(msg, source, error_label),
+                         model=self.doc.project.alternatives[alt_index], changes=changes)
 
     def _on_fluid(self, _index: int) -> None:
         kind, code = (self.fluid_combo.currentData() or "pure:Water").split(":", 1)
         alt = self.doc.current_alternative
         if kind == "pure":
-            self._set({"fluid": {"kind": "pure", "name": code}}, text=f"Set fluid to {self.fluid_combo.currentText()}")
+            self.set_fields({"fluid": {"kind": "pure", "name": code}}, text=f"Set fluid to {self.fluid_combo.currentText()}")
         elif kind == "solution":
-            _label, _basis, lo, hi = _solutions().get(code, ("", "mass", 0.0, 1.0))
+            _label, _basis, lo, hi = SOLUTIONS.get(code, ("", "mass", 0.0, 1.0))
             old = getattr(alt.fluid, "concentration", 0.3)
             conc = min(max(old, lo), hi)
-            self._set({"fluid": {"kind": "solution", "solute": code, "concentration": conc}},
+            self.set_fields({"fluid": {"kind": "solution", "solute": code, "concentration": conc}},
                       text=f"Set fluid to {self.fluid_combo.currentText()}")
         else:
             self.open_table_editor()
 
     def _on_concentration(self, percent: float) -> None:
-        if self._loading:
+        if self.loading:
             return
-        self._set({"fluid.concentration": round(percent / 100.0, 6)})
+        self.set_fields({"fluid.concentration": round(percent / 100.0, 6)})
 
     def open_table_editor(self) -> FluidTableDialog:
         """Open the user-defined fluid editor (non-blocking); OK applies it as one undo step."""
@@ -483,29 +434,24 @@ class FeedPanel(QWidget):
 
     def _apply_table(self, dlg: FluidTableDialog) -> None:
         if dlg.result_fluid is not None:
-            self._set({"fluid": dlg.result_fluid}, text=f"Set user-defined fluid '{dlg.result_fluid.name}'")
+            self.set_fields({"fluid": dlg.result_fluid}, text=f"Set user-defined fluid '{dlg.result_fluid.name}'")
 
     def _on_flow_kind(self, button_id: int) -> None:
-        if self._loading:
+        if self.loading:
             return
         feed = self.doc.current_alternative.feed
         by_mass = feed.mass_flow_kg_per_s is not None
         if (button_id == 0) == by_mass:
             return
         # keep the same flow: density at the inlet from the latest result (no physics here)
-        rho = None
         res = self.doc.result
-        try:
-            if res is not None:
-                rho = float(res.profile.density_kg_per_m3[0])
-        except Exception:
-            rho = None
-        if not rho or rho <= 0:
-            rho = 1000.0
+        rho = float(res.profile.density_kg_per_m3[0]) if res is not None and len(res.profile.density_kg_per_m3) else 0.0
+        if not rho > 0:
+            rho = 1000.0  # no result yet: water's density, so the number stays about right
         if button_id == 1:
             changes = {"feed.mass_flow_kg_per_s": None, "feed.volume_flow_m3_per_s": feed.mass_flow_kg_per_s / rho}
             text = "Give flow as volume flow"
         else:
             changes = {"feed.volume_flow_m3_per_s": None, "feed.mass_flow_kg_per_s": feed.volume_flow_m3_per_s * rho}
             text = "Give flow as mass flow"
-        self._set(changes, text=text)
+        self.set_fields(changes, text=text)

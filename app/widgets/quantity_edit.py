@@ -15,7 +15,7 @@ from typing import Optional
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import QHBoxLayout, QLabel, QLineEdit, QSizePolicy, QVBoxLayout, QWidget
 
-from app import units
+from app import messages, units
 
 ERROR_COLOUR = "#D55E00"  # Okabe–Ito vermillion, as app.style uses for danger
 
@@ -61,6 +61,8 @@ class QuantityEdit(QWidget):
     -------
     value_committed(object): the new SI value (float), or None when ``allow_empty`` and the box
         was cleared. Emitted when editing finishes (Enter or focus leaves) and the text changed.
+
+    ``field`` is the box's label as the user sees it ("Length"): messages about the entry name it.
     """
 
     value_committed = Signal(object)
@@ -174,7 +176,7 @@ class QuantityEdit(QWidget):
             return False
         if not text:
             if not self.allow_empty:
-                self.show_error(f"{self.field}: a value is required")
+                self.show_error(messages.value_required(self.field, self.quantity, self.system))
                 return False
             new_value = None
         else:

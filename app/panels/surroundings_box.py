@@ -1,0 +1,189 @@
+"""The Segment Card's surroundings section: what lies outside the pipe and its insulation.
+
+One page of fields per kind (still air, wind, buried, jacket, fixed wall, adiabatic). Switching
+the kind carries the temperature over, remembers what the segment had under the kind it left
+(switching back restores it), and is one undo step; a fixed wall takes no tracing, so switching
+to it sets the heat input to 0 in the same step and switching away gives the tracing back.
+"""
+
+from __future__ import annotations
+
+from PySide6.QtCore import Qt
+from PySide6.QtWidgets import (
+    QButtonGroup,
+    QFormLayout,
+    QGroupBox,
+    QRadioButton,
+    QStackedWidget,
+    QVBoxLayout,
+    QWidget,
+)
+
+from app.panels.editing import EditorPanel, hint, section_form, set_combo_data
+from app.widgets.elided import ElidedComboBox
+from app.widgets.quantity_edit import QuantityEdit
+
+#: surroundings kind -> label shown in the combo (order = combo order)
+SURROUNDINGS_KINDS: dict[str, str] = {
+    "still_air": "Still air (natural convection + radiation)",
+    "wind": "Wind (forced convection + radiation)",
+    "buried": "Buried in soil",
+    "jacket": "Jacket or bath medium",
+    "fixed_wall": "Fixed wall temperature / steam",
+    "adiabatic": "Adiabatic (no exchange)",
+}
+
+# the temperature key of each surroundings kind (carried over when the kind changes)
+_TEMPERATURE_KEY = {
+    "still_air": "temperature_K",
+    "wind": "temperature_K",
+    "buried": "soil_temperature_K",
+    "jacket": "medium_temperature_K",
+    "fixed_wall": "wall_temperature_K",
+}
+
+#: the fields of each kind's page: (label, quantity, model key, QuantityEdit options)
+_FILM = dict(allow_empty=True, empty_text="computed")
+_PAGES: dict[str, tuple[list[tuple[str, str, str, dict]], str]] = {
+    "still_air": ([("Air temperature", "temperature", "temperature_K", {}),
+                   ("Surface emissivity", "dimensionless", "emissivity", {}),
+                   ("Outer film coefficient", "film_coefficient", "film_coefficient_W_per_m2K", _FILM)],
+                  "Outer film from natural convection and radiation unless entered."),
+    "wind": ([("Air temperature", "temperature", "temperature_K", {}),
+              ("Wind speed", "speed", "wind_speed_m_per_s", {}),
+              ("Surface emissivity", "dimensionless", "emissivity", {}),
+              ("Outer film coefficient", "film_coefficient", "film_coefficient_W_per_m2K", _FILM)],
+             "Wind across the pipe; outer film computed unless entered."),
+    "buried": ([("Soil temperature", "temperature", "soil_temperature_K", {}),
+                ("Depth to centreline", "depth", "depth_m", {}),
+                ("Soil conductivity", "conductivity", "soil_conductivity_W_per_mK", {})], ""),
+    "jacket": ([("Medium temperature", "temperature", "medium_temperature_K", {}),
+                ("Film coefficient", "film_coefficient", "film_coefficient_W_per_m2K", {})],
+               "Jacket or bath medium at a known temperature, outside the insulation (if any)."),
+}
+
+
+class SurroundingsBox(QGroupBox):
+    """The 'Surroundings' group of the Segment Card."""
+
+    def __init__(self, editor: EditorPanel):
+        super().__init__("Surroundings")
+        self.editor = editor
+        self._memory: dict = {}  # (alternative, segment, name) -> settings per kind
+        form = section_form(self)
+        self.combo = ElidedComboBox()
+        for key, text in SURROUNDINGS_KINDS.items():
+            self.combo.addItem(text, key)
+        self.combo.activated.connect(self.on_kind)
+        form.addRow("Outside", self.combo)
+        self.stack = QStackedWidget()
+        self.pages: dict[str, QWidget] = {}
+        self.edits: dict[str, QuantityEdit] = {}  # "kind.key" -> box
+        for kind, (rows, note) in _PAGES.items():
+            self._page(kind, rows, note)
+        self._fixed_wall_page()
+        ad = QWidget()
+        QVBoxLayout(ad).addWidget(hint("No heat is exchanged with the surroundings "
+                                       "(a perfectly insulated outside)."))
+        self._add_page("adiabatic", ad)
+        form.addRow(self.stack)
+
+    def _add_page(self, kind: str, page: QWidget) -> None:
+        self.pages[kind] = page
+        self.stack.addWidget(page)
+
+    @staticmethod
+    def _form(page: QWidget) -> QFormLayout:
+        f = QFormLayout(page)
+        f.setContentsMargins(0, 0, 0, 0)
+        f.setLabelAlignment(Qt.AlignRight | Qt.AlignVCenter)
+        return f
+
+    def _page(self, kind: str, rows: list[tuple[str, str, str, dict]], note: str) -> None:
+        w = QWidget()
+        f = self._form(w)
+        for label_text, quantity, key, kw in rows:
+            e = self.editor.quantity_edit(quantity, label_text, f"surroundings.{key}", **kw)
+            self.edits[f"{kind}.{key}"] = e
+            f.addRow(label_text, e)
+        if note:
+            f.addRow(hint(note))
+        self._add_page(kind, w)
+
+    def _fixed_wall_page(self) -> None:
+        fw = QWidget()
+        f = self._form(fw)
+        self.fixed_by_temp = QRadioButton("Wall temperature")
+        self.fixed_by_steam = QRadioButton("Saturated steam at")
+        self.fixed_group = QButtonGroup(self)
+        self.fixed_group.addButton(self.fixed_by_temp, 0)
+        self.fixed_group.addButton(self.fixed_by_steam, 1)
+        self.fixed_group.idClicked.connect(self.on_fixed_source)
+        self.fixed_temp_edit = self.editor.quantity_edit("temperature", "Wall temperature",
+                                                         "surroundings.wall_temperature_K")
+        self.fixed_steam_edit = self.editor.quantity_edit("pressure", "Steam pressure",
+                                                          "surroundings.steam_pressure_Pa")
+        f.addRow(self.fixed_by_temp, self.fixed_temp_edit)
+        f.addRow(self.fixed_by_steam, self.fixed_steam_edit)
+        f.addRow(hint("The pipe's outer wall is held at this temperature (e.g. condensing steam); "
+                      "insulation and heat input play no part."))
+        self._add_page("fixed_wall", fw)
+
+    # ------------------------------------------------------------------ model -> widgets
+
+    def show_segment(self, seg) -> None:
+        s = seg.surroundings
+        set_combo_data(self.combo, s.kind)
+        self.stack.setCurrentWidget(self.pages[s.kind])
+        for key, edit in self.edits.items():
+            kind, field = key.split(".", 1)
+            if kind == s.kind:
+                edit.set_value(getattr(s, field))
+        if s.kind == "fixed_wall":
+            by_steam = s.steam_pressure_Pa is not None
+            self.fixed_by_steam.setChecked(by_steam)
+            self.fixed_by_temp.setChecked(not by_steam)
+            self.fixed_temp_edit.set_value(s.wall_temperature_K)
+            self.fixed_steam_edit.set_value(s.steam_pressure_Pa)
+            self.fixed_temp_edit.setEnabled(not by_steam)
+            self.fixed_steam_edit.setEnabled(by_steam)
+
+    # ------------------------------------------------------------------ widgets -> commands
+
+    def on_kind(self, _index: int) -> None:
+        doc = self.editor.doc
+        seg = doc.selected
+        kind = self.combo.currentData()
+        if seg is None or kind == seg.surroundings.kind:
+            return
+        # remember what this segment had under the kind it leaves, so switching back restores it
+        remembered = self._memory.setdefault((doc.current_index, doc.selected_segment, seg.name), {})
+        remembered[seg.surroundings.kind] = seg.surroundings.model_dump()
+        if seg.heat_input_W_per_m > 0:
+            remembered["heat_input_W_per_m"] = seg.heat_input_W_per_m
+        if kind in remembered:
+            new: dict = dict(remembered[kind])
+        else:
+            new = {"kind": kind}
+            old_key = _TEMPERATURE_KEY.get(seg.surroundings.kind)
+            new_key = _TEMPERATURE_KEY.get(kind)
+            if old_key and new_key and kind != "fixed_wall" and seg.surroundings.kind != "fixed_wall":
+                new[new_key] = getattr(seg.surroundings, old_key)
+        changes: dict = {"surroundings": new}
+        if kind == "fixed_wall" and seg.heat_input_W_per_m > 0:
+            changes["heat_input_W_per_m"] = 0.0  # a held wall takes no tracing; one undo step restores both
+        elif seg.surroundings.kind == "fixed_wall" and seg.heat_input_W_per_m == 0 and "heat_input_W_per_m" in remembered:
+            changes["heat_input_W_per_m"] = remembered["heat_input_W_per_m"]  # the tracing it had before
+        self.editor.set_fields(changes, text=f"Set surroundings of '{seg.name}' to {SURROUNDINGS_KINDS[kind].split(' (')[0]}")
+
+    def on_fixed_source(self, button_id: int) -> None:
+        seg = self.editor.doc.selected
+        if seg is None or seg.surroundings.kind != "fixed_wall" or self.editor.loading:
+            return
+        s = seg.surroundings
+        if button_id == 1 and s.steam_pressure_Pa is None:
+            self.editor.set_fields({"surroundings.wall_temperature_K": None, "surroundings.steam_pressure_Pa": 5e5},
+                                   text=f"Hold wall of '{seg.name}' with steam")
+        elif button_id == 0 and s.wall_temperature_K is None:
+            self.editor.set_fields({"surroundings.wall_temperature_K": 423.15, "surroundings.steam_pressure_Pa": None},
+                                   text=f"Hold wall of '{seg.name}' at a temperature")
