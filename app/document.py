@@ -6,33 +6,60 @@ their own copy of the design. The model changes only through commands
 methods below (``replace_alternative`` and friends), which emit :attr:`project_changed` and
 ask for a new solve.
 
-Solving: :meth:`request_solve` is debounced (a burst of edits gives one solve) and runs the
-solver on a worker thread of a one-thread pool, so the GUI never waits for it; a solve known
-to be quick (a few ms of CPU last time, same fluid) runs on the GUI thread instead, ahead of
-the repaint, so the edit and its result are drawn together. Each request
-carries the model generation it was made from; a result that arrives after the model has
-moved on is dropped, and the newest model is solved next. Results are handed back on the
-GUI thread through a queued signal.
+The solve runner is the one place in the app that calls the solver (:func:`run_solver`), so
+every view, the report export and any later tool get the same results and the same error
+messages:
+
+- Results are cached by content: the key is a hash of the alternative's JSON dump (everything
+  ``solve`` reads), so an unchanged alternative is never solved twice, an undo brings its result
+  back at once, and an edit of one alternative leaves the others' results in place. The cache
+  holds the last :data:`RESULT_CACHE_SIZE` outcomes; a hit returns the same ``Result`` object.
+- The current alternative (Profiles, Key Figures, Checks): :meth:`request_solve` is debounced (a
+  burst of edits gives one solve) and its outcome arrives as :attr:`result_ready` or
+  :attr:`solve_failed`. A solve known to be quick (a few ms of CPU last time, same fluid) runs on
+  the GUI thread ahead of the repaint, so the edit and its result are drawn together; anything
+  else runs on the worker thread. Each request carries the model generation it was made from; a
+  result that arrives after the model has moved on is dropped and the newest model is solved next.
+- Any alternatives (Side-by-Side, the report): :meth:`request_results` solves those not held yet
+  on the worker thread, one job each, behind the current alternative's solves; each outcome is
+  announced by :attr:`alternative_solved` to the alternatives that still have that content. A
+  queued job whose alternative has been edited in the meantime is cancelled; a result that comes
+  back for an outdated model is not announced (it stays in the cache under its own content key,
+  where an undo finds it).
+- Errors are wrapped one way: a :class:`solver.errors.CalorunError` becomes its plain message;
+  anything else is a bug, logged with its traceback and shown as "internal error (…)".
+
+Results are handed back on the GUI thread through a queued signal.
 """
 
 from __future__ import annotations
 
+import hashlib
+import logging
 import math
 import pathlib
 import time
+from collections import OrderedDict
 from contextlib import contextmanager
-from typing import Optional
+from typing import Optional, Union
 
 from PySide6.QtCore import QCoreApplication, QEvent, QObject, QRunnable, QThreadPool, Qt, QTimer, Signal
 from PySide6.QtGui import QUndoCommand, QUndoStack
 
 from solver.model import Alternative, Project, Segment
 
+log = logging.getLogger(__name__)
+
 #: debounce interval of a burst of edits [ms]
 SOLVE_DEBOUNCE_MS = 30
 #: a solve that took less than this last time runs on the GUI thread, ahead of the repaint [s]
 SYNC_SOLVE_LIMIT_S = 0.035
+#: outcomes kept in the content-keyed cache (a 1,000-cell result is a few hundred kB)
+RESULT_CACHE_SIZE = 48
 _SOLVE_EVENT = QEvent.Type(QEvent.registerEventType())
+# worker-pool priorities: the alternative on screen goes ahead of background solves
+_PRIORITY_CURRENT = 1
+_PRIORITY_BACKGROUND = 0
 
 
 def default_project() -> Project:
@@ -43,39 +70,85 @@ def default_project() -> Project:
     )
 
 
+def alternative_key(alternative: Alternative) -> str:
+    """The content key of ``alternative``: a hash of its JSON dump, i.e. of everything ``solve`` reads.
+
+    Floats are dumped exactly (shortest round-trip form), so two alternatives share a key only when
+    the solver would see the same inputs.
+    """
+    return hashlib.blake2b(alternative.model_dump_json().encode("utf-8"), digest_size=16).hexdigest()
+
+
+def run_solver(alternative: Alternative):
+    """``(result, error, cpu_seconds)`` of one solve; never raises. The one call of the solver in the app.
+
+    ``error`` is "" when solved. A :class:`solver.errors.CalorunError` (bad input, a state the solver
+    cannot handle) gives its own plain message; any other exception is a bug: it is logged with its
+    traceback and reported as "internal error (…)", so one broken alternative cannot take the app down.
+    """
+    from solver import solve
+    from solver.errors import CalorunError
+
+    cpu0 = time.thread_time()
+    try:
+        result = solve(alternative)
+    except CalorunError as exc:
+        return None, str(exc), time.thread_time() - cpu0
+    except Exception as exc:  # noqa: BLE001 - the boundary between the app and a solver bug: log it, keep running
+        log.exception("internal error while solving alternative %r", getattr(alternative, "name", "?"))
+        return None, f"internal error ({type(exc).__name__}: {exc})", time.thread_time() - cpu0
+    return result, "", time.thread_time() - cpu0
+
+
+class SolveFailure(Exception):
+    """An alternative that did not solve; ``str()`` is the runner's message (the report prints it)."""
+
+
+class _Ticket:
+    """One solve: what to solve, why, and (once done) its outcome. Passed whole through the queued signal."""
+
+    __slots__ = ("key", "alternative", "generation", "cancelled", "started", "skipped", "done", "handled",
+                 "result", "error", "cpu")
+
+    def __init__(self, key: str, alternative: Alternative, generation: Optional[int]):
+        self.key = key
+        self.alternative = alternative
+        # the model generation of the current alternative this solve is for; None for a background solve
+        self.generation = generation
+        self.cancelled = False  # set on the GUI thread when the alternative changed before the job ran
+        self.started = False
+        self.skipped = False
+        self.done = False  # set by the worker when the outcome is in
+        self.handled = False  # taken in on the GUI thread (by the queued signal or by _drain)
+        self.result = None
+        self.error = ""
+        self.cpu = math.nan
+
+
 class _SolveSink(QObject):
     """Lives on the GUI thread; the worker emits into it and Qt queues the call across threads."""
 
-    # one payload (generation, Result | None, error | None): PySide6 mis-counts references of a
-    # bare None passed through an `object` argument of a queued signal, so never send one
+    # the payload is always a _Ticket: PySide6 mis-counts references of a bare None passed through an
+    # `object` argument of a queued signal, so never send one
     finished = Signal(object)
-    cpu_seconds = math.nan  # CPU time of the last solve (not inflated by waiting for the GIL)
 
 
-class _SolveTask(QRunnable):
-    def __init__(self, generation: int, alternative: Alternative, sink: _SolveSink):
+class _SolveJob(QRunnable):
+    def __init__(self, ticket: _Ticket, sink: _SolveSink):
         super().__init__()
         self.setAutoDelete(True)
-        self._generation = generation
-        self._alternative = alternative
+        self._ticket = ticket
         self._sink = sink
 
-    def run(self) -> None:  # worker thread
-        try:
-            from solver import solve
-            from solver.errors import CalorunError
-
-            cpu0 = time.thread_time()
-            try:
-                result = solve(self._alternative)
-            except CalorunError as exc:
-                self._sink.cpu_seconds = time.thread_time() - cpu0
-                self._sink.finished.emit((self._generation, None, str(exc)))
-                return
-            self._sink.cpu_seconds = time.thread_time() - cpu0
-            self._sink.finished.emit((self._generation, result, None))
-        except Exception as exc:  # a bug or a missing module: report it, keep the app running
-            self._sink.finished.emit((self._generation, None, f"internal error ({type(exc).__name__}): {exc}"))
+    def run(self) -> None:  # worker thread (or the GUI thread for an inline solve)
+        t = self._ticket
+        t.started = True
+        if t.cancelled:
+            t.skipped = True  # edited before its turn came: nothing to solve
+        else:
+            t.result, t.error, t.cpu = run_solver(t.alternative)
+        t.done = True
+        self._sink.finished.emit(t)
 
 
 class Document(QObject):
@@ -85,14 +158,16 @@ class Document(QObject):
     project_changed = Signal()
     current_alternative_changed = Signal(int)
     selection_changed = Signal(int)
-    result_ready = Signal(object)
-    solve_failed = Signal(str)
+    result_ready = Signal(object)  # the current alternative solved
+    solve_failed = Signal(str)  # the current alternative did not solve: the message
     units_changed = Signal(str)
     position_marked = Signal(float)
     # extras beyond the shared contract
     modified_changed = Signal(bool)
     path_changed = Signal(str)  # "" when the project has no file yet
     solve_started = Signal()
+    # any alternative's outcome from the runner: (name, Result or None, error message or "")
+    alternative_solved = Signal(str, object, str)
 
     def __init__(self, project: Optional[Project] = None, unit_system: str = "SI", parent: Optional[QObject] = None):
         super().__init__(parent)
@@ -108,13 +183,19 @@ class Document(QObject):
         self._unsaved_without_history = False  # e.g. a recovered project: modified but nothing to undo
 
         self._model_generation = 0
-        self._running_generation: Optional[int] = None
+        self._running_generation: Optional[int] = None  # generation of the current-alternative solve under way
+        self._published_generation: Optional[int] = None  # generation whose outcome the views have
         self._solve_wanted = False
         self._last_request = 0.0
         self.last_solve_seconds: float = math.nan
         self.last_solve_cpu_seconds: float = math.nan
         self._last_solved_fluid = None  # a new fluid may build property tables: solve it on the worker
         self._solve_started_at = 0.0
+
+        # the runner: content-keyed outcomes, the jobs handed to the worker and not yet back
+        self._cache: OrderedDict[str, tuple] = OrderedDict()  # key -> (Result | None, error)
+        self._in_flight: dict[str, _Ticket] = {}
+        self._jobs_out = 0  # jobs started on the pool and not yet returned
 
         self._pool = QThreadPool(self)
         self._pool.setMaxThreadCount(1)  # one solve at a time; newer requests coalesce
@@ -165,12 +246,13 @@ class Document(QObject):
         self.result = None
         self.result_is_stale = False
         self.last_solve_cpu_seconds = math.nan  # a new project may solve slower: first solve on the worker
+        self._model_generation += 1
+        self._cancel_stale_jobs()
         self.project_replaced.emit()
         self.path_changed.emit(str(self.path) if self.path else "")
         self.current_alternative_changed.emit(0)
         self.selection_changed.emit(0)
         self.modified_changed.emit(self.modified)
-        self._model_generation += 1
         self.request_solve()
 
     # ------------------------------------------------------------------ editing
@@ -216,9 +298,12 @@ class Document(QObject):
             self.selection_changed.emit(self.selected_segment)
 
     def _changed(self, alt_index: Optional[int]) -> None:
-        self.project_changed.emit()
         if alt_index is None or alt_index == self.current_index:
             self._model_generation += 1
+        if self._in_flight:
+            self._cancel_stale_jobs()
+        self.project_changed.emit()
+        if alt_index is None or alt_index == self.current_index:
             self.request_solve()
 
     # ------------------------------------------------------------------ selection, units, marks
@@ -254,7 +339,7 @@ class Document(QObject):
     def mark_position(self, x_m: float) -> None:
         self.position_marked.emit(float(x_m))
 
-    # ------------------------------------------------------------------ solving
+    # ------------------------------------------------------------------ solving: the current alternative
 
     def request_solve(self) -> None:
         """Ask for a solve of the current alternative.
@@ -263,11 +348,14 @@ class Document(QObject):
         solve at once (edit-to-replot stays short); requests within ``SOLVE_DEBOUNCE_MS`` of the
         previous one restart the timer, so a burst gives one solve. A solve whose last run took
         less than ``SYNC_SOLVE_LIMIT_S`` of CPU with the same fluid runs on the GUI thread ahead
-        of the repaint; anything else (first solve, new fluid, slow line) runs on the worker.
+        of the repaint (only while the worker is idle: one solve at a time); anything else (first
+        solve, new fluid, slow line) runs on the worker. A result already held is published
+        without solving.
         """
         now = time.perf_counter()
         quiet = (now - self._last_request) * 1000.0 > SOLVE_DEBOUNCE_MS and not self._timer.isActive()
         self._last_request = now
+        self._published_generation = None  # asked for: publish even if nothing changed
         if quiet:
             if (self._running_generation is None and self.last_solve_cpu_seconds < SYNC_SOLVE_LIMIT_S
                     and self._last_solved_fluid == self.current_alternative.fluid):
@@ -282,59 +370,122 @@ class Document(QObject):
 
     def event(self, e) -> bool:  # noqa: D401
         if e.type() == _SOLVE_EVENT:
-            if self._running_generation is None and not self._timer.isActive():
+            if self._published_generation == self._model_generation or self._timer.isActive():
+                return True  # already shown (e.g. solve_now ran first), or a burst is still coming
+            if self._running_generation is None and self._jobs_out == 0:
                 self._solve_inline()
-            elif not self._timer.isActive():
-                self._solve_wanted = True
+            else:
+                self._start_solve()  # the worker is busy: queue it there, ahead of background solves
             return True
         return super().event(e)
 
+    def _serve_current_from_cache(self, key: str) -> bool:
+        """Publish the current alternative's held outcome, if any; True when it was."""
+        held = self._cache_get(key)
+        if held is None:
+            return False
+        self._timer.stop()
+        self._solve_wanted = False
+        self._publish(self._model_generation, *held)
+        return True
+
     def _solve_inline(self) -> None:
-        gen = self._model_generation
-        sink = _SolveSink()
-        box: dict = {}
-        sink.finished.connect(lambda payload: box.update(payload=payload))
+        alt = self.current_alternative
+        key = alternative_key(alt)
+        if self._serve_current_from_cache(key):
+            return
+        ticket = _Ticket(key, alt, self._model_generation)
         self._solve_started_at = time.perf_counter()
-        self._last_solved_fluid = self.current_alternative.fluid
+        self._last_solved_fluid = alt.fluid
         self.solve_started.emit()
-        _SolveTask(gen, self.current_alternative, sink).run()
-        self._sink.cpu_seconds = sink.cpu_seconds
-        self._on_solved(box["payload"])
+        sink = _SolveSink()
+        box: list = []
+        sink.finished.connect(box.append)
+        self._jobs_out += 1
+        self._in_flight[ticket.key] = ticket
+        self._running_generation = ticket.generation
+        _SolveJob(ticket, sink).run()
+        self._on_solved(box[0])
 
     def _start_solve(self) -> None:
+        if self._published_generation == self._model_generation:
+            return  # what was asked for is on screen already (e.g. the debounce timer fired after the result)
+        alt = self.current_alternative
+        key = alternative_key(alt)
+        if self._serve_current_from_cache(key):
+            return
         if self._running_generation is not None:
             self._solve_wanted = True  # solve the newest model as soon as the running one returns
             return
         self._solve_wanted = False
         self._running_generation = self._model_generation
         self._solve_started_at = time.perf_counter()
+        self._last_solved_fluid = alt.fluid
         self.solve_started.emit()
-        self._last_solved_fluid = self.current_alternative.fluid
-        self._pool.start(_SolveTask(self._model_generation, self.current_alternative, self._sink))
-
-    def _on_solved(self, payload) -> None:  # GUI thread
-        generation, result, error = payload
-        self._running_generation = None
-        self.last_solve_seconds = time.perf_counter() - self._solve_started_at
-        self.last_solve_cpu_seconds = self._sink.cpu_seconds
-        self._solve_wanted = False
-        if generation != self._model_generation:
-            self._start_solve()  # the model moved on while this one ran: drop it, solve the newest
+        running = self._in_flight.get(key)
+        if running is not None and not running.cancelled:
+            running.generation = self._model_generation  # already on its way as a background solve: adopt it
             return
-        if error is not None:
-            self.last_error = str(error)
+        self._submit(_Ticket(key, alt, self._model_generation), _PRIORITY_CURRENT)
+
+    def _submit(self, ticket: _Ticket, priority: int) -> None:
+        self._in_flight[ticket.key] = ticket
+        self._jobs_out += 1
+        self._pool.start(_SolveJob(ticket, self._sink), priority)
+
+    def _on_solved(self, ticket: _Ticket) -> None:  # GUI thread
+        if ticket.handled:
+            return  # already taken in by _drain
+        ticket.handled = True
+        self._jobs_out -= 1
+        if self._in_flight.get(ticket.key) is ticket:
+            del self._in_flight[ticket.key]
+        if not ticket.skipped:
+            # content-keyed, so right for its content even if the model has moved on (an undo may want
+            # it back); announced only to alternatives that still have this content
+            self._cache_put(ticket.key, (ticket.result, ticket.error))
+            self._announce(ticket.key, ticket.result, ticket.error)
+        if ticket.generation is None or ticket.generation != self._running_generation:
+            return  # a background solve
+        self._running_generation = None
+        if ticket.skipped:
+            return  # cancelled by shutdown
+        self.last_solve_seconds = time.perf_counter() - self._solve_started_at
+        self.last_solve_cpu_seconds = ticket.cpu
+        if self._solve_wanted or ticket.generation != self._model_generation:
+            self._solve_wanted = False
+            if self._published_generation != self._model_generation:
+                self._start_solve()  # the model moved on while this one ran: drop it, solve the newest
+            return
+        self._publish(ticket.generation, ticket.result, ticket.error)
+
+    def _publish(self, generation: int, result, error: str) -> None:
+        self._published_generation = generation
+        if generation == self._model_generation:
+            self._timer.stop()  # a request still waiting for this model is answered
+        if error:
+            self.last_error = error
             self.result_is_stale = self.result is not None
-            self.solve_failed.emit(self.last_error)
+            self.solve_failed.emit(error)
             return
         self.last_error = None
         self.result_is_stale = False
         self.result = result
         self.result_ready.emit(result)
 
+    def _drain(self) -> None:
+        """Wait for the worker and take in what it finished, without waiting for the event loop."""
+        self._pool.waitForDone()
+        for ticket in list(self._in_flight.values()):
+            if ticket.done:
+                self._on_solved(ticket)
+
     def solve_now(self):
         """Solve the current alternative on this thread and publish the result (scripts, start-up)."""
         self._timer.stop()
-        self._pool.waitForDone()
+        self._drain()
+        if self._published_generation == self._model_generation and self.last_error is None and self.result is not None:
+            return self.result
         self._running_generation = None
         self._solve_wanted = False
         self._solve_inline()
@@ -342,9 +493,103 @@ class Document(QObject):
 
     @property
     def solving(self) -> bool:
+        """Whether a solve of the current alternative is due or under way."""
         return self._running_generation is not None or self._timer.isActive()
 
+    # ------------------------------------------------------------------ solving: any alternative
+
+    def _alternative(self, which: Union[int, str]) -> Alternative:
+        alts = self.project.alternatives
+        if isinstance(which, int):
+            if not 0 <= which < len(alts):
+                raise IndexError(f"alternative index {which} out of range 0..{len(alts) - 1}")
+            return alts[which]
+        for a in alts:
+            if a.name == which:
+                return a
+        raise KeyError(f"no alternative named {which!r}; the project has {', '.join(repr(a.name) for a in alts)}")
+
+    def outcome_for(self, which: Union[int, str]) -> Optional[tuple]:
+        """``(Result or None, error or "")`` held for this alternative (index or name), or None if not solved yet."""
+        return self._cache_get(alternative_key(self._alternative(which)))
+
+    def result_for(self, which: Union[int, str]):
+        """The held Result of this alternative (index or name), or None (not solved yet, or failed)."""
+        held = self.outcome_for(which)
+        return held[0] if held is not None else None
+
+    def request_results(self, names=None) -> list[str]:
+        """Solve these alternatives (all when None) on the worker unless their results are held.
+
+        Returns the names still to come; each arrives as :attr:`alternative_solved`. Those held
+        already are read with :meth:`outcome_for` / :meth:`result_for` (no signal, no solve).
+        """
+        alts = [self._alternative(n) for n in names] if names is not None else list(self.project.alternatives)
+        pending = []
+        for alt in alts:
+            key = alternative_key(alt)
+            if self._cache_get(key) is not None:
+                continue
+            pending.append(alt.name)
+            running = self._in_flight.get(key)
+            if running is None or running.cancelled:
+                self._submit(_Ticket(key, alt, None), _PRIORITY_BACKGROUND)
+        return pending
+
+    def cancel_results(self) -> None:
+        """Cancel background solves not started yet (e.g. the user cancelled an export)."""
+        for t in self._in_flight.values():
+            if t.generation is None and not t.started:
+                t.cancelled = True
+
+    def results_now(self, names=None) -> dict[str, tuple]:
+        """Solve on this thread what is not held and return ``{name: (Result or None, error)}`` (scripts, tests)."""
+        alts = [self._alternative(n) for n in names] if names is not None else list(self.project.alternatives)
+        self._drain()
+        out = {}
+        for alt in alts:
+            key = alternative_key(alt)
+            held = self._cache_get(key)
+            if held is None:
+                result, error, _cpu = run_solver(alt)
+                held = (result, error)
+                self._cache_put(key, held)
+                self._announce(key, result, error)
+            out[alt.name] = held
+        return out
+
+    @property
+    def background_solving(self) -> bool:
+        """Whether background solves (:meth:`request_results`) are queued or under way."""
+        return any(t.generation is None for t in self._in_flight.values())
+
+    def _announce(self, key: str, result, error: str) -> None:
+        for alt in self.project.alternatives:
+            if alternative_key(alt) == key:
+                self.alternative_solved.emit(alt.name, result, error)
+
+    def _cancel_stale_jobs(self) -> None:
+        """Cancel queued background solves whose alternative no longer exists as it was."""
+        live = {alternative_key(a) for a in self.project.alternatives}
+        for t in self._in_flight.values():
+            if t.generation is None and t.key not in live:
+                t.cancelled = True
+
+    def _cache_get(self, key: str) -> Optional[tuple]:
+        held = self._cache.get(key)
+        if held is not None:
+            self._cache.move_to_end(key)
+        return held
+
+    def _cache_put(self, key: str, outcome: tuple) -> None:
+        self._cache[key] = outcome
+        self._cache.move_to_end(key)
+        while len(self._cache) > RESULT_CACHE_SIZE:
+            self._cache.popitem(last=False)
+
     def shutdown(self, timeout_ms: int = 5000) -> None:
-        """Stop the timer and wait for a running solve (call before the application quits)."""
+        """Stop the timer, cancel background solves and wait for a running solve (call before the application quits)."""
         self._timer.stop()
+        for t in self._in_flight.values():
+            t.cancelled = True
         self._pool.waitForDone(timeout_ms)

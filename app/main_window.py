@@ -1,10 +1,11 @@
 """The Calorun main window: Line Strip across the top, Profiles in the centre, Feed and Segment
 Card on the left, Key Figures and Checks on the right, a slim cautions banner.
 
-Also here: New/Open/Save with atomic saves and error dialogs, recent files, autosave to a
-recovery file and the offer to recover after a crash, the SI / US customary switch
-(remembered between runs), and :func:`run`, the entry point of ``calorun`` (including the
-offscreen ``--screenshot`` mode).
+The window assembles: it builds the panels and docks, wires the menus and dialogs, and hands
+every job to the module that owns it: the Document (the project, undo, the solve runner),
+:mod:`app.recovery` (autosave file), :mod:`app.settings` (remembered units and recent files),
+:mod:`app.report` (the PDF). :func:`run` is the entry point of ``calorun`` (including the offscreen
+``--screenshot`` mode, which leaves the remembered settings alone).
 
 Dialogs go through small hooks (``error_dialog``, ``ask_recover``, ``ask_save_changes``,
 ``choose_open_path``, ``choose_save_path``) so tests can answer them; when the window is not
@@ -14,8 +15,6 @@ interactive (offscreen platform) the hooks never block: they record the message 
 
 from __future__ import annotations
 
-import datetime as _dt
-import json
 import os
 import sys
 import time
@@ -24,84 +23,83 @@ from typing import Optional
 
 os.environ.setdefault("PYQTGRAPH_QT_LIB", "PySide6")
 
-from PySide6.QtCore import QStandardPaths, Qt, QTimer  # noqa: E402
+from PySide6.QtCore import QEventLoop, Qt, QTimer  # noqa: E402
 from PySide6.QtGui import QAction, QActionGroup, QGuiApplication, QKeySequence  # noqa: E402
 from PySide6.QtWidgets import (  # noqa: E402
-    QTabWidget,
     QApplication,
     QComboBox,
     QDialog,
     QDialogButtonBox,
     QDockWidget,
     QFileDialog,
+    QFrame,
     QLabel,
     QMainWindow,
     QMessageBox,
+    QProgressDialog,
+    QScrollArea,
     QSizePolicy,
+    QTabWidget,
     QTextBrowser,
     QToolBar,
     QVBoxLayout,
     QWidget,
 )
 
-from app import commands, settings  # noqa: E402
-from app.document import Document, default_project  # noqa: E402
+from app import recovery, settings  # noqa: E402
+from app.document import Document, SolveFailure, default_project  # noqa: E402
+from solver.results import CAUTIONS, CAUTIONS_BANNER  # noqa: E402
 
 DEMO_PROJECT = Path(__file__).with_name("demo_project.json")
+
+
+class _WrappingLabel(QLabel):
+    """A word-wrapped label that takes the height its text needs at its width.
+
+    A tool bar does not ask its widgets for height-for-width, so a plain wrapped label there is
+    sized for its narrowest width (several lines): this one sets its height after each resize.
+    """
+
+    def resizeEvent(self, event) -> None:  # noqa: N802 (Qt)
+        super().resizeEvent(event)
+        needed = self.heightForWidth(self.width())
+        if needed > 0 and needed != self.height():
+            self.setFixedHeight(needed)
+
 PROJECT_FILTER = "Calorun project (*.json);;All files (*)"
 AUTOSAVE_INTERVAL_MS = 60_000
 AUTOSAVE_AFTER_EDIT_MS = 3_000
-RECOVERY_FILE = "recovery.json"
-
-CAUTIONS = [
-    "Hot surfaces burn: protect people from heated lines and their surfaces.",
-    "A blocked-in line full of heated liquid overpressures as the liquid expands: provide relief.",
-    "Lines can freeze or boil when the heating, the flow or the weather differ from the design case.",
-    "Heat tracing in hazardous areas has temperature-class limits on its sheath and pipe temperatures.",
-    "Results are engineering estimates from published correlations, not guarantees.",
-    "Defer to local codes, the applicable piping and electrical standards, and licensed engineering review.",
-]
-CAUTIONS_BANNER = (
-    "Engineering estimates only — hot surfaces burn · blocked-in heated liquid overpressures · "
-    "lines can freeze or boil · tracing in hazardous areas has temperature-class limits · "
-    "defer to local codes, the applicable standards and licensed engineering review."
-)
-
-
-def recovery_dir() -> Path:
-    folder = os.environ.get("CALORUN_RECOVERY_DIR")
-    if folder:
-        return Path(folder)
-    base = QStandardPaths.writableLocation(QStandardPaths.AppDataLocation)
-    if not base:
-        base = str(Path.home() / ".calorun")
-    return Path(base) / "recovery"
-
-
-def recovery_path() -> Path:
-    return recovery_dir() / RECOVERY_FILE
 
 
 def load_demo_project():
     """The bundled demo project, or a small built-in project if the file is missing or invalid."""
+    from solver.errors import ProjectFileError
     from solver.project_io import load_project
 
     try:
         return load_project(DEMO_PROJECT)
-    except Exception:
+    except ProjectFileError:
         return default_project()
 
 
 class MainWindow(QMainWindow):
-    def __init__(self, doc: Optional[Document] = None, interactive: Optional[bool] = None):
+    def __init__(self, doc: Optional[Document] = None, interactive: Optional[bool] = None,
+                 remember: bool = True, unit_system: Optional[str] = None):
+        """``remember=False`` (``--screenshot``): a window that leaves nothing for the next run (no
+        settings, no Recent files entry, no autosave file). ``unit_system`` overrides the remembered
+        unit system for this window."""
         super().__init__()
         if interactive is None:
             interactive = QGuiApplication.platformName() not in ("offscreen", "minimal")
         self.interactive = interactive
+        self.remember = remember
         self.messages: list[tuple[str, str]] = []  # (title, text) of every dialog shown or suppressed
-        self.doc = doc if doc is not None else Document(unit_system=settings.unit_system(), parent=self)
+        if doc is None:
+            doc = Document(unit_system=unit_system or settings.unit_system(), parent=self)
+        self.doc = doc
         self.first_result_time: Optional[float] = None
-        self.recovery_file = recovery_path()  # fixed for this window's life
+        self.recovery_file = recovery.recovery_path()  # fixed for this window's life
+        self._docks_before_comparison: Optional[list] = None
         self._showing_demo = False
         self.setObjectName("CalorunMainWindow")
         self.setDockOptions(QMainWindow.AnimatedDocks | QMainWindow.AllowNestedDocks | QMainWindow.AllowTabbedDocks)
@@ -124,13 +122,12 @@ class MainWindow(QMainWindow):
         d.solve_failed.connect(self._on_solve_failed)
         d.solve_started.connect(self._on_solve_started)
         d.units_changed.connect(self._on_units_changed)
-        d.selection_changed.connect(self._update_segment_actions)
-        d.undo_stack.indexChanged.connect(self._update_segment_actions)
 
         self._autosave_timer = QTimer(self)
         self._autosave_timer.setInterval(AUTOSAVE_INTERVAL_MS)
         self._autosave_timer.timeout.connect(self.write_recovery)
-        self._autosave_timer.start()
+        if self.remember:
+            self._autosave_timer.start()
         self._edit_autosave = QTimer(self)
         self._edit_autosave.setSingleShot(True)
         self._edit_autosave.setInterval(AUTOSAVE_AFTER_EDIT_MS)
@@ -139,7 +136,6 @@ class MainWindow(QMainWindow):
         self.resize(1600, 1000)
         self._update_title()
         self._refresh_alternatives()
-        self._update_segment_actions()
 
     # ------------------------------------------------------------------ dialog hooks (replaceable in tests)
 
@@ -224,7 +220,7 @@ class MainWindow(QMainWindow):
 
         self.line_strip_dock = self._dock("Line Strip", self.line_strip, Qt.TopDockWidgetArea)
         self.line_strip_dock.setTitleBarWidget(QWidget())  # the strip's own toolbar carries its title
-        self.feed_dock = self._dock("Feed", self.feed_panel, Qt.LeftDockWidgetArea)
+        self.feed_dock = self._dock("Feed", self._scrolling(self.feed_panel), Qt.LeftDockWidgetArea)
         self.card_dock = self._dock("Segment Card", self.segment_card, Qt.LeftDockWidgetArea)
         self.key_dock = self._dock("Key Figures", self.key_figures, Qt.RightDockWidgetArea)
         self.alternatives_dock = self._dock("Alternatives", self.alternatives_panel, Qt.RightDockWidgetArea)
@@ -240,6 +236,38 @@ class MainWindow(QMainWindow):
         self.resizeDocks([self.feed_dock, self.card_dock], [330, 520], Qt.Vertical)
         self.resizeDocks([self.checks_dock], [165], Qt.Vertical)
         self.resizeDocks([self.alternatives_dock, self.key_dock], [190, 660], Qt.Vertical)
+        self.centre_tabs.currentChanged.connect(self._on_centre_tab)
+
+    def _on_centre_tab(self, index: int) -> None:
+        """The Side-by-Side takes the whole window; the editing panels come back with the Profiles.
+
+        Six alternatives need the width: with the side panels open the centre is about 750 px wide
+        at 1600 px (450 px at 1280), too narrow for six columns of figures. The Side-by-Side has
+        its own Key Figures and Checks, and any panel can still be opened from the View menu.
+        """
+        comparing = self.centre_tabs.widget(index) is self.side_by_side
+        docks = [self.line_strip_dock, self.feed_dock, self.card_dock, self.key_dock, self.alternatives_dock,
+                 self.checks_dock]
+        if comparing and self._docks_before_comparison is None:
+            self._docks_before_comparison = [d for d in docks if not d.isHidden()]
+            for d in self._docks_before_comparison:
+                d.hide()
+            self.statusBar().showMessage("Side-by-Side uses the whole window; the editing panels come back "
+                                         "with the Profiles tab.", 6000)
+        elif not comparing and self._docks_before_comparison is not None:
+            for d in self._docks_before_comparison:
+                d.show()
+            self._docks_before_comparison = None
+
+    @staticmethod
+    def _scrolling(widget: QWidget) -> QScrollArea:
+        """A panel that scrolls instead of forcing the window taller than a 1280×800 screen."""
+        area = QScrollArea()
+        area.setWidget(widget)
+        area.setWidgetResizable(True)
+        area.setFrameShape(QFrame.NoFrame)
+        area.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
+        return area
 
     def _dock(self, title: str, widget: QWidget, area) -> QDockWidget:
         dock = QDockWidget(title, self)
@@ -308,10 +336,11 @@ class MainWindow(QMainWindow):
         cbar.setObjectName("BannerBar")
         cbar.setMovable(False)
         cbar.setFloatable(False)
-        self.banner = QLabel(f"⚠&nbsp; {CAUTIONS_BANNER} &nbsp;<a href='#cautions'>More…</a>")
+        self.banner = _WrappingLabel(f"⚠&nbsp; {CAUTIONS_BANNER} &nbsp;<a href='#cautions'>More…</a>")
         self.banner.setTextFormat(Qt.RichText)
         self.banner.setObjectName("CautionsBanner")
-        self.banner.setWordWrap(False)
+        self.banner.setWordWrap(True)  # two lines on a narrow screen rather than a cut-off caution
+        self.banner.setFixedHeight(self.banner.fontMetrics().lineSpacing() + 4)  # one line until laid out
         self.banner.setSizePolicy(QSizePolicy.Expanding, QSizePolicy.Preferred)
         self.banner.setMinimumWidth(200)
         self.banner.setToolTip("\n".join(CAUTIONS))
@@ -345,11 +374,9 @@ class MainWindow(QMainWindow):
         self.undo_action.setShortcut(QKeySequence.Undo)
         self.redo_action = self.doc.undo_stack.createRedoAction(self, "&Redo")
         self.redo_action.setShortcut(QKeySequence.Redo)
-        self.insert_segment_action = act("&Insert segment after selected", self.insert_segment)
-        self.duplicate_segment_action = act("D&uplicate segment", self.duplicate_segment)
-        self.delete_segment_action = act("&Delete segment", self.delete_segment)
-        self.move_up_action = act("Move segment up-stream", lambda: self.move_segment(-1))
-        self.move_down_action = act("Move segment down-stream", lambda: self.move_segment(1))
+        # segment edits: the Line Strip's shared actions, one QAction per edit (app.segment_actions)
+        self.segment_actions = self.line_strip.segment_actions
+        self.segment_actions.message.connect(lambda text: self.statusBar().showMessage(text, 8000))
 
         self.units_group = QActionGroup(self)
         self.units_group.setExclusive(True)
@@ -382,9 +409,7 @@ class MainWindow(QMainWindow):
         edit_menu = mb.addMenu("&Edit")
         edit_menu.addActions([self.undo_action, self.redo_action])
         edit_menu.addSeparator()
-        edit_menu.addActions([self.insert_segment_action, self.duplicate_segment_action, self.delete_segment_action])
-        edit_menu.addSeparator()
-        edit_menu.addActions([self.move_up_action, self.move_down_action])
+        self.segment_actions.fill_menu(edit_menu)
 
         view_menu = mb.addMenu("&View")
         units_menu = view_menu.addMenu("&Units")
@@ -428,15 +453,6 @@ class MainWindow(QMainWindow):
         self.alt_combo.setCurrentIndex(self.doc.current_index)
         self.alt_combo.blockSignals(False)
 
-    def _update_segment_actions(self, *_args) -> None:
-        n = len(self.doc.current_alternative.segments)
-        sel = self.doc.selected_segment
-        has = 0 <= sel < n
-        self.duplicate_segment_action.setEnabled(has)
-        self.delete_segment_action.setEnabled(has and n > 1)
-        self.move_up_action.setEnabled(has and sel > 0)
-        self.move_down_action.setEnabled(has and sel < n - 1)
-
     def _on_solve_started(self) -> None:
         self.solve_status.setText("Solving…")
 
@@ -466,48 +482,23 @@ class MainWindow(QMainWindow):
     # ------------------------------------------------------------------ segment actions (Edit menu)
 
     def insert_segment(self) -> None:
-        d = self.doc
-        alt = d.current_alternative
-        sel = d.selected_segment if d.selected_segment >= 0 else len(alt.segments) - 1
-        base = alt.segments[sel]
-        names = {s.name for s in alt.segments}
-        n = len(alt.segments) + 1
-        while f"Segment {n}" in names:
-            n += 1
-        # continue the same pipe and wall model; a fresh length, no fittings, level
-        new = base.model_copy(update={"name": f"Segment {n}", "length_m": 10.0, "elevation_change_m": 0.0,
-                                      "fittings": []})
-        d.push(commands.InsertSegment(d, d.current_index, sel + 1, new))
+        self.segment_actions.insert_after_selected()
 
     def duplicate_segment(self) -> None:
-        d = self.doc
-        if d.selected_segment >= 0:
-            d.push(commands.DuplicateSegment(d, d.current_index, d.selected_segment))
+        self.segment_actions.duplicate_selected()
 
     def delete_segment(self) -> None:
-        d = self.doc
-        if d.selected_segment < 0:
-            return
-        try:
-            d.push(commands.RemoveSegment(d, d.current_index, d.selected_segment))
-        except ValueError as exc:
-            self.statusBar().showMessage(str(exc), 6000)
+        self.segment_actions.delete_selected()
 
     def move_segment(self, step: int) -> None:
-        d = self.doc
-        i = d.selected_segment
-        j = i + step
-        if 0 <= i < len(d.current_alternative.segments) and 0 <= j < len(d.current_alternative.segments):
-            d.push(commands.MoveSegment(d, d.current_index, i, j))
+        self.segment_actions.move_selected(step)
 
     # ------------------------------------------------------------------ units
 
     def set_unit_system(self, system: str) -> None:
         self.doc.set_unit_system(system)
-        try:
+        if self.remember:
             settings.set_unit_system(system)
-        except Exception:  # settings are a convenience; never fail an edit over them
-            pass
 
     # ------------------------------------------------------------------ files
 
@@ -590,9 +581,11 @@ class MainWindow(QMainWindow):
         return True
 
     def _add_recent(self, p: Path) -> None:
+        if not self.remember:
+            return
         try:
             settings.add_recent_file(p)
-        except Exception:
+        except OSError:  # the path cannot be resolved (e.g. a vanished network drive): not worth a dialog
             pass
 
     def _fill_recent_menu(self) -> None:
@@ -608,19 +601,80 @@ class MainWindow(QMainWindow):
             self.recent_menu.addAction("(none)").setEnabled(False)
 
     def export_pdf(self, path=None) -> bool:
+        """Write the summary report from the results the Document's runner holds.
+
+        Only alternatives not solved yet are solved, on the worker thread, while a progress dialog
+        counts them (Cancel stops before anything is written); the dialog stays up while the PDF is
+        written.
+        """
         path = path or self.choose_save_path("Export PDF report", "PDF (*.pdf)",
                                              (self.doc.project.name or "report") + ".pdf")
         if not path:
             return False
+        progress = QProgressDialog("Collecting the results for the report…", "Cancel", 0, 1, self)
+        progress.setWindowTitle("Export PDF report")
+        progress.setWindowModality(Qt.WindowModal)
+        progress.setAutoReset(False)
+        progress.setAutoClose(False)
+        progress.setMinimumDuration(0)
+        self.report_progress = progress  # tests reach the Cancel button through it
         try:
+            held = self._results_for_report(progress)
+            if held is None:
+                self.statusBar().showMessage("Report not written: cancelled.", 5000)
+                return False
+            progress.setLabelText("Writing the PDF…")
+            progress.setCancelButton(None)  # the PDF is written in one go
+            progress.setRange(0, 0)
+            QApplication.processEvents()
             from app.report import write_report
 
-            write_report(self.doc.project, path, unit_system=self.doc.unit_system)
-        except Exception as exc:
-            self.error_dialog("Report not written", f"Could not write {path}: {exc}")
+            write_report(self.doc.project, path, unit_system=self.doc.unit_system, results=held)
+        except OSError as exc:
+            self.error_dialog("Report not written", f"Could not write {path}: {exc.strerror or exc}")
             return False
+        finally:
+            progress.close()
+            self.report_progress = None
         self.statusBar().showMessage(f"Report written to {path}", 5000)
         return True
+
+    def _results_for_report(self, progress: QProgressDialog) -> Optional[dict]:
+        """``{name: Result or SolveFailure}`` of every alternative, solving the missing ones; None if cancelled."""
+        doc = self.doc
+        names = [a.name for a in doc.project.alternatives]
+        total = len(names)
+        pending = set(doc.request_results())
+        progress.setRange(0, total)
+        progress.setValue(total - len(pending))
+        if pending:
+            loop = QEventLoop()
+
+            def arrived(name: str, _result, _error: str) -> None:
+                pending.discard(name)
+                progress.setValue(total - len(pending))
+                progress.setLabelText(f"Solving alternatives for the report: {total - len(pending)} of {total} done…")
+                if not pending:
+                    loop.quit()
+
+            progress.setLabelText(f"Solving alternatives for the report: {total - len(pending)} of {total} done…")
+            doc.alternative_solved.connect(arrived)
+            progress.canceled.connect(loop.quit)
+            try:
+                loop.exec()
+            finally:
+                doc.alternative_solved.disconnect(arrived)
+                progress.canceled.disconnect(loop.quit)
+            if pending:
+                doc.cancel_results()
+                return None
+        held = {}
+        for name in names:
+            outcome = doc.outcome_for(name)
+            if outcome is not None:  # (one edited meanwhile is left to the report to solve)
+                result, error = outcome
+                held[name] = result if result is not None else SolveFailure(error)
+        return held
 
     def export_csv(self, path=None) -> bool:
         if self.doc.result is None:
@@ -634,7 +688,7 @@ class MainWindow(QMainWindow):
             from app.export import write_profiles_csv
 
             write_profiles_csv(self.doc.result, path, unit_system=self.doc.unit_system)
-        except Exception as exc:
+        except OSError as exc:
             self.error_dialog("CSV not written", f"Could not write {path}: {exc}")
             return False
         self.statusBar().showMessage(f"Profiles written to {path}", 5000)
@@ -644,59 +698,34 @@ class MainWindow(QMainWindow):
 
     def write_recovery(self) -> Optional[Path]:
         """Write the open project to the recovery file if it has unsaved changes."""
-        if not self.doc.modified:
+        if not self.doc.modified or not self.remember:
             return None
-        target = self.recovery_file
-        payload = {
-            "calorun_recovery": 1,
-            "written_at": _dt.datetime.now().isoformat(timespec="seconds"),
-            "original_path": str(self.doc.path) if self.doc.path else None,
-            "project": self.doc.project.model_dump(mode="json"),
-        }
         try:
-            target.parent.mkdir(parents=True, exist_ok=True)
-            tmp = target.with_name(f".{target.name}.tmp")
-            tmp.write_text(json.dumps(payload, ensure_ascii=False), encoding="utf-8")
-            os.replace(tmp, target)
+            return recovery.write_recovery(self.recovery_file, self.doc.project, self.doc.path)
         except OSError as exc:
-            self.statusBar().showMessage(f"Autosave failed: {exc}", 6000)
+            self.statusBar().showMessage(f"Autosave failed: {exc.strerror or exc}", 6000)
             return None
-        return target
 
     def remove_recovery(self) -> None:
-        try:
-            self.recovery_file.unlink()
-        except FileNotFoundError:
-            pass
-        except OSError:
-            pass
+        if self.remember:  # a window that writes none leaves a real session's file alone
+            recovery.remove_recovery(self.recovery_file)
 
     def check_recovery(self) -> bool:
         """If a recovery file exists (the last run did not close normally), offer to recover it."""
-        from solver.errors import ProjectFileError
-        from solver.project_io import project_from_dict
-
         path = self.recovery_file
-        if not path.exists():
-            return False
         try:
-            payload = json.loads(path.read_text(encoding="utf-8"))
-            project = project_from_dict(payload["project"])
-        except (OSError, ValueError, KeyError, TypeError, ProjectFileError) as exc:
+            found = recovery.read_recovery(path)
+        except recovery.RecoveryUnreadable as exc:
             self.error_dialog("Recovery file unreadable",
                               f"A recovery file was found but cannot be read ({exc}); it has been set aside.")
-            try:
-                path.replace(path.with_suffix(".unreadable.json"))
-            except OSError:
-                pass
+            recovery.set_aside(path)
             return False
-        original = payload.get("original_path")
-        when = payload.get("written_at", "an unknown time")
-        info = (f"Unsaved changes to '{project.name}'"
-                + (f" ({original})" if original else "") + f" were kept at {when}.")
-        if self.ask_recover(info):
+        if found is None:
+            return False
+        if self.ask_recover(found.describe()):
             self._showing_demo = False
-            self.doc.set_project(project, path=Path(original) if original else None, modified=True)
+            self.doc.set_project(found.project, path=Path(found.original_path) if found.original_path else None,
+                                 modified=True)
             self.statusBar().showMessage("Recovered unsaved work — save it to keep it.", 8000)
             self.write_recovery()
             return True
@@ -767,11 +796,14 @@ def _wait_for_first_result(win: MainWindow, timeout_s: float = 60.0) -> None:
         time.sleep(0.01)
 
 
-def run(path: Optional[str] = None, screenshot: Optional[str] = None) -> int:
+def run(path: Optional[str] = None, screenshot: Optional[str] = None, unit_system: Optional[str] = None) -> int:
     """Start the desktop app on ``path`` (the demo project when None).
 
     With ``screenshot``, render the window offscreen at 1600×1000 once the first result is
-    plotted, save it as PNG and return 0 without entering the event loop.
+    plotted, save it as PNG and return 0 without entering the event loop. A screenshot is a
+    picture, not a session: it shows ``unit_system`` (default SI, not the remembered one) and
+    writes no settings, no Recent files entry and no autosave file, and leaves a recovery file
+    from a real session where it is.
     """
     if screenshot:
         os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
@@ -779,7 +811,10 @@ def run(path: Optional[str] = None, screenshot: Optional[str] = None) -> int:
     app.setOrganizationName(settings.ORGANISATION)
     app.setApplicationName(settings.APPLICATION)
     app.setStyle("Fusion")
-    win = MainWindow(interactive=False if screenshot else None)
+    if screenshot:
+        win = MainWindow(interactive=False, remember=False, unit_system=unit_system or "SI")
+    else:
+        win = MainWindow(unit_system=unit_system)
     opened = bool(path) and win.open_file(path, ask=False)
     if path and not opened and screenshot:
         return 2  # the dialog text went to stderr
@@ -796,7 +831,6 @@ def run(path: Optional[str] = None, screenshot: Optional[str] = None) -> int:
         out.parent.mkdir(parents=True, exist_ok=True)
         ok = image.save(str(out), "PNG")
         win.doc.shutdown()
-        win.remove_recovery()
         win.close()
         if not ok:
             print(f"calorun: could not write screenshot {out}", file=sys.stderr)

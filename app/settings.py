@@ -1,7 +1,8 @@
 """Settings kept between runs (QSettings, organisation "Calorun"): unit system and recent files.
 
 Set ``CALORUN_SETTINGS_DIR`` to keep them in an INI file in that folder instead (tests do,
-so they never touch a user's settings).
+so they never touch a user's settings). Only the main window writes here, and not when it is
+taking a ``--screenshot``.
 """
 
 from __future__ import annotations
@@ -48,15 +49,6 @@ def add_recent_file(path: str | os.PathLike) -> list[str]:
     p = str(Path(path).resolve())
     files = [p] + [f for f in recent_files() if f != p]
     files = files[:MAX_RECENT]
-    s = settings()
-    s.setValue("files/recent", files)
-    s.sync()
-    return files
-
-
-def remove_recent_file(path: str | os.PathLike) -> list[str]:
-    p = str(path)
-    files = [f for f in recent_files() if f != p]
     s = settings()
     s.setValue("files/recent", files)
     s.sync()

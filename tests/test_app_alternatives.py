@@ -157,10 +157,9 @@ def test_set_baseline_undoable(panel, doc):
 
 @pytest.fixture
 def sbs(qtbot, doc):
-    doc.push  # the document exists
     p = SideBySidePanel(doc)
     qtbot.addWidget(p)
-    p.show()  # the panel solves in the background only while it is shown
+    p.show()  # the panel asks for results only while it is shown
     p.solve_all_now()
     return p
 
@@ -171,12 +170,14 @@ def test_side_by_side_key_figures_against_baseline(sbs, doc):
     assert "baseline" in t.horizontalHeaderItem(1).text()
     results = [solve(a) for a in doc.project.alternatives]  # independent solves
     spec = next(s for s in comparison.KEY_FIGURE_SPECS if s.key == "heat_loss_W")
-    row = [s.key for s in comparison.KEY_FIGURE_SPECS].index("heat_loss_W")
+    row = sbs.row_of("heat_loss_W")
+    assert t.verticalHeaderItem(row).text() == spec.indented_label()  # the one list's label
     for col in (0, 2):
         diff = results[col].heat_loss_W - results[1].heat_loss_W
-        text = t.item(row, col).text()
-        assert units.format_value(results[col].heat_loss_W, "power", "SI") in text
-        assert comparison.format_difference(diff, results[1].heat_loss_W, spec, "SI") in text
+        value_line, diff_line = t.item(row, col).text().split("\n")  # the difference on its own line
+        assert value_line == units.format_value(results[col].heat_loss_W, "power", "SI")
+        assert diff_line == comparison.format_difference(diff, results[1].heat_loss_W, spec, "SI")
+    assert "\n" not in t.item(row, 1).text()  # the baseline: no difference line
     # thinner insulation loses more heat (physics sanity: Fourier's law through the layer)
     assert results[0].heat_loss_W > results[1].heat_loss_W > results[2].heat_loss_W
 
@@ -190,29 +191,30 @@ def test_side_by_side_targets_met_or_missed(qtbot, doc):
     qtbot.addWidget(p)
     p.solve_all_now()
     t = p.targets_table
-    assert t.rowCount() == 1 and t.columnCount() == 4
-    assert t.item(0, 1).data(Qt.UserRole) != t.item(0, 3).data(Qt.UserRole)
+    assert t.rowCount() == 2 and t.columnCount() == 3  # the verdict, then the one target
+    assert t.verticalHeaderItem(1).text().endswith(units.format_value(limit, "temperature", "SI"))  # ≥ the limit
+    assert t.item(1, 0).data(Qt.UserRole) != t.item(1, 2).data(Qt.UserRole)
     for i, r in enumerate(results):
-        item = t.item(0, i + 1)
+        item = t.item(1, i)
         assert item.data(Qt.UserRole) == (r.outlet_temperature_K >= limit)
         assert item.text().startswith("\u2713 met" if item.data(Qt.UserRole) else "\u2717 missed")
+        verdict = comparison.design_verdict(doc.project.targets, r)
+        assert t.item(0, i).data(Qt.UserRole) == verdict.level
 
 
 def test_side_by_side_overlay_and_checks(sbs, doc):
     assert set(sbs._curves) == set(_names(doc))
     sbs.set_overlaid(["A 20 mm"])
     assert set(sbs._curves) == {"A 20 mm"}
-    # segment boundaries: one line per inner boundary per plot
-    assert len(sbs._boundaries["A 20 mm"]) == 2 * (len(doc.project.alternatives[0].segments) - 1)
+    # segment boundaries: drawn once per position (all three share the geometry), in both plots
+    assert len(sbs._boundaries) == 2 * (len(doc.project.alternatives[0].segments) - 1)
     names_in_checks = {sbs.checks_table.item(r, 0).text() for r in range(sbs.checks_table.rowCount())}
     assert names_in_checks == set(_names(doc))
 
 
 def test_side_by_side_follows_edits(qtbot, sbs, doc, panel):
     panel.add_blank()
-    with qtbot.waitSignal(sbs.results_updated, timeout=20000):
-        sbs.schedule()
     sbs.wait_for_results()
     qtbot.waitUntil(lambda: sbs.figures_table.columnCount() == 4, timeout=20000)
     doc.set_unit_system("US")
-    assert "°F" in sbs.figures_table.item(0, 0).text()
+    assert "°F" in sbs.figures_table.item(sbs.row_of("outlet_temperature_K"), 0).text()

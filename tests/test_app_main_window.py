@@ -20,7 +20,9 @@ from PySide6.QtGui import QImage  # noqa: E402
 
 from app import commands as C  # noqa: E402
 from app import settings  # noqa: E402
-from app.main_window import CAUTIONS_BANNER, MainWindow, recovery_path, run  # noqa: E402
+from app.main_window import MainWindow, run  # noqa: E402
+from app.recovery import recovery_path  # noqa: E402
+from solver.results import CAUTIONS, CAUTIONS_BANNER  # noqa: E402
 from solver.model import Alternative, Layer, Project, Segment  # noqa: E402
 from solver.project_io import dump_project, load_project  # noqa: E402
 
@@ -106,7 +108,8 @@ def test_invalid_input_marked_in_place_model_unchanged(win, text):
     commit(card.length_edit, text)
     assert card.length_edit.has_error
     assert card.length_edit.error_label.isVisible()
-    assert "length" in card.length_edit.error_text
+    assert card.length_edit.error_text.startswith("Length")  # the field's label, not its JSON key
+    assert "length_m" not in card.length_edit.error_text
     assert "border" in card.length_edit.line_edit.styleSheet()
     assert win.doc.project.model_dump() == before
     assert win.doc.undo_stack.count() == 0
@@ -132,7 +135,10 @@ def test_model_rule_refusal_is_shown_where_typed(win):
     before = win.doc.project.model_dump()
     commit(card.elevation_edit, "45")  # more than the 30 m segment length: the model refuses
     assert card.elevation_edit.has_error
-    assert "elevation_change_m" in card.elevation_edit.error_text
+    # in the user's words and units: the label and the value typed, no JSON key
+    text = card.elevation_edit.error_text.replace("\xa0", " ")
+    assert text.startswith("Elevation change") and "45 m" in text and "30 m" in text
+    assert "elevation_change_m" not in text
     assert win.doc.project.model_dump() == before
 
 
@@ -165,14 +171,15 @@ def test_pending_entry_lands_on_the_segment_it_was_typed_for(win):
 def test_segment_actions_add_reorder_delete(win):
     doc = win.doc
     win.insert_segment()
-    assert [s.name for s in doc.current_alternative.segments] == ["Run 1", "Segment 3", "Run 2"]
+    # a new segment is named after its position in the line
+    assert [s.name for s in doc.current_alternative.segments] == ["Run 1", "Segment 2", "Run 2"]
     win.move_segment(1)
-    assert [s.name for s in doc.current_alternative.segments] == ["Run 1", "Run 2", "Segment 3"]
+    assert [s.name for s in doc.current_alternative.segments] == ["Run 1", "Run 2", "Segment 2"]
     win.delete_segment()
     assert [s.name for s in doc.current_alternative.segments] == ["Run 1", "Run 2"]
     assert doc.undo_stack.count() == 3
     doc.undo_stack.undo()
-    assert [s.name for s in doc.current_alternative.segments] == ["Run 1", "Run 2", "Segment 3"]
+    assert [s.name for s in doc.current_alternative.segments] == ["Run 1", "Run 2", "Segment 2"]
 
 
 def test_surroundings_switch_carries_temperature_and_is_one_step(win):
@@ -225,7 +232,7 @@ def test_failed_save_leaves_old_file_and_says_why(win, tmp_path, monkeypatch):
     assert win.doc.modified  # the edit is still unsaved
     # 2) a folder that does not exist, and 3) a path that is a folder
     assert not win.save_to(tmp_path / "no such folder" / "line.json")
-    assert "No such file or directory" in win.messages[-1][1]
+    assert "does not exist" in win.messages[-1][1]
     assert not win.save_to(tmp_path)
     assert win.doc.modified and win.doc.path == target
 
@@ -375,6 +382,57 @@ def test_screenshot_run(tmp_path, qtbot):
     assert (image.width(), image.height()) == (1600, 1000)
 
 
+def test_screenshot_leaves_settings_recent_files_and_recovery_alone(tmp_path, qtbot, monkeypatch):
+    import app.main_window as mw
+    from app import cli
+
+    windows = []
+
+    class Recorded(MainWindow):
+        def __init__(self, *a, **k):
+            super().__init__(*a, **k)
+            windows.append(self)
+
+    monkeypatch.setattr(mw, "MainWindow", Recorded)
+    project = tmp_path / "line.json"
+    project.write_text(dump_project(small_project()), encoding="utf-8")
+    # a user's remembered state, and a recovery file left by a session that crashed
+    settings.set_unit_system("US")
+    settings.add_recent_file(tmp_path / "earlier.json")
+    ini = Path(os.environ["CALORUN_SETTINGS_DIR"]) / "calorun.ini"
+    remembered = ini.read_bytes()
+    recovery_path().parent.mkdir(parents=True, exist_ok=True)
+    recovery_path().write_text('{"kept": "for the user"}', encoding="utf-8")
+
+    assert cli.main(["--screenshot", str(tmp_path / "si.png"), str(project)]) == 0
+    assert windows[-1].doc.unit_system == "SI"  # the option's default, not the remembered US
+    assert windows[-1].doc.path == project  # the file was shown...
+    assert cli.main(["--screenshot", str(tmp_path / "us.png"), "--units", "US", str(project)]) == 0
+    assert windows[-1].doc.unit_system == "US"
+    assert ini.read_bytes() == remembered  # ...but nothing was written: no units, no Recent files entry
+    assert settings.recent_files() == [str((tmp_path / "earlier.json").resolve())]
+    assert recovery_path().read_text(encoding="utf-8") == '{"kept": "for the user"}'
+    assert QImage(str(tmp_path / "us.png")).width() == 1600
+
+
+def test_screenshot_writes_nothing_to_the_default_settings_location(tmp_path, qtbot, monkeypatch):
+    from PySide6.QtCore import QSettings
+
+    # without CALORUN_SETTINGS_DIR the settings live in the user's QSettings location: redirect it here
+    monkeypatch.delenv("CALORUN_SETTINGS_DIR")
+    probe = Path(QSettings(QSettings.IniFormat, QSettings.UserScope, "probe", "probe").fileName())
+    user_scope = tmp_path / "user-scope"
+    QSettings.setPath(QSettings.IniFormat, QSettings.UserScope, str(user_scope))
+    try:
+        assert settings.settings().fileName().startswith(str(user_scope))  # the redirection took
+        project = tmp_path / "line.json"
+        project.write_text(dump_project(small_project()), encoding="utf-8")
+        assert run(str(project), screenshot=str(tmp_path / "shot.png")) == 0  # opening a file would list it
+        assert not user_scope.exists() or not any(p.is_file() for p in user_scope.rglob("*"))
+    finally:
+        QSettings.setPath(QSettings.IniFormat, QSettings.UserScope, str(probe.parent.parent))
+
+
 def test_screenshot_of_unreadable_file_fails_cleanly(tmp_path, qtbot):
     bad = tmp_path / "bad.json"
     bad.write_text("[]", encoding="utf-8")
@@ -395,6 +453,83 @@ def test_exports_write_files(win, tmp_path):
     assert pdf_path.read_bytes()[:5] == b"%PDF-"
     assert not win.export_csv(tmp_path / "missing" / "x.csv")  # says why, app keeps running
     assert win.messages[-1][0] == "CSV not written"
+
+
+def _two_alternatives(win):
+    base = win.doc.project.alternatives[0]
+    thicker = base.model_copy(update={"name": "Thicker", "segments": [
+        s.model_copy(update={"insulation": [Layer(thickness_m=0.08, conductivity_W_per_mK=0.04)]})
+        for s in base.segments]})
+    win.doc.push(C.InsertAlternative(win.doc, 1, thicker))
+
+
+class _CountingSolve:
+    """Wraps solver.solve: records (alternative name, on the GUI thread?); can hold one name until released."""
+
+    def __init__(self, hold=None):
+        import threading
+
+        import solver
+
+        self.real = solver.solve
+        self.calls = []
+        self.hold = hold
+        self.release = threading.Event()
+
+    def __call__(self, alternative, **options):
+        import threading
+
+        self.calls.append((alternative.name, threading.current_thread() is threading.main_thread()))
+        if alternative.name == self.hold:
+            assert self.release.wait(30)
+        return self.real(alternative, **options)
+
+
+def test_export_pdf_uses_the_results_already_held(win, tmp_path, monkeypatch):
+    import solver
+
+    _two_alternatives(win)
+    win.doc.results_now()  # held, e.g. after the Side-by-Side showed them
+    counter = _CountingSolve()
+    monkeypatch.setattr(solver, "solve", counter)
+    pdf_path = tmp_path / "report.pdf"
+    assert win.export_pdf(pdf_path)
+    assert counter.calls == []  # not one solve more
+    assert pdf_path.read_bytes()[:5] == b"%PDF-"
+
+
+def test_export_pdf_solves_only_what_is_missing_off_the_gui_thread(win, tmp_path, monkeypatch):
+    import solver
+
+    _two_alternatives(win)  # "Base" is held (on screen), "Thicker" is not
+    counter = _CountingSolve()
+    monkeypatch.setattr(solver, "solve", counter)
+    assert win.export_pdf(tmp_path / "report.pdf")
+    assert counter.calls == [("Thicker", False)]  # once, on the worker thread
+    assert (tmp_path / "report.pdf").read_bytes()[:5] == b"%PDF-"
+
+
+def test_export_pdf_can_be_cancelled_while_solving(win, tmp_path, monkeypatch):
+    import solver
+    from PySide6.QtCore import QTimer
+
+    _two_alternatives(win)
+    counter = _CountingSolve(hold="Thicker")
+    monkeypatch.setattr(solver, "solve", counter)
+    shown = []
+
+    def press_cancel():
+        shown.append(win.report_progress.isVisible())
+        win.report_progress.canceled.emit()  # what the Cancel button sends
+
+    QTimer.singleShot(200, press_cancel)
+    try:
+        assert not win.export_pdf(tmp_path / "report.pdf")
+    finally:
+        counter.release.set()
+    assert shown == [True]  # the progress dialog was up while the solve ran
+    assert not (tmp_path / "report.pdf").exists()
+    assert win.report_progress is None
 
 
 def test_new_asks_about_unsaved_changes(win, tmp_path):
@@ -423,8 +558,6 @@ def test_recent_files_menu(win, tmp_path):
 
 
 def test_cautions_dialog_is_not_modal(win):
-    from app.main_window import CAUTIONS
-
     dlg = win.show_cautions()
     assert dlg.isVisible() and not dlg.isModal()
     from PySide6.QtWidgets import QTextBrowser
@@ -480,7 +613,9 @@ def test_project_details_refuses_a_bad_target_without_changing_the_model(win):
     dialog = win.edit_project_details()
     dialog.target_edits["max_heat_input_W"].setText("-5 kW")  # a maximum heat input must be > 0
     error = dialog.apply()
-    assert error and "max_heat_input_W" in error
+    # in the user's words and display units: the target's label and the value typed, no JSON key
+    text = error.replace("\xa0", " ")
+    assert text.startswith("Heat input target") and "5 kW" in text and "max_heat_input_W" not in text
     assert win.doc.project.model_dump() == before
 
 
