@@ -5,12 +5,18 @@ makes it current (the Line Strip, Segment Card, Feed and Profiles follow).
 Add blank, duplicate, rename (double-click or F2), delete, move up/down and
 set baseline are undoable commands pushed through the Document. The panel
 keeps no copy of the design: it rebuilds its list from the Document's signals.
+
+The list is as tall as its rows (up to :data:`MAX_VISIBLE_ROWS`), so the baseline never
+scrolls out of sight; where a result is at hand each row carries its design verdict as a
+small mark (shape and colour, the words in the tooltip).
 """
 
 from __future__ import annotations
 
+from functools import lru_cache
+
 from PySide6.QtCore import Qt, Signal
-from PySide6.QtGui import QFont
+from PySide6.QtGui import QFont, QIcon, QPixmap
 from PySide6.QtWidgets import (
     QAbstractItemView,
     QHBoxLayout,
@@ -22,7 +28,22 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from app import alternative_commands as cmds
+from app import commands as cmds
+from app import style
+from app.comparison import design_verdict
+
+#: The list shows this many rows before it scrolls (a project rarely keeps more alternatives).
+MAX_VISIBLE_ROWS = 10
+#: DesignVerdict.level -> the severity mark drawn for it (shape, letter and colour).
+VERDICT_MARKS: dict[str, str] = {"danger": "danger", "missed": "danger", "warning": "warning", "met": "ok"}
+
+
+@lru_cache(maxsize=None)
+def _blank_icon() -> QIcon:
+    """A transparent mark, so names with and without a verdict line up."""
+    pm = QPixmap(16, 16)
+    pm.fill(Qt.transparent)
+    return QIcon(pm)
 
 
 class AlternativesPanel(QWidget):
@@ -41,6 +62,7 @@ class AlternativesPanel(QWidget):
         self.list.setSelectionMode(QAbstractItemView.SingleSelection)
         self.list.setEditTriggers(QAbstractItemView.DoubleClicked | QAbstractItemView.EditKeyPressed)
         self.list.setToolTip("Select to edit this alternative; double-click or F2 to rename.")
+        self.list.setVerticalScrollMode(QAbstractItemView.ScrollPerPixel)
 
         def button(text, tip, slot, name):
             b = QToolButton(self)
@@ -77,15 +99,24 @@ class AlternativesPanel(QWidget):
         layout = QVBoxLayout(self)
         layout.setContentsMargins(4, 4, 4, 4)
         layout.addLayout(row1)
-        layout.addWidget(self.list, 1)
+        layout.addWidget(self.list)
         layout.addLayout(row2)
         layout.addWidget(self.message)
+        layout.addStretch(1)
 
         self.list.currentRowChanged.connect(self._on_row_changed)
         self.list.itemChanged.connect(self._on_item_edited)
         doc.project_replaced.connect(self.refresh)
         doc.project_changed.connect(self.refresh)
         doc.current_alternative_changed.connect(self._on_current_changed)
+        # a new result changes one row's mark: only that row is looked at
+        doc.result_ready.connect(lambda _r: self._update_marks({self.doc.current_alternative.name}))
+        # other alternatives' results, where the Document holds and announces them
+        self._verdicts: dict[str, tuple] = {}  # name -> (alternative, targets, verdict or None) last judged
+        solved = getattr(doc, "alternative_solved", None)
+        self._told_of_results = solved is not None
+        if solved is not None:
+            solved.connect(self._on_alternative_solved)
         self.refresh()
 
     # ------------------------------------------------------------------ view
@@ -113,10 +144,80 @@ class AlternativesPanel(QWidget):
                     item.setData(Qt.AccessibleDescriptionRole, "baseline")
                 self.list.addItem(item)
             self._mark_baseline(base)
+            self._update_marks()
             self.list.setCurrentRow(self.doc.current_index)
             self._update_buttons()
+            self._fit_height()
         finally:
             self._updating = False
+
+    def _fit_height(self) -> None:
+        """Make the list as tall as its rows (up to MAX_VISIBLE_ROWS), and the panel no taller than
+        it needs: the space left over goes to the panels below."""
+        rows = min(max(1, self.list.count()), MAX_VISIBLE_ROWS)
+        row_height = self.list.sizeHintForRow(0) if self.list.count() else self.list.fontMetrics().height() + 4
+        height = rows * max(row_height, 1) + 2 * self.list.frameWidth() + 2 * self.list.spacing()
+        if self.list.height() != height or self.list.minimumHeight() != height:
+            self.list.setFixedHeight(height)
+        self.layout().activate()
+        self.setMaximumHeight(self.layout().sizeHint().height())
+
+    def verdict_for(self, name: str):
+        """The DesignVerdict of the alternative called ``name`` where its result is at hand, else None.
+
+        The current alternative's result is the Document's; others come from ``doc.result_for``
+        where the Document offers it.
+        """
+        targets = self.doc.project.targets
+        if name == self.doc.current_alternative.name:
+            # the last result stays on screen until the next one arrives, here as in every view
+            result = self.doc.result if not self.doc.result_is_stale else None
+            return design_verdict(targets, result) if result is not None and result.name == name else None
+        result_for = getattr(self.doc, "result_for", None)
+        alt = next((a for a in self.doc.project.alternatives if a.name == name), None)
+        if alt is None or not callable(result_for):
+            return None
+        # finding a held result hashes the alternative's content (~1.5 ms for 60 segments): judge an
+        # alternative again only when it, the targets, or its result changed
+        held = self._verdicts.get(name)
+        if held is not None and held[0] is alt and held[1] is targets:
+            return held[2]
+        result = result_for(name)
+        verdict = design_verdict(targets, result) if result is not None else None
+        if verdict is not None or self._told_of_results:  # a result to come is announced: no need to ask again
+            self._verdicts[name] = (alt, targets, verdict)
+        return verdict
+
+    def _on_alternative_solved(self, name: str, *_outcome) -> None:
+        self._verdicts.pop(name, None)
+        self._update_marks({name})
+
+    def _update_marks(self, names=None) -> None:
+        """The verdict mark of each row (of the rows named in ``names``), its words in the tooltip;
+        a blank mark where no result is at hand."""
+        was_updating, self._updating = self._updating, True  # these item changes are no renames
+        try:
+            self._set_marks(names)
+        finally:
+            self._updating = was_updating
+
+    def _set_marks(self, names) -> None:
+        for i in range(self.list.count()):
+            item = self.list.item(i)
+            name = item.data(Qt.UserRole)
+            if names is not None and name not in names:
+                continue
+            verdict = self.verdict_for(name)
+            base_tip = item.data(Qt.UserRole + 1) or item.toolTip()
+            item.setData(Qt.UserRole + 1, base_tip)
+            if verdict is None:
+                item.setIcon(_blank_icon())
+                item.setData(Qt.UserRole + 2, "")
+                item.setToolTip(base_tip)
+            else:
+                item.setIcon(style.severity_icon(VERDICT_MARKS[verdict.level]))
+                item.setData(Qt.UserRole + 2, verdict.level)
+                item.setToolTip(f"{base_tip}\n{style.VERDICT_SYMBOLS[verdict.level]} {verdict.text()}")
 
     def _mark_baseline(self, base: str) -> None:
         for i in range(self.list.count()):
@@ -152,6 +253,7 @@ class AlternativesPanel(QWidget):
     def _show_error(self, text: str) -> None:
         self.message.setText(text)
         self.message.show()
+        self._fit_height()
         self.error_shown.emit(text)
 
     def _push(self, make) -> bool:
@@ -160,7 +262,9 @@ class AlternativesPanel(QWidget):
         except (ValueError, IndexError) as exc:  # pydantic ValidationError is a ValueError
             self._show_error(str(exc).splitlines()[0] if str(exc) else type(exc).__name__)
             return False
-        self.message.hide()
+        if self.message.isVisibleTo(self):
+            self.message.hide()
+            self._fit_height()
         self.doc.push(command)
         return True
 

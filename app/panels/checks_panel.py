@@ -1,8 +1,10 @@
 """Checks: the findings of the current result, most severe first.
 
 Each row shows a severity mark (shape + colour + word, so colour is never the only cue), the
-message and where it applies (segment name, position in display units). Clicking a row selects
-the segment and marks the position on the Profiles. An empty list says so plainly.
+message and where it applies (segment name, position in display units). Messages wrap onto as
+many lines as they need, so none is cut. Clicking a row selects the segment and marks the
+position on the Profiles. An empty list says so plainly. The order is the one every list of
+checks uses (:func:`solver.results.check_sort_key`).
 """
 
 from __future__ import annotations
@@ -10,12 +12,15 @@ from __future__ import annotations
 import html
 import math
 
-from PySide6.QtCore import Qt
+from PySide6.QtCore import QSize, Qt
 from PySide6.QtGui import QBrush, QFont
 from PySide6.QtWidgets import (
     QAbstractItemView,
     QHeaderView,
     QLabel,
+    QStyle,
+    QStyledItemDelegate,
+    QStyleOptionViewItem,
     QTreeWidget,
     QTreeWidgetItem,
     QVBoxLayout,
@@ -23,22 +28,56 @@ from PySide6.QtWidgets import (
 )
 
 from app import style, units
+from app.comparison import plural
 from app.units import format_value
+from solver.results import check_sort_key
 
 COLUMNS = ("Severity", "Finding", "Segment", "Position")
 ROLE_CHECK = Qt.UserRole + 1
 
 
 def sorted_checks(checks) -> list:
-    """Most severe first; within a severity in flow order (checks without a position last)."""
-    return sorted(
-        checks,
-        key=lambda c: (
-            -style.severity_rank(c.severity),
-            c.x_m if c.x_m is not None and math.isfinite(c.x_m) else math.inf,
-            c.segment if c.segment is not None else 1 << 30,
-        ),
-    )
+    """Worst first, then in flow order: :func:`solver.results.check_sort_key`."""
+    return sorted(checks, key=check_sort_key)
+
+
+#: Words of the counts in the header (singular, plural): "1 warning", "3 warnings", "2 info".
+COUNT_WORDS: dict[str, tuple[str, str]] = {
+    "danger": ("danger", "dangers"),
+    "warning": ("warning", "warnings"),
+    "info": ("info", "info"),
+}
+
+
+def count_text(counts: dict[str, int]) -> str:
+    """Plain counts, worst first, e.g. ``'1 danger · 3 warnings'``; ``'No findings'`` for none."""
+    parts = [plural(n, *COUNT_WORDS[k]) for k, n in counts.items() if n]
+    return " · ".join(parts) if parts else "No findings"
+
+
+class _WrappingDelegate(QStyledItemDelegate):
+    """Measures an item at its column's width, so a wrapped message gets the rows it needs.
+
+    A tree view asks for row heights with no width in the style option, which makes every
+    message one (cut) line; this gives it the column width.
+    """
+
+    def __init__(self, tree: QTreeWidget, column: int):
+        super().__init__(tree)
+        self._tree = tree
+        self._column = column  # the one column that wraps; the others size to their one line
+
+    def sizeHint(self, option, index) -> QSize:
+        if index.column() != self._column:
+            return super().sizeHint(option, index)
+        opt = QStyleOptionViewItem(option)
+        self.initStyleOption(opt, index)
+        rect = opt.rect
+        rect.setWidth(self._tree.columnWidth(index.column()))
+        rect.setHeight(1 << 14)  # any valid height: the style measures the wrapped text
+        opt.rect = rect
+        size = self._tree.style().sizeFromContents(QStyle.CT_ItemViewItem, opt, QSize(), self._tree)
+        return QSize(size.width(), size.height() + 4)  # a little air between wrapped findings
 
 
 class ChecksPanel(QWidget):
@@ -64,6 +103,8 @@ class ChecksPanel(QWidget):
         self.tree.setRootIsDecorated(False)
         self.tree.setUniformRowHeights(False)
         self.tree.setWordWrap(True)
+        self.tree.setTextElideMode(Qt.ElideNone)
+        self.tree.setItemDelegate(_WrappingDelegate(self.tree, COLUMNS.index("Finding")))
         self.tree.setAlternatingRowColors(True)
         self.tree.setSelectionMode(QAbstractItemView.SingleSelection)
         self.tree.setAllColumnsShowFocus(True)
@@ -74,6 +115,8 @@ class ChecksPanel(QWidget):
         h.setSectionResizeMode(1, QHeaderView.Stretch)
         h.setSectionResizeMode(2, QHeaderView.ResizeToContents)
         h.setSectionResizeMode(3, QHeaderView.ResizeToContents)
+        # a wider or narrower message column re-wraps the messages
+        h.sectionResized.connect(lambda col, _old, _new: col == 1 and self.tree.scheduleDelayedItemsLayout())
         self.tree.itemClicked.connect(lambda item, _col: self.activate_row(item))
         self.tree.itemActivated.connect(lambda item, _col: self.activate_row(item))
 
@@ -121,14 +164,14 @@ class ChecksPanel(QWidget):
             self.header.setText(f"<span style='color:{style.INK_MUTED}'>Checks appear once the line is solved.</span>")
             return
         checks = sorted_checks(res.checks)
-        counts = {k: sum(1 for c in checks if c.severity == k) for k in ("danger", "warning", "info")}
-        parts = [
-            f"<span style='color:{style.SEVERITIES[k].colour}'><b>{n}</b></span> "
-            f"{style.SEVERITIES[k].word.lower()}{'s' if n != 1 and k != 'info' else ''}"
-            for k, n in counts.items()
-            if n
-        ]
+        counts = res.check_counts()
+        parts = []
+        for k, n in counts.items():
+            if n:  # the number in the severity's colour, the words from count_text's grammar
+                number, _, words = plural(n, *COUNT_WORDS[k]).partition(" ")
+                parts.append(f"<span style='color:{style.SEVERITIES[k].colour}'><b>{number}</b></span> {words}")
         head = " · ".join(parts) if parts else "No findings"
+        self.header.setToolTip(count_text(counts))
         if self.doc.result_is_stale:
             head += f" &nbsp;<span style='color:{style.INK_MUTED}'>(stale: the last edit could not be solved)</span>"
         self.header.setText(head)

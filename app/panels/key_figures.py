@@ -1,18 +1,23 @@
 """Key Figures: the headline numbers of the current result in the chosen unit system.
 
-A three-column table (figure, value with unit, where/remark), grouped into outlet, pressure,
-heat and wall/flow. Values come straight from the Result (SI) through ``app.units``; nothing
-is computed here beyond picking and formatting.
+The rows are the one list of key figures, :data:`solver.results.KEY_FIGURES`, grouped as it
+groups them, with its labels, so this panel, Side-by-Side, the CLI and the report say the same
+thing. Above the table, the at-a-glance design verdict (targets and checks judged together).
+Values come straight from the Result (SI) through ``app.units``; nothing is computed here beyond
+picking and formatting.
 """
 
 from __future__ import annotations
 
-from PySide6.QtCore import Qt
+import math
+
+from PySide6.QtCore import Qt, QTimer
 from PySide6.QtGui import QBrush, QFont
 from PySide6.QtWidgets import (
     QAbstractItemView,
     QHeaderView,
     QLabel,
+    QStyle,
     QTableWidget,
     QTableWidgetItem,
     QVBoxLayout,
@@ -20,76 +25,66 @@ from PySide6.QtWidgets import (
 )
 
 from app import style
+from app.comparison import design_verdict
 from app.units import format_value
+from solver.results import KEY_FIGURES, KeyFigure
+
+COLUMNS = ("Figure", "Value", "Note")
+
+#: Two figures shown together as "min – max" by :meth:`KeyFiguresPanel.value_text`.
+RANGES: dict[str, tuple[str, str]] = {
+    "velocity_range": ("min_velocity_m_per_s", "max_velocity_m_per_s"),
+    "reynolds_range": ("min_reynolds", "max_reynolds"),
+}
 
 
-def _range(lo: float, hi: float, quantity: str, system: str, digits: int = 3) -> str:
-    a = format_value(lo, quantity, system, digits=digits, with_unit=False)
-    b = format_value(hi, quantity, system, digits=digits)
-    return f"{a} – {b}"
+def _finite(value) -> bool:
+    return value is not None and isinstance(value, (int, float)) and math.isfinite(value)
 
 
-def key_figure_rows(result, system: str) -> list[tuple[str, str, str, str]]:
-    """Rows of (key, label, value text, remark) for ``result`` in ``system``.
+def figure_row(figure: KeyFigure, values: dict[str, float], system: str) -> tuple[str, str, str, str]:
+    """(label, value text, note, method) of one key figure in ``system``.
 
-    Group headings have key ``""`` and empty value. Keys match ``Result.key_figures()`` where
-    one exists, so tests and exports can find a row.
+    A negative value of a figure with a ``negative_label`` (heat loss that is really a gain) is
+    shown under that label with its sign turned. The note says where the value occurs
+    (``position_key``) or the inlet value it is read against (``inlet_key``).
     """
-    r = result
-    pd = r.pressure_drop
-    at = lambda x: "at " + format_value(x, "length", system)  # noqa: E731
-    rows: list[tuple[str, str, str, str]] = [
-        ("", "Outlet", "", ""),
-        ("outlet_temperature_K", "Outlet temperature", format_value(r.outlet_temperature_K, "temperature", system),
-         "inlet " + format_value(r.inlet_temperature_K, "temperature", system)),
-        ("outlet_pressure_Pa", "Outlet pressure", format_value(r.outlet_pressure_Pa, "pressure", system),
-         "inlet " + format_value(r.inlet_pressure_Pa, "pressure", system)),
-        ("", "Pressure drop", "", ""),
-        ("pressure_drop_Pa", "Pressure drop", format_value(r.pressure_drop_Pa, "pressure_difference", system), "inlet − outlet"),
-        ("pressure_drop_friction_Pa", "   friction", format_value(pd.friction_Pa, "pressure_difference", system), ""),
-        ("pressure_drop_fittings_Pa", "   fittings", format_value(pd.fittings_Pa, "pressure_difference", system), ""),
-        ("pressure_drop_elevation_Pa", "   elevation", format_value(pd.elevation_Pa, "pressure_difference", system),
-         "negative = gained going down"),
-        ("pressure_drop_acceleration_Pa", "   acceleration", format_value(pd.acceleration_Pa, "pressure_difference", system), ""),
-        ("pump_power_W", "Hydraulic power", format_value(r.pump_power_W, "power", system), "flow × pressure drop"),
-        ("", "Heat", "", ""),
-        ("duty_W", "Duty (heat to fluid)", format_value(r.duty_W, "power", system), "negative = fluid cooled"),
-        ("heat_input_W", "Heat input", format_value(r.heat_input_W, "power", system), "tracing + jackets"),
-        ("heat_input_tracing_W", "   tracing", format_value(r.heat_input_tracing_W, "power", system), ""),
-        ("heat_input_media_W", "   jackets, heated walls", format_value(r.heat_input_media_W, "power", system),
-         "negative = they cool"),
-        (("heat_loss_W", "Heat loss to ambient", format_value(r.heat_loss_W, "power", system), "air and soil")
-         if r.heat_loss_W >= 0 else
-         ("heat_loss_W", "Heat gained from ambient", format_value(-r.heat_loss_W, "power", system), "air and soil")),
-        ("energy_balance_residual_W", "Energy balance residual", format_value(r.energy_balance_residual_W, "power", system),
-         "should be ~0"),
-        ("", "Wall and flow", "", ""),
-        ("max_inner_wall_temperature_K", "Max inner-wall temperature",
-         format_value(r.max_inner_wall_temperature_K, "temperature", system), at(r.max_inner_wall_position_m)),
-        ("min_inner_wall_temperature_K", "Min inner-wall temperature",
-         format_value(r.min_inner_wall_temperature_K, "temperature", system), at(r.min_inner_wall_position_m)),
-        ("max_outer_surface_temperature_K", "Max surface temperature (in air)",
-         format_value(r.max_outer_surface_temperature_K, "temperature", system), _at_or_none(r.max_outer_surface_position_m, system)),
-        ("min_outer_surface_temperature_K", "Min surface temperature (in air)",
-         format_value(r.min_outer_surface_temperature_K, "temperature", system), _at_or_none(r.min_outer_surface_position_m, system)),
-        ("velocity_range", "Velocity", _range(*r.velocity_range_m_per_s, "velocity", system), "min – max"),
-        ("reynolds_range", "Reynolds number", _range(*r.reynolds_range, "dimensionless", system), "min – max"),
-        ("residence_time_s", "Residence time", format_value(r.residence_time_s, "time", system), "inlet to outlet"),
-        ("mass_flow_kg_per_s", "Mass flow", format_value(r.mass_flow_kg_per_s, "mass_flow", system), ""),
-    ]
+    value = values.get(figure.key)
+    label = figure.indented_label()
+    if figure.negative_label and _finite(value) and value < 0:
+        label = figure.negative_label
+        value = -value
+    note = ""
+    if figure.position_key:
+        x = values.get(figure.position_key)
+        note = "at " + format_value(x, "length", system) if _finite(x) else ("none in air" if not _finite(value) else "")
+    elif figure.inlet_key:
+        note = "inlet " + format_value(values.get(figure.inlet_key), figure.quantity, system)
+    return label, format_value(value, figure.quantity, system), note, figure.method
+
+
+def key_figure_rows(result, system: str) -> list[tuple[str, str, str, str, str]]:
+    """Rows of (key, label, value text, note, method) for ``result`` in ``system``.
+
+    Group headings (one per ``KeyFigure.group``, in the order of :data:`KEY_FIGURES`) have key
+    ``""`` and empty value, note and method. Keys are those of ``Result.key_figures()``.
+    """
+    values = result.key_figures()
+    rows: list[tuple[str, str, str, str, str]] = []
+    group = None
+    for figure in KEY_FIGURES:
+        if figure.group != group:
+            group = figure.group
+            rows.append(("", group, "", "", ""))
+        rows.append((figure.key, *figure_row(figure, values, system)))
     return rows
 
 
-def _at_or_none(x_m: float, system: str) -> str:
-    if x_m is None or x_m != x_m:
-        return "no segment in air"
-    return "at " + format_value(x_m, "length", system)
-
-
 class KeyFiguresPanel(QWidget):
-    """``KeyFiguresPanel(doc)``: a table of headline results; observes the Document.
+    """``KeyFiguresPanel(doc)``: the verdict and a table of headline results; observes the Document.
 
-    Public: ``table`` (QTableWidget), :meth:`value_text` (key -> displayed value text).
+    Public: ``table`` (QTableWidget), ``verdict`` (QLabel), ``verdict_level`` (the shown
+    ``DesignVerdict.level`` or ""), :meth:`value_text` (key -> displayed value text).
     """
 
     def __init__(self, doc, parent=None):
@@ -98,29 +93,49 @@ class KeyFiguresPanel(QWidget):
         self.setObjectName("KeyFigures")
         self.setWindowTitle("Key Figures")
         self._row_of: dict[str, int] = {}
-        self._layout: list[tuple[str, str]] = []  # (key, label) of each row the table holds
+        self._layout: list[str] = []  # key of each row the table holds ("" for a heading)
+        self._label_width = -1  # width of the label column the row heights were fitted to
+        self.verdict_level = ""
+
+        # the verdict: symbol + words + colour, so colour is never the only cue
+        self.verdict = QLabel("")
+        self.verdict.setObjectName("KeyFiguresVerdict")
+        self.verdict.setWordWrap(True)
+        self.verdict.hide()
 
         self.note = QLabel("")
         self.note.setWordWrap(True)
         self.note.setStyleSheet(f"color: {style.INK_MUTED}; padding: 3px 6px;")
 
-        self.table = QTableWidget(0, 3, self)
-        self.table.setHorizontalHeaderLabels(["Figure", "Value", "Where / note"])
+        self.table = QTableWidget(0, len(COLUMNS), self)
+        self.table.setHorizontalHeaderLabels(list(COLUMNS))
         self.table.verticalHeader().hide()
         self.table.setEditTriggers(QAbstractItemView.NoEditTriggers)
         self.table.setSelectionBehavior(QAbstractItemView.SelectRows)
         self.table.setShowGrid(False)
         self.table.setAlternatingRowColors(False)
-        self.table.setWordWrap(False)
+        # a long label wraps onto a second line rather than being cut (values and notes are
+        # sized to their contents, so they never need to)
+        self.table.setWordWrap(True)
+        self.table.setTextElideMode(Qt.ElideNone)
+        self.table.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
         h = self.table.horizontalHeader()
-        h.setSectionResizeMode(0, QHeaderView.ResizeToContents)
+        h.setSectionResizeMode(0, QHeaderView.Stretch)
         h.setSectionResizeMode(1, QHeaderView.ResizeToContents)
-        h.setSectionResizeMode(2, QHeaderView.Stretch)
+        h.setSectionResizeMode(2, QHeaderView.ResizeToContents)
+        h.setDefaultAlignment(Qt.AlignLeft | Qt.AlignVCenter)
+        h.sectionResized.connect(self._label_column_resized)
         self.table.verticalHeader().setDefaultSectionSize(22)
+        # row heights follow the label column's width, refitted once after a burst of resizes
+        self._fit_timer = QTimer(self)
+        self._fit_timer.setSingleShot(True)
+        self._fit_timer.setInterval(0)
+        self._fit_timer.timeout.connect(self.fit_rows)
 
         lay = QVBoxLayout(self)
         lay.setContentsMargins(0, 0, 0, 0)
         lay.setSpacing(0)
+        lay.addWidget(self.verdict)
         lay.addWidget(self.note)
         lay.addWidget(self.table, 1)
 
@@ -129,8 +144,37 @@ class KeyFiguresPanel(QWidget):
         doc.solve_failed.connect(lambda _m: self.refresh())
         doc.units_changed.connect(lambda _s: self.refresh())
         doc.project_replaced.connect(self.refresh)
+        doc.project_changed.connect(self._show_verdict)  # the targets may have changed
         doc.current_alternative_changed.connect(lambda _i: self.refresh())
         self.refresh()
+
+    # ------------------------------------------------------------------ verdict
+
+    def _show_verdict(self) -> None:
+        res = self.doc.result
+        if res is None:
+            self.verdict.hide()
+            self.verdict_level = ""
+            return
+        verdict = design_verdict(self.doc.project.targets, res)
+        level = verdict.level
+        symbol = style.VERDICT_SYMBOLS[level]
+        text = f"{symbol}  {verdict.text()}"
+        if self.verdict.text() != text:
+            self.verdict.setText(text)
+            self.verdict.setToolTip(
+                "Design targets and checks judged together: a design with a danger or warning "
+                "check is never shown as simply met. The Checks list gives every finding.")
+        if level != self.verdict_level:  # re-polishing costs a few ms: only when the level changes
+            colour = style.VERDICT_COLOURS[level]
+            self.verdict.setStyleSheet(
+                f"color: {colour}; font-weight: 600; background: {style.CANVAS_BG};"
+                f"border-left: 5px solid {colour}; padding: 4px 6px;")
+            self.verdict.setAccessibleDescription(level)
+            self.verdict_level = level
+        self.verdict.show()
+
+    # ------------------------------------------------------------------ table
 
     def refresh(self) -> None:
         res = self.doc.result
@@ -138,8 +182,10 @@ class KeyFiguresPanel(QWidget):
             self.table.setRowCount(0)
             self._row_of = {}
             self._layout = []
+            self._show_verdict()
             self.note.setText("Key figures appear once the line is solved.")
             return
+        self._show_verdict()
         system = self.doc.unit_system
         note = f"{res.name} · {res.fluid_label} · {res.cells} cells"
         if self.doc.result_is_stale:
@@ -150,44 +196,54 @@ class KeyFiguresPanel(QWidget):
         if self.note.styleSheet() != sheet:  # re-polishing costs a few ms: only when it changes
             self.note.setStyleSheet(sheet)
         rows = key_figure_rows(res, system)
-        layout = [(key, text) for key, text, _v, _r in rows]
+        layout = [row[0] for row in rows]
         if layout != self._layout:
-            self._build_rows(layout)
+            self._build_rows(rows)
         # the rows keep their items: only texts that changed are set (re-creating ~70 items per
         # result cost ~30 ms). Each item change would make the view re-measure its
         # resize-to-contents columns, so the model stays quiet and announces one change at the end.
         model = self.table.model()
         was_blocked = model.blockSignals(True)
         try:
-            self._fill(rows)
+            labels_changed = self._fill(rows)
         finally:
             model.blockSignals(was_blocked)
         if not was_blocked and rows:
-            model.dataChanged.emit(model.index(0, 0), model.index(len(rows) - 1, 2), [])
+            model.dataChanged.emit(model.index(0, 0), model.index(len(rows) - 1, len(COLUMNS) - 1), [])
+        if labels_changed:
+            self._label_width = -1
+            self._fit_timer.start()
 
-    def _fill(self, rows) -> None:
-        for i, (key, text, value, remark) in enumerate(rows):
+    def _fill(self, rows) -> bool:
+        """Set the texts that changed; return whether a label changed (its row may need refitting)."""
+        labels_changed = False
+        for i, (key, label, value, note, method) in enumerate(rows):
             if not key:
                 continue
-            b, c = self.table.item(i, 1), self.table.item(i, 2)
+            a, b, c = self.table.item(i, 0), self.table.item(i, 1), self.table.item(i, 2)
+            if a.text() != label:  # e.g. heat loss that turned into a gain
+                a.setText(label)
+                labels_changed = True
             if b.text() != value:
                 b.setText(value)
-            if c.text() != remark:
-                c.setText(remark)
-            # a narrow dock elides: the whole row stays readable in the tooltip
-            tip = f"{text.strip()}: {value}" + (f" ({remark})" if remark else "")
+            if c.text() != note:
+                c.setText(note)
+            # the whole row and how the figure is computed, on every cell
+            tip = f"{label.strip()}: {value}" + (f" ({note})" if note else "") + f"\n{method}"
             if b.toolTip() != tip:
-                for col in range(3):
+                for col in range(len(COLUMNS)):
                     self.table.item(i, col).setToolTip(tip)
+        return labels_changed
 
-    def _build_rows(self, layout: list[tuple[str, str]]) -> None:
-        """Create the items of every row once (headings styled); values are filled in later."""
-        self.table.setRowCount(len(layout))
+    def _build_rows(self, rows) -> None:
+        """Create the items of every row once (headings styled and spanning); values are filled in later."""
+        self.table.clearSpans()
+        self.table.setRowCount(len(rows))
         self._row_of = {}
         heading_font = QFont(self.table.font())
         heading_font.setBold(True)
-        for i, (key, text) in enumerate(layout):
-            a, b, c = QTableWidgetItem(text), QTableWidgetItem(""), QTableWidgetItem("")
+        for i, (key, label, _value, _note, _method) in enumerate(rows):
+            a, b, c = QTableWidgetItem(label), QTableWidgetItem(""), QTableWidgetItem("")
             if not key:
                 a.setFont(heading_font)
                 a.setForeground(QBrush(style.qcolor(style.SELECTION)))
@@ -200,8 +256,56 @@ class KeyFiguresPanel(QWidget):
             self.table.setItem(i, 0, a)
             self.table.setItem(i, 1, b)
             self.table.setItem(i, 2, c)
-        self._layout = layout
+            if not key:
+                self.table.setSpan(i, 0, 1, len(COLUMNS))  # a heading never shares its row
+        self._layout = [row[0] for row in rows]
+        self._label_width = -1
+        self._fit_timer.start()
+
+    def _label_column_resized(self, index: int, _old: int, new: int) -> None:
+        if index == 0 and new != self._label_width:
+            self._fit_timer.start()
+
+    def fit_rows(self) -> None:
+        """Give each row the height its wrapped label needs at the label column's width.
+
+        Only rows whose label wraps are measured by the view; the others keep the default
+        height, so a refit costs well under a millisecond.
+        """
+        width = self.table.columnWidth(0)
+        if width == self._label_width or width <= 0:
+            return
+        self._label_width = width
+        default = self.table.verticalHeader().defaultSectionSize()
+        fm = self.table.fontMetrics()
+        room = width - 2 * self._text_margin()
+        for i, key in enumerate(self._layout):
+            if not key:
+                continue
+            text = self.table.item(i, 0).text()
+            if fm.horizontalAdvance(text) <= room:
+                if self.table.rowHeight(i) != default:
+                    self.table.setRowHeight(i, default)
+            else:
+                self.table.resizeRowToContents(i)
+                if self.table.rowHeight(i) < default:
+                    self.table.setRowHeight(i, default)
+
+    def _text_margin(self) -> int:
+        """Horizontal margin the style keeps on each side of an item's text."""
+        return self.table.style().pixelMetric(QStyle.PM_FocusFrameHMargin, None, self.table) + 1
 
     def value_text(self, key: str) -> str:
-        """The displayed value of a figure, e.g. ``value_text('outlet_temperature_K') -> '71.3 °C'``."""
+        """The displayed value of a figure, e.g. ``value_text('outlet_temperature_K') -> '71.3 °C'``.
+
+        ``'velocity_range'`` and ``'reynolds_range'`` give the pair of min and max figures as
+        ``'0.219 – 0.250 m/s'``.
+        """
+        if key in RANGES:
+            lo, hi = RANGES[key]
+            low, high = self.value_text(lo), self.value_text(hi)
+            unit = high.partition(" ")[2]
+            if unit and low.endswith(" " + unit):
+                low = low[: -len(unit) - 1]
+            return f"{low} – {high}"
         return self.table.item(self._row_of[key], 1).text()

@@ -17,7 +17,7 @@ from PySide6.QtWidgets import (
     QVBoxLayout,
 )
 
-from app import commands
+from app import commands, messages
 from app.widgets.quantity_edit import QuantityEdit
 from solver.model import Targets
 
@@ -91,15 +91,15 @@ class ProjectDetailsDialog(QDialog):
         """Push the changed fields as one undoable step; return an error message or None."""
         for edit in self.target_edits.values():
             edit.commit()
-            if edit.has_error:
-                return self._show(edit.error_text)
+            if edit.has_error:  # the box says what is wrong, under itself
+                self.error_label.hide()
+                return edit.error_text
         values = {key: edit.value() for key, edit in self.target_edits.items()}
+        self.error_label.hide()  # shown again below if this try is refused too
         try:
             new_targets = Targets(**values)
-        except ValidationError as exc:
-            first = exc.errors()[0]
-            where = ".".join(str(p) for p in first.get("loc", ()))
-            return self._show(f"targets.{where}: {first.get('msg')}, got {first.get('input')!r}")
+        except ValidationError as exc:  # in the user's words: the field's label, the display unit
+            return self._show(messages.validation_message(exc, self.doc.unit_system, prefix="targets"))
         project = self.doc.project
         changes = {
             "name": self.name_edit.text().strip() or project.name,
@@ -114,7 +114,7 @@ class ProjectDetailsDialog(QDialog):
         try:
             cmds = [commands.SetProjectField(self.doc, k, v) for k, v in changed.items()]
         except ValidationError as exc:
-            return self._show(str(exc.errors()[0].get("msg")))
+            return self._show(messages.validation_message(exc, self.doc.unit_system))
         with self.doc.macro("Edit project details"):
             for cmd in cmds:
                 self.doc.push(cmd)
@@ -124,4 +124,10 @@ class ProjectDetailsDialog(QDialog):
     def _show(self, text: str) -> str:
         self.error_label.setText(text)
         self.error_label.show()
+        # a wrapped message needs more height than the dialog had: grow to show all of it
+        layout = self.layout()
+        layout.activate()
+        needed = layout.totalHeightForWidth(self.width()) if layout.hasHeightForWidth() else layout.sizeHint().height()
+        if needed > self.height():
+            self.resize(self.width(), needed)
         return text
