@@ -8,8 +8,8 @@ GUI's editors show them under the box that was refused.
 - :func:`field_problem`: one refused value, e.g. ``"Length must be more than 0 m; you entered −5 m"``.
 - :func:`problems` / :func:`validation_message`: every error of a ``pydantic.ValidationError`` in
   those words (the CLI keeps the file path in front: ``"alternatives[0].segments[2].length_m — …"``).
-- :func:`value_required`, :func:`unreadable_entry`, :func:`unknown_unit`, :func:`wrong_kind`: what
-  :func:`app.units.parse` says about a typed entry it cannot take ("35 gpm is a volume flow —
+- :func:`value_required`, :func:`unreadable_entry`, :func:`unknown_unit`, :func:`wrong_kind` (from
+  :mod:`app.fields`, re-exported): what :func:`app.units.parse` says about a typed entry it cannot take ("35 gpm is a volume flow —
   choose Volume flow, or give a mass flow such as 1200 kg/h").
 """
 
@@ -21,198 +21,24 @@ from dataclasses import dataclass
 from typing import Any, Iterable, Mapping, Optional, Sequence, Union
 
 from app import units
-
-Path = Union[str, Sequence[Union[str, int]]]
-
-
-@dataclass(frozen=True)
-class FieldInfo:
-    """What the user calls a field and the :mod:`app.units` quantity it holds ("" when not a number)."""
-
-    label: str
-    quantity: str = ""
-
-
-# --------------------------------------------------------------------------- the fields of solver.model
-
-#: Model field name -> label and quantity, as the Segment Card, Feed and dialogs label them.
-FIELDS: dict[str, FieldInfo] = {
-    # Segment
-    "name": FieldInfo("Name"),
-    "length_m": FieldInfo("Length", "length"),
-    "elevation_change_m": FieldInfo("Elevation change", "elevation"),
-    "heat_input_W_per_m": FieldInfo("Tracing power", "power_per_length"),
-    "pipe": FieldInfo("Pipe"),
-    "fittings": FieldInfo("Fittings"),
-    "insulation": FieldInfo("Insulation"),
-    "surroundings": FieldInfo("Surroundings"),
-    # Pipe
-    "bore": FieldInfo("Bore given by"),
-    "nps": FieldInfo("NPS"),
-    "schedule": FieldInfo("Schedule"),
-    "inner_diameter_m": FieldInfo("Inner diameter", "diameter"),
-    "wall_thickness_m": FieldInfo("Wall thickness", "thickness"),
-    "material": FieldInfo("Material"),
-    "roughness_m": FieldInfo("Roughness", "roughness"),
-    "wall_conductivity_W_per_mK": FieldInfo("Wall conductivity", "conductivity"),
-    # Layer
-    "thickness_m": FieldInfo("Thickness", "thickness"),
-    "conductivity_W_per_mK": FieldInfo("Thermal conductivity", "conductivity"),
-    # Fitting
-    "kind": FieldInfo("Kind"),
-    "count": FieldInfo("Count", "dimensionless"),
-    "K": FieldInfo("Loss coefficient K", "dimensionless"),
-    "label": FieldInfo("Label"),
-    # Surroundings
-    "temperature_K": FieldInfo("Air temperature", "temperature"),
-    "emissivity": FieldInfo("Surface emissivity", "dimensionless"),
-    "relative_humidity": FieldInfo("Relative humidity", "fraction"),
-    "film_coefficient_W_per_m2K": FieldInfo("Film coefficient", "film_coefficient"),
-    "wind_speed_m_per_s": FieldInfo("Wind speed", "speed"),
-    "soil_temperature_K": FieldInfo("Soil temperature", "temperature"),
-    "depth_m": FieldInfo("Depth to centreline", "depth"),
-    "soil_conductivity_W_per_mK": FieldInfo("Soil conductivity", "conductivity"),
-    "medium_temperature_K": FieldInfo("Medium temperature", "temperature"),
-    "wall_temperature_K": FieldInfo("Wall temperature", "temperature"),
-    "steam_pressure_Pa": FieldInfo("Steam pressure", "pressure"),
-    # Fluid
-    "fluid": FieldInfo("Fluid"),
-    "solute": FieldInfo("Solution"),
-    "concentration": FieldInfo("Concentration", "fraction"),
-    "rows": FieldInfo("Property table"),
-    "freezing_point_K": FieldInfo("Freezing point", "temperature"),
-    "boiling_point_K": FieldInfo("Boiling point", "temperature"),
-    "density_kg_per_m3": FieldInfo("Density", "density"),
-    "specific_heat_J_per_kgK": FieldInfo("Specific heat", "specific_heat"),
-    "viscosity_Pa_s": FieldInfo("Viscosity", "viscosity"),
-    # Feed
-    "feed": FieldInfo("Feed"),
-    "inlet_temperature_K": FieldInfo("Inlet temperature", "temperature"),
-    "inlet_pressure_Pa": FieldInfo("Inlet pressure", "pressure"),
-    "mass_flow_kg_per_s": FieldInfo("Mass flow", "mass_flow"),
-    "volume_flow_m3_per_s": FieldInfo("Volume flow", "volume_flow"),
-    # Limits
-    "limits": FieldInfo("Limits"),
-    "max_inner_wall_temperature_K": FieldInfo("Max inner-wall temperature", "temperature"),
-    "min_bulk_temperature_K": FieldInfo("Min bulk temperature", "temperature"),
-    # Targets
-    "targets": FieldInfo("Targets"),
-    "outlet_temperature_min_K": FieldInfo("Outlet temperature target (at least)", "temperature"),
-    "outlet_temperature_max_K": FieldInfo("Outlet temperature target (at most)", "temperature"),
-    "max_pressure_drop_Pa": FieldInfo("Pressure drop target (at most)", "pressure_difference"),
-    "max_heat_input_W": FieldInfo("Heat input target (at most)", "power"),
-    # Alternative, Project
-    "segments": FieldInfo("Segments"),
-    "alternatives": FieldInfo("Alternatives"),
-    "description": FieldInfo("Description"),
-    "prepared_by": FieldInfo("Prepared by"),
-    "revision": FieldInfo("Revision"),
-    "baseline": FieldInfo("Baseline"),
-    "format": FieldInfo("File format"),
-    "schema_version": FieldInfo("File version"),
-}
-
-#: (the part of the path the field sits in, field name) -> label where the bare name says too little.
-CONTEXT_FIELDS: dict[tuple[str, str], FieldInfo] = {
-    ("rows", "temperature_K"): FieldInfo("Table temperature", "temperature"),
-    ("insulation", "thickness_m"): FieldInfo("Insulation thickness", "thickness"),
-    ("insulation", "conductivity_W_per_mK"): FieldInfo("Insulation conductivity", "conductivity"),
-    ("insulation", "material"): FieldInfo("Insulation material"),
-    ("pipe", "material"): FieldInfo("Pipe material"),
-    ("fittings", "kind"): FieldInfo("Fitting"),
-    ("fittings", "label"): FieldInfo("Fitting label"),
-    ("surroundings", "kind"): FieldInfo("Outside"),
-    ("fluid", "kind"): FieldInfo("Fluid kind"),
-    ("fluid", "name"): FieldInfo("Fluid"),
-    ("segments", "name"): FieldInfo("Segment name"),
-    ("alternatives", "name"): FieldInfo("Alternative name"),
-    ("alternatives", "description"): FieldInfo("Alternative description"),
-    ("still_air", "film_coefficient_W_per_m2K"): FieldInfo("Outer film coefficient", "film_coefficient"),
-    ("wind", "film_coefficient_W_per_m2K"): FieldInfo("Outer film coefficient", "film_coefficient"),
-    ("jacket", "film_coefficient_W_per_m2K"): FieldInfo("Jacket film coefficient", "film_coefficient"),
-    ("targets", "max_inner_wall_temperature_K"): FieldInfo("Inner-wall temperature target (at most)", "temperature"),
-}
-
-#: Parts of a path that set the context of the fields below them (lists, sub-models, union tags).
-_CONTEXTS = {"rows", "insulation", "pipe", "fittings", "surroundings", "fluid", "segments", "alternatives",
-             "targets", "limits", "feed", "still_air", "wind", "buried", "jacket", "fixed_wall", "adiabatic",
-             "pure", "solution", "table"}
-_UNION_TAGS = {"pure", "solution", "table", "still_air", "wind", "buried", "jacket", "fixed_wall", "adiabatic"}
-
-#: A whole item of a list or a sub-model, for errors about the item rather than one field.
-OBJECTS: dict[str, str] = {
-    "alternatives": "Alternative", "segments": "Segment", "insulation": "Insulation layer",
-    "fittings": "Fitting", "rows": "Table row", "pipe": "Pipe", "feed": "Feed", "surroundings": "Surroundings",
-    "fluid": "Fluid", "limits": "Limits", "targets": "Targets",
-}
-
-#: Position words for items of the lists inside a segment or fluid (1-based, as people count).
-_ITEM_WORDS = {"insulation": "layer", "fittings": "fitting", "rows": "row", "segments": "segment",
-               "alternatives": "alternative"}
-
-_UNIT_SUFFIX = re.compile(
-    r"_(K|m|Pa|W|s|W_per_m|W_per_mK|W_per_m2K|m_per_s|kg_per_s|m3_per_s|kg_per_m3|J_per_kgK|Pa_s)$")
-
-
-def split_path(path: Path) -> tuple:
-    """``'alternatives[0].segments[2].length_m'`` -> ``('alternatives', 0, 'segments', 2, 'length_m')``."""
-    if not isinstance(path, str):
-        return tuple(path)
-    parts: list = []
-    for piece in path.split("."):
-        for m in re.finditer(r"([^\[\]]+)|\[(\d+)\]", piece):
-            if m.group(1) is not None:
-                parts.append(int(m.group(1)) if m.group(1).isdigit() else m.group(1))
-            else:
-                parts.append(int(m.group(2)))
-    return tuple(parts)
-
-
-def _words_of(name: str) -> str:
-    """A label from a name the table does not know: unit suffix off, words spaced, capital first."""
-    words = _UNIT_SUFFIX.sub("", name).replace("_", " ").strip()
-    return words[:1].upper() + words[1:] if words else name
-
-
-def field_info(path: Path) -> FieldInfo:
-    """The label and quantity of the field at ``path`` (a file path, a dotted path or a loc tuple).
-
-    A text that is no model path (e.g. ``"freezing point"``) comes back as a label as it is, with
-    a capital first letter.
-    """
-    parts = split_path(path)
-    names = [p for p in parts if isinstance(p, str)]
-    if not names:
-        return FieldInfo("Value")
-    name = names[-1]
-    for context in reversed(names[:-1]):
-        if context in _CONTEXTS:
-            hit = CONTEXT_FIELDS.get((context, name))
-            if hit is not None:
-                return hit
-            if context not in _UNION_TAGS and context not in ("surroundings", "fluid"):
-                break  # the nearest list or sub-model decides; tags above it do not
-    if name in FIELDS:
-        return FIELDS[name]
-    if name in OBJECTS:
-        return FieldInfo(OBJECTS[name])
-    return FieldInfo(_words_of(name))
-
-
-def field_label(path: Path) -> str:
-    """The label the user knows the field by: ``'feed.mass_flow_kg_per_s'`` -> ``'Mass flow'``."""
-    return field_info(path).label
-
-
-def item_words(path: Path, lists: Iterable[str] = ("insulation", "fittings", "rows")) -> str:
-    """Where in a list the field sits, in words: ``'insulation[1].thickness_m'`` -> ``'layer 2'``."""
-    parts = split_path(path)
-    out = []
-    for i, part in enumerate(parts[:-1]):
-        if isinstance(part, str) and part in lists and isinstance(parts[i + 1], int) and part in _ITEM_WORDS:
-            out.append(f"{_ITEM_WORDS[part]} {parts[i + 1] + 1}")
-    return ", ".join(out)
-
+from app.fields import (  # noqa: F401 - the entry wording is re-exported: callers know it as messages.*
+    FIELDS,
+    OBJECTS,
+    UNION_TAGS,
+    UNIT_SUFFIX,
+    FieldInfo,
+    Path,
+    example,
+    field_info,
+    field_label,
+    item_words,
+    needs_value,
+    split_path,
+    unknown_unit,
+    unreadable_entry,
+    value_required,
+    wrong_kind,
+)
 
 # --------------------------------------------------------------------------- values in words
 
@@ -242,117 +68,6 @@ def _limit(value: Any, quantity: str, system: str) -> str:
     if _is_number(value) and quantity:
         return units.format_exact(float(value), quantity, system)
     return f"{value}"
-
-
-#: Plain words for each kind of quantity (for "give a mass flow such as ...").
-QUANTITY_WORDS: dict[str, str] = {
-    "temperature": "temperature", "temperature_difference": "temperature difference",
-    "pressure": "pressure", "pressure_difference": "pressure difference", "length": "length",
-    "elevation": "elevation change", "diameter": "diameter", "thickness": "thickness",
-    "roughness": "roughness", "depth": "depth", "mass_flow": "mass flow", "volume_flow": "volume flow",
-    "power": "power", "power_per_length": "power per length", "heat_flux": "heat flux",
-    "film_coefficient": "film coefficient", "conductivity": "thermal conductivity", "velocity": "velocity",
-    "speed": "speed", "density": "density", "specific_heat": "specific heat", "viscosity": "viscosity",
-    "time": "time", "energy_per_mass": "energy per mass", "dimensionless": "plain number",
-    "fraction": "fraction", "mass": "mass", "volume": "volume", "area": "area", "energy": "energy",
-    "kinematic_viscosity": "kinematic viscosity", "frequency": "frequency",
-}
-
-#: An example entry of each quantity in each unit system (round, typed as a person would).
-EXAMPLES: dict[str, tuple[str, str]] = {
-    "temperature": ("80 °C", "176 °F"),
-    "temperature_difference": ("5 K", "9 °F"),
-    "pressure": ("3 bar(g) or 4 bar(a)", "45 psig or 60 psia"),
-    "pressure_difference": ("50 kPa", "7 psi"),
-    "length": ("120 m", "400 ft"),
-    "elevation": ("3 m", "10 ft"),
-    "diameter": ("52.5 mm", "2 in"),
-    "thickness": ("50 mm", "2 in"),
-    "roughness": ("0.045 mm", "0.0018 in"),
-    "depth": ("1.2 m", "4 ft"),
-    "mass_flow": ("1200 kg/h", "2600 lb/h"),
-    "volume_flow": ("8 m³/h", "35 gpm"),
-    "power": ("12 kW", "40000 Btu/h"),
-    "power_per_length": ("30 W/m", "10 W/ft"),
-    "heat_flux": ("500 W/m²", "160 Btu/(h·ft²)"),
-    "film_coefficient": ("1000 W/(m²·K)", "176 Btu/(h·ft²·°F)"),
-    "conductivity": ("0.04 W/(m·K)", "0.023 Btu/(h·ft·°F)"),
-    "velocity": ("2 m/s", "6 ft/s"),
-    "speed": ("5 m/s", "10 mph"),
-    "density": ("1000 kg/m³", "62.4 lb/ft³"),
-    "specific_heat": ("4.18 kJ/(kg·K)", "1 Btu/(lb·°F)"),
-    "viscosity": ("1 mPa·s", "1 cP"),
-    "time": ("60 s", "60 s"),
-    "energy_per_mass": ("100 kJ/kg", "43 Btu/lb"),
-    "dimensionless": ("0.9", "0.9"),
-    "fraction": ("30 %", "30 %"),
-}
-
-#: A field of the same Feed that takes the typed kind instead: (field's quantity, typed kind) -> its label.
-SIBLING_FIELDS: dict[tuple[str, str], str] = {
-    ("mass_flow", "volume_flow"): "Volume flow",
-    ("volume_flow", "mass_flow"): "Mass flow",
-}
-
-
-def _a(words: str) -> str:
-    return ("an " if words[:1].lower() in "aeio" else "a ") + words
-
-
-def example(quantity: str, system: str) -> str:
-    """A typical entry of ``quantity`` in ``system``, e.g. ``'1200 kg/h'``."""
-    si, us = EXAMPLES.get(quantity, ("", ""))
-    return re.sub(r"(\d) (?=\S)", "\\1" + units.NO_BREAK_SPACE, us if system == "US" else si)
-
-
-def _expected(quantity: str, system: str) -> str:
-    words = _a(QUANTITY_WORDS.get(quantity, quantity.replace("_", " ")))
-    ex = example(quantity, system)
-    return f"{words} such as {ex}" if ex else words
-
-
-def _with_field(field: str, text: str) -> str:
-    """``'Mass flow: ' + text`` when the field is named; a generic ``'value'`` is left out."""
-    if not field or field == "value":
-        return text
-    return f"{field_label(field)}: {text}"
-
-
-def value_required(field: str, quantity: str = "", system: str = "SI") -> str:
-    """``'Length needs a value, e.g. 120 m'``: an empty entry where one is required."""
-    return _required(field_label(field) if field and field != "value" else "This field", quantity, system)
-
-
-def _required(subject: str, quantity: str, system: str) -> str:
-    ex = example(quantity, system) if quantity else ""
-    return f"{subject} needs a value" + (f", e.g. {ex}" if ex else "")
-
-
-def unreadable_entry(text: str, quantity: str, system: str, field: str = "") -> str:
-    """An entry that does not start with a number (``'abc'``)."""
-    return _with_field(field, f"'{text.strip()}' is not a number; give {_expected(quantity, system)}")
-
-
-def unknown_unit(text: str, unit_text: str, quantity: str, system: str, field: str = "") -> str:
-    """A unit nobody defined (``'12 furlongs/fortnight'`` is fine, ``'12 foo'`` is not)."""
-    return _with_field(field, f"'{unit_text}' is not a unit Calorun knows; give {_expected(quantity, system)}")
-
-
-def wrong_kind(text: str, unit_text: str, kind: str, quantity: str, system: str, field: str = "") -> str:
-    """A unit of another kind of quantity, with the field that takes it when there is one.
-
-    ``'35 gpm is a volume flow — choose Volume flow, or give a mass flow such as 1200 kg/h'``;
-    ``'psi is a pressure unit; give a temperature such as 80 °C'``.
-    """
-    typed = QUANTITY_WORDS.get(kind, "")
-    sibling = SIBLING_FIELDS.get((quantity, kind))
-    if sibling:
-        return _with_field(field, f"{text.strip()} is {_a(typed)} — choose {sibling}, "
-                                  f"or give {_expected(quantity, system)}")
-    if typed:
-        return _with_field(field, f"{unit_text} is {_a(typed)} unit; give {_expected(quantity, system)}")
-    return _with_field(field, f"{unit_text} is not a unit of {QUANTITY_WORDS.get(quantity, quantity)}; "
-                              f"give {_expected(quantity, system)}")
 
 
 # --------------------------------------------------------------------------- refused values
@@ -401,14 +116,14 @@ def field_problem(path: Path, error: Union[str, Mapping[str, Any]], value: Any, 
         return f"{text}; you entered {entered(value, quantity, system)}"
     if kind in _NOT_A_NUMBER:
         if value is None:
-            return _required(subject, quantity, system)
+            return needs_value(subject, quantity, system)
         return f"{subject} must be a number; you entered {entered(value, '', system)}"
     if kind == "finite_number":
         return f"{subject} must be a finite number; you entered {entered(value, '', system)}"
     if kind == "int_from_float":
         return f"{subject} must be a whole number; you entered {entered(value, '', system)}"
     if kind == "missing":
-        return _required(subject, quantity, system)
+        return needs_value(subject, quantity, system)
     if kind == "extra_forbidden":
         name = split_path(path)[-1] if split_path(path) else "?"
         return f"'{name}' is not a setting Calorun knows here; remove it or check its spelling"
@@ -528,7 +243,7 @@ def _scrub(text: str) -> str:
     """Model field names in a message -> the user's labels (lower case inside a sentence)."""
     def one(m: re.Match) -> str:
         name = m.group(0)
-        if name in FIELDS or _UNIT_SUFFIX.search(name):
+        if name in FIELDS or UNIT_SUFFIX.search(name):
             label = field_label(name)
             return label if label.isupper() or label[:3].isupper() else label[:1].lower() + label[1:]
         return name.replace("_", " ")
@@ -574,7 +289,7 @@ def input_error_message(exc, system: str) -> str:
 def _strip_tags(loc: tuple) -> tuple:
     """The file path leaves out the union tag pydantic puts after ``fluid``/``surroundings``."""
     return tuple(p for i, p in enumerate(loc)
-                 if not (isinstance(p, str) and p in _UNION_TAGS and i > 0 and loc[i - 1] in ("fluid", "surroundings")))
+                 if not (isinstance(p, str) and p in UNION_TAGS and i > 0 and loc[i - 1] in ("fluid", "surroundings")))
 
 
 def path_text(loc: Sequence) -> str:

@@ -11,7 +11,7 @@ adds standard atmosphere, 101 325 Pa.
 
 Every table and view writes numbers through :func:`format_value` (one format: thin-space digit
 groups, a true minus sign, no exponents, a unit prefix picked from the quantity's ladder).
-Messages about entries it cannot read are worded by :mod:`app.messages`.
+Messages about entries it cannot read are worded with the field labels of :mod:`app.fields`.
 """
 
 from __future__ import annotations
@@ -21,6 +21,8 @@ import re
 from dataclasses import dataclass
 from functools import lru_cache
 from typing import Literal
+
+from app import fields
 
 UnitSystem = Literal["SI", "US"]
 UNIT_SYSTEMS: tuple[UnitSystem, ...] = ("SI", "US")
@@ -180,7 +182,7 @@ def label(quantity: str, system: UnitSystem) -> str:
 # they keep plain machine-readable numbers.
 
 THIN_SPACE = "\u2009"
-NO_BREAK_SPACE = "\u00a0"
+NO_BREAK_SPACE = fields.NO_BREAK_SPACE
 MINUS = "\u2212"
 
 # Step to a smaller unit below this magnitude, to a larger one at or above the other.
@@ -462,12 +464,10 @@ def parse(text: str, quantity: str, system: UnitSystem, field: str = "value") ->
     ``"Mass flow: 35 gpm is a volume flow — choose Volume flow, or give a mass flow such as
     1200 kg/h"``. Never a unit library's own wording.
     """
-    from app import messages  # the wording; it imports this module
-
     raw = _plain_text(text)
     info = dict(field=field, text=text, quantity=quantity)
     if not raw:
-        raise UnitParseError(messages.value_required(field, quantity, system), reason="empty", **info)
+        raise UnitParseError(fields.value_required(field, quantity, system), reason="empty", **info)
     if _NUMBER.match(raw):
         return from_display(float(raw), quantity, system)
 
@@ -486,11 +486,9 @@ def _parse_with_pint(raw: str, quantity: str, system: UnitSystem, info: dict) ->
     import pint
     import tokenize
 
-    from app import messages
-
     m = _LEADING_NUMBER.match(raw)
     if not m:
-        raise UnitParseError(messages.unreadable_entry(info["text"], info["quantity"], system, info["field"]),
+        raise UnitParseError(fields.unreadable_entry(info["text"], info["quantity"], system, info["field"]),
                              reason="unreadable", **info)
     number = float(m.group(1))
     typed_unit = m.group(2).strip()
@@ -502,16 +500,16 @@ def _parse_with_pint(raw: str, quantity: str, system: UnitSystem, info: dict) ->
     except (pint.errors.PintError, AssertionError, tokenize.TokenError, ZeroDivisionError, SyntaxError,
             TypeError, ValueError, AttributeError) as exc:
         unknown = exc.args[0] if isinstance(exc, pint.errors.UndefinedUnitError) and exc.args else typed_unit
-        raise UnitParseError(messages.unknown_unit(info["text"], unknown, info["quantity"], system, info["field"]),
+        raise UnitParseError(fields.unknown_unit(info["text"], unknown, info["quantity"], system, info["field"]),
                              reason="unknown_unit", unit_text=typed_unit, **info) from None
     try:
         si = q.to(_SI_BASE[quantity]).magnitude
     except pint.errors.DimensionalityError:
         kind = typed_kind(q)
-        raise UnitParseError(messages.wrong_kind(info["text"], typed_unit, kind, info["quantity"], system, info["field"]),
+        raise UnitParseError(fields.wrong_kind(info["text"], typed_unit, kind, info["quantity"], system, info["field"]),
                              reason="wrong_kind", typed_kind=kind, unit_text=typed_unit, **info) from None
     if not math.isfinite(si):
-        raise UnitParseError(messages.unreadable_entry(info["text"], info["quantity"], system, info["field"]),
+        raise UnitParseError(fields.unreadable_entry(info["text"], info["quantity"], system, info["field"]),
                              reason="not_finite", **info)
     return float(si)
 
