@@ -8,6 +8,8 @@ surroundings at the air temperature, with air properties at 1 atm from a fixed t
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import numpy as np
 
 from solver import correlations
@@ -32,28 +34,53 @@ def inside_nusselt(Re, Pr, f, x_over_d, boundary, rel_rough):
     return out
 
 
+AIR_TABLE = Path(__file__).with_name("data") / "air_1atm.csv"
+
+
 class AirAtOneAtmosphere:
     """Air properties at 1 atm on 1 K knots from 150 K to 900 K, from the CoolProp air model.
 
-    Built once per process (the knots are fixed, so it cannot change an answer);
-    linear interpolation in temperature is well within 0.1 % for these smooth functions.
+    The knots are fixed, so the table cannot change an answer. It ships with the package
+    (``solver/data/air_1atm.csv``, written by ``scripts/make_air_table.py`` from :func:`from_coolprop`
+    with every digit kept), so a line carrying a table fluid never needs to import CoolProp; a test
+    checks the file against CoolProp. Linear interpolation in temperature is well within 0.1 % for
+    these smooth functions.
     """
 
     _instance = None
+    T_min_K, T_max_K = 150.0, 900.0
 
-    def __init__(self):
+    def __init__(self, t_knots: np.ndarray, nu: np.ndarray, alpha: np.ndarray, k: np.ndarray):
+        self.t_knots = t_knots
+        self.nu = nu  # kinematic viscosity [m²/s]
+        self.alpha = alpha  # thermal diffusivity [m²/s]
+        self.k = k  # thermal conductivity [W/(m·K)]
+
+    @classmethod
+    def from_coolprop(cls) -> "AirAtOneAtmosphere":
+        """The table computed afresh from CoolProp's air model (what the shipped file holds)."""
         air = fluid_model(PureFluid(name="Air"))
-        self.t_knots = np.arange(150.0, 901.0, 1.0)
-        ap = air.props(self.t_knots, np.full(self.t_knots.shape, AMBIENT_PRESSURE_PA))
-        self.nu = ap.mu / ap.rho  # kinematic viscosity [m²/s]
-        self.alpha = ap.k / (ap.rho * ap.cp)  # thermal diffusivity [m²/s]
-        self.k = ap.k
-        self.T_min_K, self.T_max_K = 150.0, 900.0
+        t_knots = np.arange(cls.T_min_K, cls.T_max_K + 1.0, 1.0)
+        ap = air.props(t_knots, np.full(t_knots.shape, AMBIENT_PRESSURE_PA))
+        return cls(t_knots, ap.mu / ap.rho, ap.k / (ap.rho * ap.cp), ap.k)
+
+    @classmethod
+    def from_file(cls, path: Path = AIR_TABLE) -> "AirAtOneAtmosphere":
+        data = np.loadtxt(path, delimiter=",", comments="#")
+        return cls(data[:, 0], data[:, 1], data[:, 2], data[:, 3])
+
+    def write(self, path: Path = AIR_TABLE) -> None:
+        """Write the table with every digit (repr round-trips a float64 exactly)."""
+        lines = ["# Air at 1 atm (101 325 Pa) from CoolProp's air model; written by scripts/make_air_table.py",
+                 "# T [K], kinematic viscosity [m2/s], thermal diffusivity [m2/s], conductivity [W/(m K)]"]
+        lines += [f"{t!r},{a!r},{b!r},{c!r}" for t, a, b, c in
+                  zip(self.t_knots.tolist(), self.nu.tolist(), self.alpha.tolist(), self.k.tolist())]
+        path.write_text("\n".join(lines) + "\n", encoding="utf-8")
 
     @classmethod
     def get(cls) -> "AirAtOneAtmosphere":
         if cls._instance is None:
-            cls._instance = cls()
+            cls._instance = cls.from_file() if AIR_TABLE.exists() else cls.from_coolprop()
         return cls._instance
 
     def at(self, t):
