@@ -204,7 +204,7 @@ def test_profiles_curves_show_the_result_in_display_units(qtbot, doc):
     assert panel.limit_lines["max_wall"].value() == pytest.approx(140.0)
     assert not panel.limit_lines["min_bulk"].isVisible()
     # a boundary at every segment start and at the outlet
-    visible = [t.value() for t, _b in panel._boundaries if t.isVisible()]
+    visible = list(panel.boundary_lines[0].positions)
     assert sorted(visible) == pytest.approx([s.x_start_m for s in result.segments] + [result.segments[-1].x_end_m])
 
     doc.set_unit_system("US")

@@ -2,12 +2,18 @@
 
 Two stacked plots share the position axis: bulk, inner-wall and outer-surface temperature
 (saturation temperature dashed where the fluid has one), and pressure. Segment boundaries are
-vertical lines named after the segment that starts there; the alternative's limits are dashed
-horizontal lines, named in the right-hand margin at their height so no label ever covers a curve.
-Every axis keeps a sensible minimum span (a line that holds its temperature does not blow
-round-off up into a slope) and tick labels never use exponents. Curves are created once and
-updated with ``setData``; arrays are converted to the display unit system on the way in. When a
-solve fails the last curves stay and a note says they are stale.
+vertical lines (one item per plot) named after the segment that starts there; the alternative's
+limits are dashed horizontal lines, named in the right-hand margin at their height so no label
+ever covers a curve. Every axis keeps a sensible minimum span (a line that holds its temperature
+does not blow round-off up into a slope) and tick labels never use exponents. Curves are created
+once and updated with ``setData``; arrays are converted to the display unit system on the way in.
+When a solve fails the last curves stay and a note says they are stale.
+
+Cheap to update after an edit (an edit is followed by its result, so only the result redraws):
+the axis ranges are computed here from the result, rounded to nice values and kept while the new
+curves still fill them (the axes then keep their pictures); segment names and boundaries change
+only with the segment layout, limit lines only with the limits or the unit system; dense curves
+are thinned to the extremes of each pixel column and drawn without antialiasing.
 """
 
 from __future__ import annotations
@@ -52,6 +58,87 @@ def min_span(quantity: str, system: str) -> float:
     return MIN_SPAN_SI[quantity] * unit(quantity, system).scale  # a span: the scale, no offset
 
 
+#: A kept value range must be filled this much by the new data (share of its span), else the axis
+#: moves: small edits leave the axes (and their cached pictures) alone, a big change still fills
+#: the plot. x moves sooner: empty width at the outlet end reads as a missing piece of line.
+FILL_SHARE = {"x": 0.9, "y": 0.6}
+
+
+def nice_step(span: float) -> float:
+    """The smallest of 1, 2, 2.5 and 5 × 10^k that is at least ``span`` (> 0)."""
+    base = 10.0 ** math.floor(math.log10(span))
+    for m in (1.0, 2.0, 2.5, 5.0, 10.0):
+        if m * base >= span * (1 - 1e-12):
+            return m * base
+    return 10.0 * base
+
+
+def value_range(lo: float, hi: float, smallest: float) -> tuple[float, float]:
+    """A view range for data between ``lo`` and ``hi``: at least ``smallest`` wide (centred on the
+    data), a little room at both ends, and bounds rounded outward to a nice step of about 1/40 of the span."""
+    if hi - lo < smallest:
+        mid = (lo + hi) / 2
+        lo, hi = mid - smallest / 2, mid + smallest / 2
+    pad = 0.04 * (hi - lo)
+    lo, hi = lo - pad, hi + pad
+    step = nice_step((hi - lo) / 40)
+    return math.floor(lo / step) * step, math.ceil(hi / step) * step
+
+
+def position_range(lo: float, hi: float) -> tuple[float, float]:
+    """A view range for positions ``lo``..``hi``: 2 % room at both ends, so the inlet and outlet
+    boundaries are not drawn on the frame, and the outlet end rounded up to a nice step of about
+    1/40 of the span, so a line made a little longer still fits."""
+    pad = 0.02 * (hi - lo) if hi > lo else 1.0
+    step = nice_step((hi - lo + 2 * pad) / 40)
+    return lo - pad, math.ceil((hi + pad) / step) * step
+
+
+def keeps(current: tuple[float, float], lo: float, hi: float, smallest: float, share: float) -> bool:
+    """True if the view range ``current`` still suits data ``lo``..``hi``: the data lie inside it
+    (clear of the frame) and fill at least ``share`` of it (a span below ``smallest`` counts as ``smallest``)."""
+    c0, c1 = current
+    span = c1 - c0
+    if not (span > 0 and math.isfinite(span)):
+        return False
+    margin = 0.01 * span
+    return c0 + margin <= lo and hi <= c1 - margin and max(hi - lo, smallest) >= share * span
+
+
+def thin(x: np.ndarray, y: np.ndarray, x0: float, x1: float, columns: int) -> tuple[np.ndarray, np.ndarray]:
+    """The points of a curve worth drawing at ``columns`` pixels across ``x0``..``x1``: where there
+    are more than two points per pixel column, each column keeps its lowest and its highest point
+    (so no peak is lost), plus the first and last point of the curve; points outside the view go,
+    except one beyond each edge so the line still runs to the frame. ``x`` must be sorted; a curve
+    with gaps (non-finite values) is returned whole, as its gaps would otherwise be bridged."""
+    n = x.size
+    if columns < 1 or n <= 2 * columns + 2 or not x1 > x0 or not np.isfinite(y).all():
+        return x, y
+    i0 = max(0, int(np.searchsorted(x, x0, "left")) - 1)
+    i1 = min(n, int(np.searchsorted(x, x1, "right")) + 1)
+    xs, ys = x[i0:i1], y[i0:i1]
+    if xs.size <= 2 * columns + 2:
+        keep = np.arange(xs.size)
+    else:
+        col = np.clip(((xs - x0) * (columns / (x1 - x0))).astype(np.int64), -1, columns)
+        new_col = np.empty(xs.size, dtype=bool)
+        new_col[0] = True
+        np.not_equal(col[1:], col[:-1], out=new_col[1:])
+        starts = np.flatnonzero(new_col)  # x sorted: each column is one run
+        counts = np.diff(starts, append=xs.size)
+        at = np.arange(xs.size)
+        mask = np.zeros(xs.size, dtype=bool)
+        for extreme in (np.minimum, np.maximum):  # the last point of each column at its extreme value
+            hit = ys == np.repeat(extreme.reduceat(ys, starts), counts)
+            mask[np.maximum.reduceat(np.where(hit, at, -1), starts)] = True
+        mask[[0, -1]] = True
+        keep = np.flatnonzero(mask)
+    idx = keep + i0
+    if i0 > 0 or i1 < n:  # the curve's own ends stay, so it still starts and ends where the line does
+        idx = np.unique(np.concatenate(([0], idx, [n - 1])))
+    return x[idx], y[idx]
+
+
 class _PlainAxis(pg.AxisItem):
     """An axis whose tick labels are plain decimals, never exponent form ("2e-05", "1.2e+04")."""
 
@@ -65,23 +152,15 @@ class _PlainAxis(pg.AxisItem):
         return out
 
 
-class _GridLines(pg.GraphicsObject):
-    """Grid lines of a plot at its axes' ticks, drawn behind the curves in solid colours.
+class _AcrossView(pg.GraphicsObject):
+    """An item that draws across the whole visible view of a plot (its bounds follow the view)."""
 
-    Same places and strengths as pyqtgraph's own grid (``showGrid``), whose faint lines are drawn
-    with transparency over the whole view by each axis: blending those cost ~10 ms per repaint.
-    On the plain plot background a colour mixed in advance looks the same and draws quickly.
-    """
-
-    def __init__(self, plot: pg.PlotItem, alpha: float, colour: str, background: str):
+    def __init__(self, plot: pg.PlotItem, z: float):
         super().__init__()
         self.plot = plot
-        self.alpha = alpha
-        self._ink = style.qcolor(colour)
-        self._paper = style.qcolor(background)
         self.setAcceptedMouseButtons(Qt.NoButton)
         self.setAcceptHoverEvents(False)
-        self.setZValue(-1000)
+        self.setZValue(z)
         plot.vb.sigRangeChanged.connect(self._moved)
         plot.vb.sigResized.connect(self._moved)
 
@@ -91,6 +170,48 @@ class _GridLines(pg.GraphicsObject):
 
     def boundingRect(self) -> QRectF:
         return self.plot.vb.viewRect()
+
+
+class _BoundaryLines(_AcrossView):
+    """Every segment boundary of a plot as one item: vertical lines at ``positions`` (display
+    units) from the bottom of the view to its top, behind the curves. One item instead of one
+    line item per boundary: a 60-segment line has 61 boundaries per plot."""
+
+    def __init__(self, plot: pg.PlotItem, pen: QPen):
+        super().__init__(plot, z=-500)  # above the grid, below the curves
+        self.pen = QPen(pen)
+        self.pen.setCosmetic(True)
+        self.positions: tuple[float, ...] = ()
+
+    def set_positions(self, positions) -> None:
+        positions = tuple(float(v) for v in positions)
+        if positions != self.positions:
+            self.positions = positions
+            self.update()
+
+    def paint(self, p, *_args) -> None:
+        rect = self.plot.vb.viewRect()
+        lines = [QLineF(v, rect.top(), v, rect.bottom()) for v in self.positions if rect.left() <= v <= rect.right()]
+        if lines:
+            p.setRenderHint(p.RenderHint.Antialiasing, False)
+            p.setPen(self.pen)
+            p.drawLines(lines)
+
+
+class _GridLines(_AcrossView):
+    """Grid lines of a plot at its axes' ticks, drawn behind the curves in solid colours.
+
+    Same places and strengths as pyqtgraph's own grid (``showGrid``), whose faint lines are drawn
+    with transparency over the whole view by each axis: blending those cost ~10 ms per repaint.
+    On the plain plot background a colour mixed in advance looks the same and draws quickly.
+    """
+
+    def __init__(self, plot: pg.PlotItem, alpha: float, colour: str, background: str):
+        super().__init__(plot, z=-1000)
+        self.alpha = alpha
+        self._ink = style.qcolor(colour)
+        self._paper = style.qcolor(background)
+        self._drawn: tuple = ((), [])  # (view rect and size, [(pen, lines)]): a repaint of an unmoved view reuses them
 
     def _mixed(self, alpha: float) -> QColor:
         a = min(1.0, max(0.0, alpha / 255.0))
@@ -103,6 +224,17 @@ class _GridLines(pg.GraphicsObject):
         vb = self.plot.vb
         rect = vb.viewRect()
         p.setRenderHint(p.RenderHint.Antialiasing, False)
+        key = (rect.getRect(), vb.width(), vb.height())
+        if self._drawn[0] != key:
+            self._drawn = (key, self._strokes(rect))
+        for pen, lines in self._drawn[1]:
+            p.setPen(pen)
+            p.drawLines(lines)
+
+    def _strokes(self, rect: QRectF) -> list[tuple[QPen, list[QLineF]]]:
+        """The grid's lines in ``rect`` (view coordinates), grouped by pen, strongest level last."""
+        vb = self.plot.vb
+        strokes = []
         grid = int(min(255, max(0, self.alpha * 255)))
         for name, lo, hi, pixels in (("bottom", rect.left(), rect.right(), vb.width()),
                                      ("left", rect.top(), rect.bottom(), vb.height())):
@@ -115,13 +247,13 @@ class _GridLines(pg.GraphicsObject):
                 alpha = 255 / (i + 1) * grid / 255.0 * min(1.0, max(0.0, 0.05 * pixels / (len(ticks) + 1)))
                 pen = QPen(self._mixed(alpha), 0)
                 pen.setCosmetic(True)
-                p.setPen(pen)
                 if name == "bottom":
                     lines = [QLineF(v, rect.top(), v, rect.bottom()) for v in ticks if lo <= v <= hi]
                 else:
                     lines = [QLineF(rect.left(), v, rect.right(), v) for v in ticks if lo <= v <= hi]
                 if lines:
-                    p.drawLines(lines)
+                    strokes.append((pen, lines))
+        return strokes
 
 
 class LegendStrip(QWidget):
@@ -207,9 +339,13 @@ class ProfilesPanel(QWidget):
     """``ProfilesPanel(doc)``: plots of the current result; observes the Document.
 
     Public for tests and other panels: ``curves`` (dict of PlotDataItem: bulk, inner_wall,
-    outer_surface, saturation, pressure), ``temperature_plot``, ``pressure_plot``,
-    ``readout`` (QLabel), ``stale_note`` (QLabel), ``marker_lines``, ``limit_lines``,
-    :meth:`readout_at` (x_m -> text).
+    outer_surface, saturation, pressure; dense curves hold thinned data, see :func:`thin`),
+    ``temperature_plot``, ``pressure_plot``, ``readout`` (QLabel), ``stale_note`` (QLabel),
+    ``marker_lines``, ``limit_lines``, ``boundary_lines`` (one per plot; ``positions`` in display
+    units), :meth:`readout_at` (x_m -> text).
+
+    It listens to results, not to edits: every edit of the current alternative is followed by a
+    result (or a failure), so reacting to the edit too would only paint the plots twice.
     """
 
     def __init__(self, doc, parent=None):
@@ -218,8 +354,16 @@ class ProfilesPanel(QWidget):
         self.setObjectName("Profiles")
         self.setWindowTitle("Profiles")
         self._result = None  # the result on screen (may be stale)
-        self._boundaries: list[tuple[pg.InfiniteLine, pg.InfiniteLine]] = []
         self._hover_x_m: float = math.nan
+        self._layout_key: tuple = ()  # (unit system, segment starts, ends and names) on screen
+        self._limits_key: tuple = ()  # (unit system, limit values) on screen
+        self._top_ticks: list = []  # the segment names last given to the top axis
+        self._display_data: dict[str, tuple[np.ndarray, np.ndarray]] = {}  # curve key -> full (x, y), display units
+        self._drawn_key: tuple = ()  # (data id, view x range, pixel width) the curves were thinned for
+        self._follow_x = True  # False once the user pans or zooms the position axis
+        self._follow_y: dict[int, bool] = {}  # plot id -> value axis follows the results
+        self._range_system = ""  # unit system the view ranges were computed in
+        self._refreshing = False
         self._boundary_names: list[tuple[float, float, str]] = []
         self._labels_system = ""  # unit system the axis labels were last written in
         self._short_labels: dict[int, tuple[str, bool]] = {}  # plot id -> (system, value-axis title short)
@@ -274,24 +418,33 @@ class ProfilesPanel(QWidget):
         # the names are measured with the font they are drawn in, so an elided name always fits
         self._name_font = QFont(self.font())
         self._name_font.setPointSizeF(max(7.0, self._name_font.pointSizeF() - 0.5))
-        self.top_axis.setStyle(tickLength=0, autoExpandTextSpace=True, hideOverlappingLabels=False,
+        # hideOverlappingLabels=0: the names are elided to fit their segments, so none runs past the
+        # axis; pyqtgraph's default 15 px allowance widens the axis's bounds over both side axes,
+        # and every change of the names would then repaint those too
+        self.top_axis.setStyle(tickLength=0, autoExpandTextSpace=True, hideOverlappingLabels=0,
                                tickFont=self._name_font)
         self.top_axis.setGrid(False)
         self.top_axis.setHeight(22)
 
         self.curves: dict[str, pg.PlotDataItem] = {}
         for key, (name, _attr, line, width) in TEMPERATURE_CURVES.items():
-            curve = pg.PlotDataItem([], [], pen=style.curve_pen(key, width, line), name=name, antialias=True)
+            curve = pg.PlotDataItem([], [], pen=style.curve_pen(key, width, line), name=name, antialias=False)
             # saturation can sit far from the other curves: show it where in range, never squash the view
             self.temperature_plot.addItem(curve, ignoreBounds=(key == "saturation"))
             self.curves[key] = curve
         self.curves["pressure"] = self.pressure_plot.plot(
-            [], [], pen=style.curve_pen("pressure", 2.2), name="Pressure", antialias=True
+            [], [], pen=style.curve_pen("pressure", 2.2), name="Pressure", antialias=False
         )
         self.legend.set_entries([(c.name(), c.opts["pen"]) for c in self.curves.values()])
-        # an invisible curve through the limits so auto-range keeps them in view
-        self._limit_extent = pg.PlotCurveItem([], [], pen=pg.mkPen(0, 0, 0, 0))
-        self.temperature_plot.addItem(self._limit_extent)
+        boundary_pen = pg.mkPen(style.CURVE_COLOURS["boundary"], width=1)
+        self.boundary_lines = [_BoundaryLines(plot, boundary_pen) for plot in (self.temperature_plot, self.pressure_plot)]
+        for plot, lines in zip((self.temperature_plot, self.pressure_plot), self.boundary_lines):
+            plot.vb.addItem(lines, ignoreBounds=True)
+            # the ranges are set here from each result (_set_ranges); pyqtgraph's auto-range would
+            # move the axes, and so redraw them, at every result
+            plot.vb.disableAutoRange()
+            self._follow_y[id(plot)] = True
+            plot.vb.sigRangeChangedManually.connect(lambda mask, plot=plot: self._moved_by_user(plot, mask))
 
         # limit lines are named in the right-hand margin at their height, never over the curves
         self.limit_lines: dict[str, pg.InfiniteLine] = {}
@@ -356,10 +509,11 @@ class ProfilesPanel(QWidget):
         self.temperature_plot.vb.sigResized.connect(self._layout_boundary_labels)
         self.temperature_plot.vb.sigRangeChanged.connect(self._layout_limit_labels)
         self.temperature_plot.vb.sigResized.connect(self._layout_limit_labels)
+        self.temperature_plot.vb.sigXRangeChanged.connect(self._draw_curves)
+        self.temperature_plot.vb.sigResized.connect(self._draw_curves)
         doc.result_ready.connect(self._on_result)
         doc.solve_failed.connect(self._on_failed)
         doc.units_changed.connect(lambda _s: self.refresh())
-        doc.project_changed.connect(self._update_limits)
         doc.project_replaced.connect(self._on_replaced)
         doc.current_alternative_changed.connect(lambda _i: self._on_replaced())
         doc.position_marked.connect(self.mark_position)
@@ -382,12 +536,23 @@ class ProfilesPanel(QWidget):
                 f"<b>Stale:</b> the last edit could not be solved, so the curves show the previous result. {message}"
             )
         self.stale_note.show()
+        self._update_limits()  # an edited limit shows even when the line could not be solved
 
     def _on_replaced(self) -> None:
         self._result = getattr(self.doc, "result", None)
         self.stale_note.hide()
         self.mark_position(math.nan)
+        self._follow_x = True  # another line: its own view
+        for plot in (self.temperature_plot, self.pressure_plot):
+            self._follow_y[id(plot)] = True
         self.refresh()
+
+    def _moved_by_user(self, plot: pg.PlotItem, mask) -> None:
+        """A pan or zoom by the user: that axis stays where the user put it until another line is shown."""
+        if mask[0]:
+            self._follow_x = False
+        if mask[1]:
+            self._follow_y[id(plot)] = False
 
     def _show_in_legend(self, curve, show: bool) -> None:
         """A curve with nothing to draw (no saturation for this fluid) leaves the legend."""
@@ -404,73 +569,134 @@ class ProfilesPanel(QWidget):
             for plot, quantity in ((self.temperature_plot, "temperature"), (self.pressure_plot, "pressure")):
                 plot.vb.setLimits(minYRange=min_span(quantity, system))
         res = self._result
-        if res is None:
+        self._refreshing = True  # the curves are drawn once, after the ranges are set
+        try:
+            if res is None:
+                self._display_data = {}
+                self._set_boundaries([], system)
+                self.readout.setText(f"<span style='color:{style.INK_MUTED}'>No result yet.</span>")
+            else:
+                prof = res.profile
+                x = _display(prof.x_m, "length", system)
+                data = {}
+                for key, (_name, attr, _line, _w) in TEMPERATURE_CURVES.items():
+                    data[key] = (x, _display(getattr(prof, attr), "temperature", system))
+                data["pressure"] = (x, _display(prof.pressure_Pa, "pressure", system))
+                self._display_data = data
+                has_sat = bool(np.isfinite(data["saturation"][1]).any())
+                self.curves["saturation"].setVisible(has_sat)
+                self._show_in_legend(self.curves["saturation"], has_sat)
+                self._set_boundaries(res.segments, system)
+                if math.isfinite(self._hover_x_m):
+                    self.show_cursor(self._hover_x_m)
+                else:
+                    self.readout.setText(
+                        f"<span style='color:{style.INK_MUTED}'>Point at the plots to read the values at a position.</span>"
+                    )
+            self._update_limits()
+            self._set_ranges()
+        finally:
+            self._refreshing = False
+        self._drawn_key = ()  # new data: draw whatever the view
+        self._draw_curves()
+        self.mark_position(self._marked_x_m)
+
+    def _limit_values(self) -> list[float]:
+        """The limits shown as lines, in display units."""
+        return [line.value() for line in self.limit_lines.values() if line.isVisible()]
+
+    def _set_ranges(self) -> None:
+        """Set each axis's range from the result (never pyqtgraph's auto-range), before any paint.
+
+        The range is rounded to nice values and kept while the new data still fill it (see
+        :func:`keeps`), so a small edit leaves the axes as they were and they are not redrawn.
+        An axis the user panned or zoomed stays put; one the user set back to automatic from the
+        plot's menu follows the results again.
+        """
+        data = self._display_data
+        system = self.doc.unit_system
+        new_system = system != self._range_system
+        self._range_system = system
+        if new_system:  # a range the user set is in the old units: show the whole line again
+            self._follow_x = True
+            self._follow_y = {key: True for key in self._follow_y}
+        for plot in (self.temperature_plot, self.pressure_plot):
+            auto_x, auto_y = plot.vb.state["autoRange"]
+            if auto_x or auto_y:  # "View all" / "Auto" from the plot's menu: follow the results again
+                self._follow_x = self._follow_x or bool(auto_x)
+                self._follow_y[id(plot)] = self._follow_y[id(plot)] or bool(auto_y)
+                plot.vb.disableAutoRange()
+        if not data:
+            return
+        x = data["bulk"][0]
+        if x.size == 0:
+            return
+        tvb, pvb = self.temperature_plot.vb, self.pressure_plot.vb
+        x_range = None
+        if self._follow_x:
+            lo, hi = float(x[0]), float(x[-1])
+            if new_system or not keeps(tvb.viewRange()[0], lo, hi, 0.0, FILL_SHARE["x"]):
+                x_range = position_range(lo, hi)
+        temps = [data[k][1] for k in ("bulk", "inner_wall", "outer_surface")]
+        t_lo = min(float(np.nanmin(t)) for t in temps)
+        t_hi = max(float(np.nanmax(t)) for t in temps)
+        limits = self._limit_values()
+        if limits:
+            t_lo, t_hi = min(t_lo, *limits), max(t_hi, *limits)
+        p = data["pressure"][1]
+        for vb, plot, lo, hi, quantity in ((tvb, self.temperature_plot, t_lo, t_hi, "temperature"),
+                                           (pvb, self.pressure_plot, float(np.nanmin(p)), float(np.nanmax(p)), "pressure")):
+            y_range = None
+            smallest = min_span(quantity, system)
+            if self._follow_y[id(plot)] and math.isfinite(lo) and math.isfinite(hi):
+                if new_system or not keeps(vb.viewRange()[1], lo, hi, smallest, FILL_SHARE["y"]):
+                    y_range = value_range(lo, hi, smallest)
+            if vb is tvb and x_range is not None:
+                vb.setRange(xRange=x_range, yRange=y_range, padding=0.0)
+            elif y_range is not None:
+                vb.setRange(yRange=y_range, padding=0.0)
+
+    def _draw_curves(self, *_args) -> None:
+        """Give the curves their data, thinned to about two points per pixel column of the view.
+
+        Run after each result and when the view's position range or width changes (a zoom shows
+        the detail again). Sparse curves (under one point per two pixels) keep antialiasing; dense
+        ones draw without it (there it hardly shows, and costs most of a curve's paint).
+        """
+        if self._refreshing:
+            return
+        vb = self.temperature_plot.vb
+        (x0, x1), _ = vb.viewRange()
+        columns = int(vb.width()) if vb.width() >= 50 else 1000  # not laid out yet: a typical width
+        key = (id(self._display_data), round(x0, 9), round(x1, 9), columns)
+        if key == self._drawn_key:
+            return
+        self._drawn_key = key
+        if not self._display_data:
             for c in self.curves.values():
                 c.setData([], [])
-            self._set_boundaries([], system)
-            self.readout.setText(f"<span style='color:{style.INK_MUTED}'>No result yet.</span>")
-        else:
-            prof = res.profile
-            x = _display(prof.x_m, "length", system)
-            for key, (_name, attr, _line, _w) in TEMPERATURE_CURVES.items():
-                y = _display(getattr(prof, attr), "temperature", system)
-                if key == "saturation":
-                    has_sat = bool(np.isfinite(y).any())
-                    self.curves[key].setVisible(has_sat)
-                    self.curves[key].setData(x, y, connect="finite")
-                    self._show_in_legend(self.curves[key], has_sat)
-                else:
-                    self.curves[key].setData(x, y)
-            self.curves["pressure"].setData(x, _display(prof.pressure_Pa, "pressure", system))
-            self._set_boundaries(res.segments, system)
-            if math.isfinite(self._hover_x_m):
-                self.show_cursor(self._hover_x_m)
+            return
+        for name, curve in self.curves.items():
+            x, y = self._display_data[name]
+            xt, yt = thin(x, y, x0, x1, columns)
+            smooth = xt.size < columns / 2
+            if name == "saturation":
+                curve.setData(xt, yt, connect="finite", antialias=smooth)
             else:
-                self.readout.setText(
-                    f"<span style='color:{style.INK_MUTED}'>Point at the plots to read the values at a position.</span>"
-                )
-        self._update_limits()
-        self.mark_position(self._marked_x_m)
-        self._settle_ranges()
-
-    def _settle_ranges(self) -> None:
-        """Apply the pending auto-range now rather than at the start of the next paint.
-
-        pyqtgraph moves the view range in ``prepareForPaint``; done there, the moved axes and
-        segment labels ask for a second full repaint right after the first. Settling here gives
-        one repaint per result.
-        """
-        for plot in (self.temperature_plot, self.pressure_plot):
-            plot.vb.prepareForPaint()
+                curve.setData(xt, yt, antialias=smooth)
 
     def _set_boundaries(self, spans, system: str) -> None:
-        """Vertical lines at each segment start (named) and at the outlet; a pool of lines is reused."""
-        wanted = len(spans) + (1 if spans else 0)
-        while len(self._boundaries) < wanted:
-            pen = pg.mkPen(style.CURVE_COLOURS["boundary"], width=1)
-            top = pg.InfiniteLine(angle=90, movable=False, pen=pen)
-            bottom = pg.InfiniteLine(angle=90, movable=False, pen=pen)
-            self.temperature_plot.addItem(top, ignoreBounds=True)
-            self.pressure_plot.addItem(bottom, ignoreBounds=True)
-            self._boundaries.append((top, bottom))
-        for k, (top, bottom) in enumerate(self._boundaries):
-            if k < len(spans):
-                xd = float(to_display(spans[k].x_start_m, "length", system))
-                text = spans[k].name
-            elif k < wanted:
-                xd = float(to_display(spans[-1].x_end_m, "length", system))
-                text = ""
-            else:
-                top.hide()
-                bottom.hide()
-                continue
-            if top.value() != xd:  # the segment layout often stays as it was
-                top.setValue(xd)
-                bottom.setValue(xd)
-            top.show()
-            bottom.show()
-        self._boundary_names = [(float(to_display(sp.x_start_m, "length", system)),
-                                 float(to_display(sp.x_end_m, "length", system)), sp.name) for sp in spans]
+        """Lines at each segment start and at the outlet, and the names; only when the layout changes."""
+        names = [(float(to_display(sp.x_start_m, "length", system)),
+                  float(to_display(sp.x_end_m, "length", system)), sp.name) for sp in spans]
+        key = (system, tuple(names))
+        if key == self._layout_key:  # an edit seldom moves the segments: keep lines and names
+            return
+        self._layout_key = key
+        positions = [start for start, _end, _name in names] + ([names[-1][1]] if names else [])
+        for lines in self.boundary_lines:
+            lines.set_positions(positions)
+        self._boundary_names = names
         self._layout_boundary_labels()
 
     def _layout_boundary_labels(self, *_args) -> None:
@@ -490,7 +716,9 @@ class ProfilesPanel(QWidget):
             text = fm.elidedText(name, Qt.ElideRight, room) if room > 0 else ""
             if text and len(text.rstrip("…")) >= min(2, len(name)) and fm.horizontalAdvance(text) <= room:
                 ticks.append(((lo + hi) / 2, text))
-        self.top_axis.setTicks([ticks, []])
+        if ticks != self._top_ticks:  # setTicks throws the axis's picture away, even for equal ticks
+            self._top_ticks = ticks
+            self.top_axis.setTicks([ticks, []])
 
     def segment_name_at(self, x_display: float) -> str:
         """The full name of the segment at position ``x_display`` (display units), or ""."""
@@ -500,13 +728,17 @@ class ProfilesPanel(QWidget):
         return ""
 
     def _update_limits(self) -> None:
+        """Show the current alternative's limits; nothing is touched while they and the units stay."""
         system = self.doc.unit_system
         limits = self.doc.current_alternative.limits
         values = {
             "max_wall": limits.max_inner_wall_temperature_K,
             "min_bulk": limits.min_bulk_temperature_K,
         }
-        extent = []
+        shown_key = (system, tuple(values.values()))
+        if shown_key == self._limits_key:
+            return
+        self._limits_key = shown_key
         for key, value in values.items():
             line, label = self.limit_lines[key], self.limit_labels[key]
             if value is None:
@@ -522,14 +754,10 @@ class ProfilesPanel(QWidget):
                 label.setText(text)
                 label.setToolTip(f"{full}: {shown} (a limit of this alternative, set in the Feed)")
             line.show()
-            extent.append(yd)
-        if extent and self._result is not None:
-            x0 = float(to_display(self._result.profile.x_m[0], "length", system))
-            self._limit_extent.setData([x0] * len(extent), extent)
-        else:
-            self._limit_extent.setData([], [])
         self._fit_margin()
         self._layout_limit_labels()
+        if not self._refreshing:  # a new limit outside the view (a failed solve keeps the curves)
+            self._set_ranges()
 
     def _fit_margin(self) -> None:
         """Give both plots a right margin as wide as the widest limit name (none without limits)."""
