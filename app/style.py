@@ -128,6 +128,13 @@ def severity_style(severity: str) -> SeverityStyle:
 
 
 def qcolor(hex_colour: str, alpha: int = 255):
+    """A new QColor for ``hex_colour`` (callers may change it); the parsing is done once per colour."""
+    c = _parsed_colour(hex_colour, alpha)
+    return type(c)(c)
+
+
+@lru_cache(maxsize=256)
+def _parsed_colour(hex_colour: str, alpha: int):
     from PySide6.QtGui import QColor
 
     c = QColor(hex_colour)

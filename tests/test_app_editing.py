@@ -291,6 +291,50 @@ def test_line_strip_captions_fit_their_blocks_or_say_all_in_the_tooltip(win):
     assert "25.0 W/m" in said and "50.0 mm" in said and "wind 6.0 m/s" in said
 
 
+def test_line_strip_shows_an_edit_that_leaves_the_blocks_where_they_were(qtbot, doc):
+    """The strip keeps each block's picture until what it shows changes: an edit that moves no
+    block (fittings, wind, elevation, insulation, units) must still show at once, in the edited
+    block only. What a user would notice if it did not: a stale number on the strip."""
+    strip = LineStrip(doc)
+    qtbot.addWidget(strip)
+    strip.resize(1280, 220)
+    strip.show()
+    canvas = strip.canvas
+
+    def picture():
+        canvas.repaint()
+        return canvas.grab().toImage()
+
+    def block(image, i):
+        return image.copy(canvas.block_rects()[i].toRect())
+
+    def texts(i):
+        return " ".join(c.text for c in strip.captions(i))
+
+    edits = [  # (segment, field, value, what its block says afterwards)
+        (0, "fittings", [Fitting(count=7)], "×7"),
+        (1, "surroundings.wind_speed_m_per_s", 9.0, "9.0 m/s"),
+        (2, "elevation_change_m", -2.0, "2.00 m"),
+        (1, "insulation", [Layer(thickness_m=0.1, conductivity_W_per_mK=0.04)], "100 mm"),
+    ]
+    for i, field, value, said in edits:
+        before = picture()
+        rects = canvas.block_rects()
+        doc.push(C.SetSegmentField(doc, 0, i, field, value))
+        assert canvas.block_rects() == rects  # the edit moved no block
+        after = picture()
+        assert said in texts(i), (field, texts(i))
+        assert block(after, i) != block(before, i), field
+        for j in range(len(rects)):
+            if j != i:
+                assert block(after, j) == block(before, j), (field, j)
+    before = picture()
+    doc.set_unit_system("US")  # 12 m is 39.4 ft (1 ft = 0.3048 m, exact)
+    after = picture()
+    assert "39.4 ft" in texts(0)
+    assert all(block(after, j) != block(before, j) for j in range(3))
+
+
 def test_segment_card_dimension_line_fits_the_default_dock(qtbot, doc):
     card = SegmentCard(doc)
     qtbot.addWidget(card)

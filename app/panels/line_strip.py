@@ -6,18 +6,21 @@ clickable). The block shows the wall model with Calorun's own symbols (drawn by
 measured: one that does not fit is shortened (a compact wording first, then an ellipsis) and
 the block's tooltip gives it in full. Click selects, drag reorders; insert, duplicate, delete
 and move are the shared actions of :class:`app.segment_actions.SegmentActions`. The strip keeps
-no copy of the design: it reads ``doc.current_alternative`` on every paint.
+no copy of the design: it reads ``doc.current_alternative`` on every paint (block pictures and
+captions are cached by what they show, so only changed blocks in view are drawn again).
 """
 
 from __future__ import annotations
 
 import html
 import math
-from dataclasses import dataclass
+from collections import OrderedDict
+from dataclasses import dataclass, replace
+from functools import lru_cache
 from typing import Optional
 
 from PySide6.QtCore import QPointF, QRect, QRectF, QSize, Qt, Signal
-from PySide6.QtGui import QFont, QFontMetrics, QPainter, QPen, QPixmap, QPolygonF
+from PySide6.QtGui import QColor, QFont, QFontMetrics, QPainter, QPen, QPixmap, QPolygonF
 from PySide6.QtWidgets import (
     QApplication,
     QLabel,
@@ -54,6 +57,33 @@ LEFT_MARGIN = 64  # px: flow arrow
 RIGHT_MARGIN = 30
 CANVAS_HEIGHT = 150
 PIPE_CENTRE_Y = 84
+BLOCK_PAD = 2  # px kept around a block's picture: pens and antialiasing reach a little past its edges
+BLOCK_CACHE_SIZE = 400  # block pictures kept (a 60-segment line in view twice over, with hover/selection)
+BLOCK_CACHE_BYTES = 32 * 2**20  # and at most this much memory for them (a few full views on a large screen)
+CAPTION_CACHE_SIZE = 400
+
+
+def segment_key(seg) -> tuple:
+    """Everything of a segment that its block shows (name, length, elevation, wall, fittings)."""
+    return (seg.name, seg.length_m, seg.elevation_change_m, seg.heat_input_W_per_m,
+            tuple(layer.thickness_m for layer in seg.insulation), tuple(f.count for f in seg.fittings),
+            tuple(seg.surroundings.__dict__.items()))
+
+
+def _bytes(pix: QPixmap) -> int:
+    return pix.width() * pix.height() * 4
+
+
+@lru_cache(maxsize=64)
+def _colour(hex_colour: str) -> QColor:
+    """A shared colour for painting (never changed: setPen/setBrush copy it)."""
+    return style.qcolor(hex_colour)
+
+
+@lru_cache(maxsize=64)
+def _pen(hex_colour: str, width: float) -> QPen:
+    """A shared pen for painting (never changed: setPen copies it)."""
+    return QPen(style.qcolor(hex_colour), width)
 
 
 def block_widths(lengths: list[float], available: float, minimum: float = MIN_BLOCK_WIDTH) -> list[float]:
@@ -219,8 +249,11 @@ class StripCanvas(QWidget):
         self._press_pos: Optional[QPointF] = None
         self._dragging = False
         self._drop_gap = -1
-        self._pixmap: Optional[QPixmap] = None  # the strip as last drawn (see paintEvent)
+        self._pixmap: Optional[QPixmap] = None  # what is in view, as last drawn (see paintEvent)
         self._pixmap_key: tuple = ()
+        self._blocks: OrderedDict[tuple, QPixmap] = OrderedDict()  # block pictures, least recently used first
+        self._block_bytes = 0  # memory the block pictures take
+        self._caption_cache: OrderedDict[tuple, list[Caption]] = OrderedDict()
         self.setAccessibleName("Line Strip")
 
     # ---- geometry
@@ -262,105 +295,172 @@ class StripCanvas(QWidget):
     def captions(self, index: int) -> list[Caption]:
         seg = self._segments()[index]
         r = self.block_rects()[index]
-        outer = pipe_extent(seg)
-        return block_captions(seg, r, self.strip.doc.unit_system, self.font(),
-                              marked=index in self.strip.findings_by_segment(), outer=outer)
+        marked = index in self.strip.findings_by_segment()
+        local = self._block_captions(seg, segment_key(seg), r.width(), self.strip.doc.unit_system,
+                                     self.font(), self.font().key(), marked)
+        return [replace(cap, rect=cap.rect.translated(r.left(), 0)) for cap in local]
 
     # ---- painting
+    #
+    # Each block is drawn into its own pixmap, kept while what it shows is the same (its segment's
+    # drawn content, width, selection, hover, check mark, units, font), and a paint puts together
+    # only the blocks in view: an edit redraws the blocks it changed (or resized), not the strip.
+    # A block's pixmap is copied at its position rounded to a device pixel (at most half a pixel
+    # off), so a block that only moves along is not redrawn.
 
-    def _cache_key(self, findings: dict[int, str]) -> tuple:
-        """Everything the strip picture depends on; equal keys give the same picture."""
-        doc = self.strip.doc
-        system = doc.unit_system
-        segs = tuple(
-            (seg.name, seg.length_m, seg.elevation_change_m, wall_model(seg),
-             sum(layer.thickness_m for layer in seg.insulation), seg.heat_input_W_per_m > 0,
-             sum(f.count for f in seg.fittings), wall_summary(seg, system))
-            for seg in self._segments()
+    def forget_drawings(self) -> None:
+        """Drop the cached block pictures and captions (new project, other units)."""
+        self._blocks.clear()
+        self._block_bytes = 0
+        self._caption_cache.clear()
+        self._pixmap = None
+        self._pixmap_key = ()
+
+    def _block_captions(self, seg, content: tuple, width: float, system: str, base: QFont, font_key: str,
+                        marked: bool) -> list[Caption]:
+        """Captions of a block of ``width`` whose left edge is at x = 0 (measured once per content)."""
+        key = (content, width, self.height(), system, font_key, marked)
+        caps = self._caption_cache.get(key)
+        if caps is None:
+            r = QRectF(0, 4, width, self.height() - 8)
+            caps = block_captions(seg, r, system, base, marked=marked, outer=pipe_extent(seg))
+            self._caption_cache[key] = caps
+            while len(self._caption_cache) > CAPTION_CACHE_SIZE:
+                self._caption_cache.popitem(last=False)
+        else:
+            self._caption_cache.move_to_end(key)
+        return caps
+
+    def _block_pixmap(self, seg, content: tuple, key: tuple, width: float, state: str, severity: str,
+                      system: str, base: QFont, font_key: str, dpr: float) -> QPixmap:
+        """The picture of one block (left edge at x = BLOCK_PAD), drawn again only when ``key`` is new."""
+        pix = self._blocks.get(key)
+        if pix is not None:
+            self._blocks.move_to_end(key)
+            return pix
+        h = self.height()
+        pix = QPixmap(max(1, int(math.ceil((width + 2 * BLOCK_PAD) * dpr))), max(1, int(math.ceil(h * dpr))))
+        pix.setDevicePixelRatio(dpr)
+        pix.fill(_colour(style.CANVAS_BG))
+        p = QPainter(pix)
+        p.setRenderHint(QPainter.Antialiasing, True)
+        p.translate(BLOCK_PAD, 0)
+        r = QRectF(0, 4, width, h - 8)
+        # background: selection / hover
+        if state == "selected":
+            p.setPen(_pen(style.SELECTION, 2.0))
+            p.setBrush(_colour(style.SELECTION_FILL))
+            p.drawRoundedRect(r.adjusted(1, 1, -1, -1), 6, 6)
+        elif state == "hover":
+            p.setPen(Qt.NoPen)
+            p.setBrush(_colour(style.HOVER_FILL))
+            p.drawRoundedRect(r.adjusted(1, 1, -1, -1), 6, 6)
+        # the pipe with its wall model
+        paint_pipe(
+            p,
+            QRectF(0, 0, width, 0),
+            PIPE_CENTRE_Y,
+            model=wall_model(seg),
+            insulation_px=insulation_band_px(sum(layer.thickness_m for layer in seg.insulation)),
+            heat_input=seg.heat_input_W_per_m > 0,
         )
-        return (segs, system, self.width(), self.height(), self.devicePixelRatioF(), self.font().key(),
-                doc.selected_segment, self._hover, tuple(sorted(findings.items())),
-                self._dragging, self._drop_gap)
+        if severity:
+            style.paint_severity_mark(p, QRectF(r.right() - 20, r.top() + 5, 14, 14), style.severity_style(severity))
+        for cap in self._block_captions(seg, content, width, system, base, font_key, bool(severity)):
+            self._draw_caption(p, cap)
+        p.end()
+        self._blocks[key] = pix
+        self._block_bytes += _bytes(pix)
+        while len(self._blocks) > 1 and (len(self._blocks) > BLOCK_CACHE_SIZE or self._block_bytes > BLOCK_CACHE_BYTES):
+            self._block_bytes -= _bytes(self._blocks.popitem(last=False)[1])
+        return pix
 
     def paintEvent(self, event) -> None:  # noqa: N802 (Qt name)
-        # The picture is kept in a pixmap and redrawn only when what it shows changed: a result
-        # that leaves the check marks as they were, an expose or a scroll just copy it.
+        # What is in view (the scroll area's viewport; all of it when grabbed) is kept as one picture
+        # and put together again only when what it shows changed: a result that leaves the check
+        # marks as they were, or an expose, just copies it.
+        area = event.rect() | self.visibleRegion().boundingRect()
         findings = self.strip.findings_by_segment()
-        key = self._cache_key(findings)
-        if self._pixmap is None or key != self._pixmap_key:
-            dpr = self.devicePixelRatioF()
-            pix = QPixmap(max(1, int(math.ceil(self.width() * dpr))), max(1, int(math.ceil(self.height() * dpr))))
-            pix.setDevicePixelRatio(dpr)
-            painter = QPainter(pix)
-            self._render(painter, findings)
-            painter.end()
-            self._pixmap, self._pixmap_key = pix, key
-        p = QPainter(self)
-        p.drawPixmap(0, 0, self._pixmap)
-        p.end()
-
-    def _render(self, p: QPainter, findings: dict[int, str]) -> None:
-        p.setRenderHint(QPainter.Antialiasing, True)
-        p.fillRect(self.rect(), style.qcolor(style.CANVAS_BG))
         doc = self.strip.doc
-        system = doc.unit_system
         segs = self._segments()
         rects = self.block_rects()
-        selected = doc.selected_segment
+        dpr = self.devicePixelRatioF()
         base = self.font()
-        f_tiny = font_px(base, 10)
+        font_key = base.key()
+        system = doc.unit_system
+        selected = doc.selected_segment
+        left, right = area.left() - GAP, area.right() + 1 + GAP
+        shown = []  # (index, where the block's picture goes, its key)
+        for i, (seg, r) in enumerate(zip(segs, rects)):
+            if r.right() < left or r.left() > right:
+                continue
+            content = segment_key(seg)
+            state = "selected" if i == selected else "hover" if i == self._hover else ""
+            severity = findings.get(i, "")
+            key = (content, r.width(), self.height(), dpr, font_key, system, state, severity)
+            x = round((r.left() - BLOCK_PAD) * dpr) / dpr
+            shown.append((i, x, key, seg, content, r.width(), state, severity))
+        picture_key = (area.getRect(), self.width(), self.height(), dpr, font_key, len(segs),
+                       rects[-1].right() if rects else 0.0, tuple((i, x, key) for i, x, key, *_ in shown),
+                       self._dragging, self._drop_gap)
+        if self._pixmap is None or picture_key != self._pixmap_key:
+            pix = QPixmap(max(1, int(math.ceil(area.width() * dpr))), max(1, int(math.ceil(area.height() * dpr))))
+            pix.setDevicePixelRatio(dpr)
+            painter = QPainter(pix)
+            painter.translate(-area.left(), -area.top())
+            self._render(painter, findings, area=area, rects=rects, shown=shown)
+            painter.end()
+            self._pixmap, self._pixmap_key = pix, picture_key
+        p = QPainter(self)
+        p.drawPixmap(area.topLeft(), self._pixmap)
+        p.end()
+
+    def _render(self, p: QPainter, findings: dict[int, str], *, area: QRect, rects: list[QRectF],
+                shown: list[tuple]) -> None:
+        """Put the picture of ``area`` together: the flow arrows, the blocks ``shown`` (each from its
+        cached picture, drawn first if need be), the flange joints and the drop indicator."""
+        p.setRenderHint(QPainter.Antialiasing, True)
+        p.fillRect(area, _colour(style.CANVAS_BG))
+        system = self.strip.doc.unit_system
+        base = self.font()
+        font_key = base.key()
+        dpr = self.devicePixelRatioF()
         yc = PIPE_CENTRE_Y
 
-        # inlet flow arrow
-        p.setPen(QPen(style.qcolor(style.FLOW_ARROW), 2.4))
-        p.setBrush(style.qcolor(style.FLOW_ARROW))
-        ax0, ax1 = 10.0, LEFT_MARGIN - 8.0
-        p.drawLine(QPointF(ax0, yc), QPointF(ax1 - 8, yc))
-        p.drawPolygon(QPolygonF([QPointF(ax1, yc), QPointF(ax1 - 10, yc - 6), QPointF(ax1 - 10, yc + 6)]))
-        p.setFont(f_tiny)
-        p.setPen(style.qcolor(style.FLOW_ARROW))
-        p.drawText(QRectF(0, yc - 30, LEFT_MARGIN - 4, 14), Qt.AlignCenter, "Flow")
-        p.setPen(style.qcolor(style.INK_MUTED))
-        p.drawText(QRectF(0, yc + 12, LEFT_MARGIN - 4, 14), Qt.AlignCenter, "inlet")
-        if rects:
+        for _i, x, key, seg, content, width, state, severity in shown:
+            pix = self._block_pixmap(seg, content, key, width, state, severity, system, base, font_key, dpr)
+            p.drawPixmap(QPointF(x, 0), pix)
+
+        # inlet flow arrow and outlet (after the blocks: a block's picture has a margin of background)
+        if area.left() < LEFT_MARGIN:
+            f_tiny = font_px(base, 10)
+            p.setPen(_pen(style.FLOW_ARROW, 2.4))
+            p.setBrush(_colour(style.FLOW_ARROW))
+            ax0, ax1 = 10.0, LEFT_MARGIN - 8.0
+            p.drawLine(QPointF(ax0, yc), QPointF(ax1 - 8, yc))
+            p.drawPolygon(QPolygonF([QPointF(ax1, yc), QPointF(ax1 - 10, yc - 6), QPointF(ax1 - 10, yc + 6)]))
+            p.setFont(f_tiny)
+            p.setPen(_colour(style.FLOW_ARROW))
+            p.drawText(QRectF(0, yc - 30, LEFT_MARGIN - 4, 14), Qt.AlignCenter, "Flow")
+            p.setPen(_colour(style.INK_MUTED))
+            p.drawText(QRectF(0, yc + 12, LEFT_MARGIN - 4, 14), Qt.AlignCenter, "inlet")
+        if rects and rects[-1].right() - GAP < area.right() + 1:
             right = rects[-1].right()
+            p.setFont(font_px(base, 10))
+            p.setPen(_colour(style.INK_MUTED))
             p.drawText(QRectF(right + 2, yc + 12, RIGHT_MARGIN + 10, 14), Qt.AlignLeft, "out")
-            p.setPen(QPen(style.qcolor(style.PIPE_WALL), 1.6))
+            p.setPen(_pen(style.PIPE_WALL, 1.6))
             p.drawLine(QPointF(right + 4, yc), QPointF(right + RIGHT_MARGIN - 8, yc))
             p.drawLine(QPointF(right + RIGHT_MARGIN - 8, yc), QPointF(right + RIGHT_MARGIN - 13, yc - 4))
             p.drawLine(QPointF(right + RIGHT_MARGIN - 8, yc), QPointF(right + RIGHT_MARGIN - 13, yc + 4))
 
-        for i, (seg, r) in enumerate(zip(segs, rects)):
-            # background: selection / hover
-            if i == selected:
-                p.setPen(QPen(style.qcolor(style.SELECTION), 2.0))
-                p.setBrush(style.qcolor(style.SELECTION_FILL))
-                p.drawRoundedRect(r.adjusted(1, 1, -1, -1), 6, 6)
-            elif i == self._hover:
-                p.setPen(Qt.NoPen)
-                p.setBrush(style.qcolor(style.HOVER_FILL))
-                p.drawRoundedRect(r.adjusted(1, 1, -1, -1), 6, 6)
-
-            # the pipe with its wall model
-            outer = paint_pipe(
-                p,
-                QRectF(r.left(), 0, r.width(), 0),
-                yc,
-                model=wall_model(seg),
-                insulation_px=insulation_band_px(sum(layer.thickness_m for layer in seg.insulation)),
-                heat_input=seg.heat_input_W_per_m > 0,
-            )
-            if i in findings:
-                style.paint_severity_mark(p, QRectF(r.right() - 20, r.top() + 5, 14, 14),
-                                          style.severity_style(findings[i]))
-            for cap in block_captions(seg, r, system, base, marked=i in findings, outer=outer):
-                self._draw_caption(p, cap)
-
-        # flange joints between blocks
-        p.setPen(QPen(style.qcolor(style.PIPE_WALL), 2.0))
-        for a, b in zip(rects, rects[1:]):
-            x = (a.right() + b.left()) / 2
-            p.drawLine(QPointF(x, yc - BORE_HALF - 6), QPointF(x, yc + BORE_HALF + 6))
+        # flange joints between blocks (those beside a block in view)
+        if shown:
+            p.setPen(_pen(style.PIPE_WALL, 2.0))
+            first, last = shown[0][0], shown[-1][0]
+            for a, b in zip(rects[max(0, first - 1):last + 1], rects[max(1, first):last + 2]):
+                x = (a.right() + b.left()) / 2
+                p.drawLine(QPointF(x, yc - BORE_HALF - 6), QPointF(x, yc + BORE_HALF + 6))
 
         # drop indicator while dragging
         if self._dragging and self._drop_gap >= 0 and rects:
@@ -368,21 +468,21 @@ class StripCanvas(QWidget):
                 x = rects[self._drop_gap].left() - GAP / 2
             else:
                 x = rects[-1].right() + GAP / 2
-            p.setPen(QPen(style.qcolor(style.SELECTION), 3.0))
+            p.setPen(_pen(style.SELECTION, 3.0))
             p.drawLine(QPointF(x, 6), QPointF(x, self.height() - 6))
 
     @staticmethod
     def _draw_caption(p: QPainter, cap: Caption) -> None:
         p.setFont(cap.font)
         if cap.kind == "fittings":
-            p.setPen(QPen(style.qcolor(style.FITTING), 1.2))
-            p.setBrush(style.qcolor("#FFFFFF"))
+            p.setPen(_pen(style.FITTING, 1.2))
+            p.setBrush(_colour("#FFFFFF"))
             diamond(p, cap.rect.left() - 7, cap.rect.center().y())
         if cap.kind == "elevation":
-            p.setPen(QPen(style.qcolor(style.INK), 1.4))
-            p.setBrush(style.qcolor(style.INK))
+            p.setPen(_pen(style.INK, 1.4))
+            p.setBrush(_colour(style.INK))
             elevation_arrow(p, cap.rect.left() - 7, cap.rect.center().y(), cap.up)
-        p.setPen(style.qcolor(style.INK if cap.kind in ("name", "fittings") else style.INK_MUTED))
+        p.setPen(_colour(style.INK if cap.kind in ("name", "fittings") else style.INK_MUTED))
         # the rect is as wide as the text measured; a pixel or two of slack so nothing is cut
         p.drawText(cap.rect.adjusted(0, 0, 2, 0), Qt.AlignLeft | Qt.AlignVCenter, cap.text)
 
@@ -539,6 +639,9 @@ class LineStrip(QWidget):
         doc.current_alternative_changed.connect(lambda _i: self.refresh())
         doc.selection_changed.connect(lambda _i: self.refresh())
         doc.units_changed.connect(lambda _s: self.refresh())
+        # block pictures of another project or in other units will not be shown again
+        doc.project_replaced.connect(self.canvas.forget_drawings)
+        doc.units_changed.connect(lambda _s: self.canvas.forget_drawings())
         self.refresh()
 
     # ---- the shared actions under the names the strip has always used

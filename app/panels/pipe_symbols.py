@@ -160,6 +160,13 @@ _streamline_pixmaps: dict[tuple, QPixmap] = {}
 
 def _streamline(painter: QPainter, x0: float, y: float, length: float) -> None:
     """A short wavy arrow (ambient wind) from (x0, y), copied from a cached drawing of it."""
+    pix, pad, w, h, dpr = _streamline_pixmap(painter, length)
+    painter.drawPixmap(QRectF(x0 - pad, y - h / 2, w, h), pix, QRectF(0, 0, w * dpr, h * dpr))
+
+
+def _streamline_pixmap(painter: QPainter, length: float) -> tuple[QPixmap, float, float, float, float]:
+    """(pixmap, pad, width, height, device pixel ratio) of a streamline in the painter's pen and
+    brush; a wide wind block draws dozens, so :func:`paint_pipe` looks it up once per block."""
     pen, brush = painter.pen(), painter.brush()
     dev = painter.device()
     dpr = dev.devicePixelRatioF() if dev is not None else 1.0
@@ -179,7 +186,7 @@ def _streamline(painter: QPainter, x0: float, y: float, length: float) -> None:
         _stroke_streamline(q, pad, h / 2, length)
         q.end()
         _streamline_pixmaps[key] = pix
-    painter.drawPixmap(QRectF(x0 - pad, y - h / 2, w, h), pix, QRectF(0, 0, w * dpr, h * dpr))
+    return pix, pad, w, h, dpr
 
 
 def _stroke_streamline(painter: QPainter, x0: float, y: float, length: float) -> None:
@@ -294,10 +301,12 @@ def paint_pipe(
         painter.setPen(QPen(style.qcolor(style.WIND).darker(115), 1.3))
         painter.setBrush(style.qcolor(style.WIND).darker(115))
         n = max(1, int((x1 - x0 - 10) // 38))
+        pix, pad, w, h, dpr = _streamline_pixmap(painter, 22)
+        source = QRectF(0, 0, w * dpr, h * dpr)
         for k in range(n):
             xs = x0 + 6 + k * 38
-            _streamline(painter, xs, yc - outer - 7, 22)
-            _streamline(painter, xs + 10, yc + outer + 7, 22)
+            painter.drawPixmap(QRectF(xs - pad, yc - outer - 7 - h / 2, w, h), pix, source)
+            painter.drawPixmap(QRectF(xs + 10 - pad, yc + outer + 7 - h / 2, w, h), pix, source)
 
     painter.restore()
     return outer + _MARKS_OUTSIDE.get(model, 0.0)
