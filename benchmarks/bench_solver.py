@@ -10,6 +10,12 @@ Cases
    and both outlet temperatures against a fine-grid reference of our solver.
 3. Grid independence: doubling the cells, change of outlet temperature.
 4. Start-up: `calorun solve` of a sample project in a fresh interpreter.
+5. Fixed cost per segment (issue 7, edit-to-replot): CPU time of one solve of the demo
+   (5 segments), the 10-segment line, the demo's segments repeated to 60 and to 1,000
+   segments: the first call (fresh alternative, the solver's memos emptied) and warm
+   calls, median [min–max]; and a fit of the time into a per-segment and a per-cell part.
+   CPU time (``time.process_time``), because other work may share the machine.
+   ``--speed-only`` runs just this part.
 """
 
 from __future__ import annotations
@@ -26,10 +32,13 @@ ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
 
-from solver import correlations  # noqa: E402
+import numpy as np  # noqa: E402
+
+from solver import correlations, fittings as fittings_mod, line as line_mod  # noqa: E402
 from solver.catalogue import resolve_pipe  # noqa: E402
 from solver.march import solve  # noqa: E402
 from solver.model import Alternative, Feed, Layer, Pipe, PureFluid, Segment, Wind  # noqa: E402
+from solver.project_io import load_project  # noqa: E402
 
 
 def line(n_segments: int = 10) -> Alternative:
@@ -102,10 +111,80 @@ def per_cell_loop(alt: Alternative, cells_per_segment: int) -> float:
     return T
 
 
+def repeated_demo(n_segments: int, flat: bool = False) -> Alternative:
+    """The demo's first alternative with its segments repeated in order up to ``n_segments``.
+
+    ``flat``: no elevation change and a 60 bar feed, so 1,000 segments (40 km) still pass the
+    flow; the cost of a solve does not depend on either.
+    """
+    demo = load_project(ROOT / "app" / "demo_project.json").alternatives[0]
+    segs = [demo.segments[i % len(demo.segments)].model_copy(deep=True) for i in range(n_segments)]
+    if flat:
+        for s in segs:
+            s.elevation_change_m = 0.0
+        feed = demo.feed.model_copy(update={"inlet_pressure_Pa": 60e5})
+        return demo.model_copy(update={"segments": segs, "feed": feed})
+    return demo.model_copy(update={"segments": segs})
+
+
+def _cpu_ms(fn, repeat: int) -> list[float]:
+    out = []
+    for _ in range(repeat):
+        t0 = time.process_time()
+        fn()
+        out.append((time.process_time() - t0) * 1e3)
+    return out
+
+
+def per_segment_cost(repeat: int) -> None:
+    """First-call and warm CPU time of whole solves of lines of growing segment count."""
+    demo = load_project(ROOT / "app" / "demo_project.json").alternatives[0]
+    cases = [("demo, 5 segments", lambda: demo.model_copy(deep=True)),
+             ("10 segments (case 1 line)", line),
+             ("60 segments (demo x 12)", lambda: repeated_demo(60)),
+             ("1,000 segments (demo x 200, flat)", lambda: repeated_demo(1000, flat=True))]
+    solve(line(2))  # load the property tables and imports once, outside the figures
+    print("Solve CPU time per line (process_time; first call: fresh alternative and empty memos; then warm)")
+    rows = []
+    for label, make in cases:
+        first = []
+        for _ in range(3):
+            alt = make()
+            # as after opening a file: the solver's value-keyed memos (fittings, buried pipe) empty
+            fittings_mod._LOSS_CACHE.clear()
+            line_mod._buried_resistance.cache_clear()
+            t0 = time.process_time()
+            r = solve(alt)
+            first.append((time.process_time() - t0) * 1e3)
+        reps = max(3, repeat // 5) if len(alt.segments) >= 1000 else repeat
+        warm = _cpu_ms(lambda: solve(alt), reps)
+        med = statistics.median(warm)
+        rows.append((len(alt.segments), r.cells, med))
+        print(f"  {label:34s} {r.cells:7,d} cells  first {statistics.median(first):8.2f} ms   "
+              f"warm {med:8.2f} ms [{min(warm):.2f}–{max(warm):.2f}] (n={reps})")
+    # the same two lines at 8 cells per segment: with the automatic ones, a fit of
+    # time = fixed + a · segments + b · cells separates the per-segment from the per-cell cost
+    for n_seg in (60, 1000):
+        alt = repeated_demo(n_seg, flat=True)
+        r = solve(alt, cells_per_segment=8)
+        warm = _cpu_ms(lambda: solve(alt, cells_per_segment=8), max(3, repeat // 3))
+        rows.append((n_seg, r.cells, statistics.median(warm)))
+        print(f"  {n_seg:,} segments at 8 cells each {r.cells:12,d} cells  warm {statistics.median(warm):8.2f} ms "
+              f"[{min(warm):.2f}–{max(warm):.2f}] (n={len(warm)})")
+    fit_rows = rows[2:]
+    a = [[1.0, n_seg, cells] for n_seg, cells, _ in fit_rows]
+    (_, per_seg, per_cell), *_ = np.linalg.lstsq(np.array(a), np.array([t for *_, t in fit_rows]), rcond=None)
+    print(f"  fit over the 60/1,000-segment solves: {per_seg:.3f} ms per segment + {per_cell * 1e3:.2f} µs per cell")
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--repeat", type=int, default=50)
+    ap.add_argument("--speed-only", action="store_true", help="only the per-segment cost (case 5)")
     args = ap.parse_args()
+    per_segment_cost(args.repeat)
+    if args.speed_only:
+        return
 
     alt = line()
     cps = 200  # 10 segments x 200 = 2,000 cells

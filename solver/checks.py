@@ -56,9 +56,28 @@ def _n(n: float) -> str:
     return f"⟦n:{float(n):.6g}⟧"
 
 
-def _first_where(mask: np.ndarray):
+def _first_in_each(mask: np.ndarray, starts: np.ndarray, stops: np.ndarray) -> list:
+    """For each range [start, stop) of ``mask``: the first index where it holds, or None.
+
+    One pass over the mask for the whole line instead of one per segment; most masks of a
+    sound design are empty.
+    """
     idx = np.flatnonzero(mask)
-    return int(idx[0]) if idx.size else None
+    if not idx.size:
+        return [None] * len(starts)
+    pos = np.searchsorted(idx, starts)  # the first index at or after each start (or past the end)
+    first = idx[np.minimum(pos, idx.size - 1)]
+    return [k if a <= k < b else None for k, a, b in zip(first.tolist(), starts.tolist(), stops.tolist())]
+
+
+def _where_in_each(mask: np.ndarray, starts: np.ndarray, stops: np.ndarray) -> list[np.ndarray]:
+    """For each range [start, stop) of ``mask``: the indices where it holds (ascending)."""
+    idx = np.flatnonzero(mask)
+    if not idx.size:
+        return [idx] * len(starts)
+    lo = np.searchsorted(idx, starts).tolist()
+    hi = np.searchsorted(idx, stops).tolist()
+    return [idx[a:b] for a, b in zip(lo, hi)]
 
 
 def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> list[Check]:
@@ -72,16 +91,19 @@ def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> lis
     tsat = prof.saturation_temperature_K
     x = prof.x_m
 
+    node_start = np.array([s.nodes.start for s in setups])
+    node_stop = np.array([s.nodes.stop for s in setups])
+    cell_start = line.seg_first_cell
+    cell_stop = cell_start + line.cells_per_seg
+
     def per_segment(mask, severity, code, message_fn):
-        for s in setups:
-            i = _first_where(mask[s.nodes])
-            if i is not None:
-                k = s.nodes.start + i
+        for s, k in zip(setups, _first_in_each(mask, node_start, node_stop)):
+            if k is not None:
                 out.append(Check(severity, code, message_fn(s, k), segment=s.index, x_m=float(x[k])))
 
-    def cells_where(mask, s):
-        """This segment's cells (line indices) where ``mask`` holds."""
-        return np.flatnonzero(mask[s.cells]) + s.cells.start
+    def cells_where(mask):
+        """Per segment, its cells (line indices) where ``mask`` holds."""
+        return _where_in_each(mask, cell_start, cell_stop)
 
     c = _T  # temperatures in messages are tokens, shown in the user's units (see results.render_message)
 
@@ -133,8 +155,7 @@ def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> lis
 
     # flow regime (cells -> segments)
     regime = correlations.flow_regime(Re)
-    for s in setups:
-        trans = cells_where(regime == 1, s)
+    for s, trans in zip(setups, cells_where(regime == 1)):
         if trans.size:
             out.append(Check("warning", "TRANSITIONAL_FLOW",
                              f"Transitional flow (Re {_n(Re[trans].min())} to {_n(Re[trans].max())}): heat transfer and "
@@ -142,42 +163,46 @@ def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> lis
                              segment=s.index, x_m=float(x_mid[trans[0]])))
 
     # velocity (common practice ranges)
+    # per-segment extremes in one pass (max and min are exact, so the same numbers as per slice)
+    v_max_seg = np.maximum.reduceat(velocity, cell_start).tolist()
+    v_min_seg = np.minimum.reduceat(velocity, cell_start).tolist()
     for s in setups:
-        v = velocity[s.cells]
+        v_max, v_min = v_max_seg[s.index], v_min_seg[s.index]
         if fluid.compressible:
-            if v.max() > 30.0:
-                i = s.cells.start + int(np.argmax(v))
+            if v_max > 30.0:
+                i = s.cells.start + int(np.argmax(velocity[s.cells]))
                 out.append(Check("warning", "VELOCITY_HIGH",
-                                 f"Gas velocity {_v(v.max())} exceeds about {_v(30.0)} (common practice): noise, erosion "
+                                 f"Gas velocity {_v(v_max)} exceeds about {_v(30.0)} (common practice): noise, erosion "
                                  "and a large pressure drop.", segment=s.index, x_m=float(x_mid[i])))
         else:
-            if v.max() > 3.0:
-                i = s.cells.start + int(np.argmax(v))
+            if v_max > 3.0:
+                i = s.cells.start + int(np.argmax(velocity[s.cells]))
                 out.append(Check("warning", "VELOCITY_HIGH",
-                                 f"Liquid velocity {_v(v.max())} exceeds about {_v(3.0)} (common practice): erosion, noise "
+                                 f"Liquid velocity {_v(v_max)} exceeds about {_v(3.0)} (common practice): erosion, noise "
                                  "and pressure surge on valve closure.", segment=s.index, x_m=float(x_mid[i])))
-            elif v.min() < 0.3 and not any(ch.code == "VELOCITY_LOW" for ch in out):
+            elif v_min < 0.3 and not any(ch.code == "VELOCITY_LOW" for ch in out):
                 # one note for the line is enough: slow flow is usually a design choice, not a fault
-                i = s.cells.start + int(np.argmin(v))
-                slow = sum(1 for t in setups if velocity[t.cells].min() < 0.3)
+                i = s.cells.start + int(np.argmin(velocity[s.cells]))
+                slow = sum(1 for t in v_min_seg if t < 0.3)
                 more = f" ({slow} of {len(setups)} segments)" if len(setups) > 1 else ""
                 out.append(Check("info", "VELOCITY_LOW",
-                                 f"Liquid velocity {_v(v.min())} is below about {_v(0.3)}{more} (common practice): "
+                                 f"Liquid velocity {_v(v_min)} is below about {_v(0.3)}{more} (common practice): "
                                  "settling, fouling and poor heat transfer.", segment=s.index, x_m=float(x_mid[i])))
 
     # surfaces people can touch
+    ts_max_seg = np.maximum.reduceat(Ts, node_start).tolist()
+    ts_min_seg = np.minimum.reduceat(Ts, node_start).tolist()
     for s in setups:
         a = s.nodes.start
         if s.kind in ("still_air", "wind"):
-            seg_ts = Ts[s.nodes]
-            if seg_ts.max() >= BURN_THRESHOLD_K:
-                k = a + int(np.argmax(seg_ts))
+            if ts_max_seg[s.index] >= BURN_THRESHOLD_K:
+                k = a + int(np.argmax(Ts[s.nodes]))
                 out.append(Check("warning", "HOT_SURFACE",
                                  f"Outer surface reaches {c(Ts[k])}: hot enough to burn on contact (above about {_T(BURN_THRESHOLD_K)}, "
                                  "common practice). Insulate or guard for personnel protection.",
                                  segment=s.index, x_m=float(x[k])))
-            if seg_ts.min() <= COLD_CONTACT_K:
-                k = a + int(np.argmin(seg_ts))
+            if ts_min_seg[s.index] <= COLD_CONTACT_K:
+                k = a + int(np.argmin(Ts[s.nodes]))
                 out.append(Check("warning", "COLD_SURFACE",
                                  f"Outer surface falls to {c(Ts[k])}: cold enough to injure on contact (below about "
                                  f"{_T(COLD_CONTACT_K)}, common practice). Insulate or guard.", segment=s.index, x_m=float(x[k])))
@@ -197,8 +222,7 @@ def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> lis
     bad_g = regime_turb & correlations.out_of_range("gnielinski", Re=Re, Pr=Pr)
     bad_l = (regime == 0) & correlations.out_of_range("laminar_entry", Pr=Pr)
     for mask, name in ((bad_g, "Gnielinski"), (bad_l, "laminar entry")):
-        for s in setups:
-            sel = cells_where(mask, s)
+        for s, sel in zip(setups, cells_where(mask)):
             if sel.size:
                 out.append(Check("warning", "CORRELATION_RANGE",
                                  f"The {name} correlation is used outside its published range here "
@@ -211,8 +235,7 @@ def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> lis
         nu_kin, alpha, _ = air.at(t_film)
         ra = GRAVITY / t_film * np.abs(T_surface - np.nan_to_num(t_inf, nan=293.15)) * line.d_outer**3 / (nu_kin * alpha)
         bad_cc = film_mask & (ra > correlations.VALIDITY["churchill_chu"]["Ra"][1])
-        for s in setups:
-            sel = cells_where(bad_cc, s)
+        for s, sel in zip(setups, cells_where(bad_cc)):
             if sel.size:
                 out.append(Check("warning", "CORRELATION_RANGE",
                                  f"Natural convection outside the Churchill–Chu range (Ra up to {_n(ra[sel].max())}).",
@@ -246,17 +269,25 @@ def _no_flow_checks(alt, fluid, line: LineGrid, state: MarchState) -> list[Check
     q_in, t_inf, r_out_total, x_mid = line.q_in, line.t_inf, state.r_out_total, line.x_mid
     cold, hot = [], []  # (t_eq, segment, cell) per segment
     t_max_wall = alt.limits.max_inner_wall_temperature_K
+    # the settling temperature of every cell exposed to air or soil, NaN elsewhere; then per segment
+    # its extremes in one pass (max and min are exact) and the first cell that reaches them
+    exposed_seg = np.array([s.kind in ("still_air", "wind", "buried") for s in line.segments])
+    exposed = np.repeat(exposed_seg, line.cells_per_seg)
+    t_eq = np.full(line.n, np.nan)
+    t_eq[exposed] = t_inf[exposed] + q_in[exposed] * r_out_total[exposed]
+    t_eq_min = np.minimum.reduceat(t_eq, line.seg_first_cell).tolist()
+    t_eq_max = np.maximum.reduceat(t_eq, line.seg_first_cell).tolist() if t_max_wall is not None else None
     for s in line.segments:
-        if s.kind not in ("still_air", "wind", "buried"):
+        if not exposed_seg[s.index]:
             continue
         cells = s.cells
-        t_eq = t_inf[cells] + q_in[cells] * r_out_total[cells]
-        i = int(np.argmin(t_eq))
-        if t_eq[i] < limit_T:
-            cold.append((float(t_eq[i]), s, cells.start + i))
-        j = int(np.argmax(t_eq))
-        if t_max_wall is not None and q_in[cells][j] > 0 and t_eq[j] > t_max_wall:
-            hot.append((float(t_eq[j]), s, cells.start + j))
+        if t_eq_min[s.index] < limit_T:
+            i = cells.start + int(np.argmin(t_eq[cells]))
+            cold.append((float(t_eq[i]), s, i))
+        if t_eq_max is not None and t_eq_max[s.index] > t_max_wall:
+            j = cells.start + int(np.argmax(t_eq[cells]))
+            if q_in[j] > 0:
+                hot.append((float(t_eq[j]), s, j))
     out = []
     if cold:
         t_eq, s, c = min(cold, key=lambda item: item[0])
@@ -314,9 +345,8 @@ def _dew_point_checks(line: LineGrid, prof: Profile) -> list[Check]:
 def exposed_mask(line: LineGrid, prof: Profile) -> np.ndarray:
     """Nodes whose outer surface people can touch (in air)."""
     mask = np.zeros(prof.x_m.size, dtype=bool)
-    for s in line.segments:
-        if s.kind in ("still_air", "wind"):
-            mask[s.nodes] = True
+    in_air = np.array([s.kind in ("still_air", "wind") for s in line.segments])
+    mask[:] = np.repeat(in_air, line.cells_per_seg + 1)
     return mask
 
 

@@ -27,6 +27,8 @@ The solver reports out-of-range use through its Checks, not here.
 
 from __future__ import annotations
 
+import bisect
+import math
 from dataclasses import dataclass
 from fractions import Fraction
 from typing import Literal
@@ -152,6 +154,9 @@ def _build_sch40() -> tuple[np.ndarray, np.ndarray]:
 
 
 _SCH40_NPS_IN, _SCH40_BORE_M = _build_sch40()
+# the same table as plain floats, for the scalar path (one segment's bore at a time)
+_SCH40_NPS_LIST = _SCH40_NPS_IN.tolist()
+_SCH40_BORE_LIST = _SCH40_BORE_M.tolist()
 
 
 def equivalent_nps_inches(inner_diameter_m):
@@ -167,6 +172,24 @@ def equivalent_nps_inches(inner_diameter_m):
     above = y[-1] + (d - x[-1]) * (y[-1] - y[-2]) / (x[-1] - x[-2])
     below = y[0] * d / x[0]
     return np.where(d > x[-1], above, np.where(d < x[0], below, inside))
+
+
+def _equivalent_nps_inches_scalar(d: float) -> float:
+    """:func:`equivalent_nps_inches` for one float bore, in plain floats.
+
+    The same arithmetic in the same order as ``np.interp`` (bracketing point, exact hit on a
+    table bore, slope times offset plus the lower size) and the two extrapolations, so the
+    result is bit-for-bit that of the array path; it only skips numpy's per-call overhead.
+    """
+    x, y = _SCH40_BORE_LIST, _SCH40_NPS_LIST
+    if d > x[-1]:
+        return y[-1] + (d - x[-1]) * (y[-1] - y[-2]) / (x[-1] - x[-2])
+    if d < x[0]:
+        return y[0] * d / x[0]
+    j = bisect.bisect_right(x, d) - 1
+    if j == len(x) - 1 or x[j] == d:
+        return y[j]
+    return (y[j + 1] - y[j]) / (x[j + 1] - x[j]) * (d - x[j]) + y[j]
 
 
 def hooper_2k(K1, K_inf, Re, inner_diameter_m):
@@ -215,6 +238,8 @@ def fitting_K(kind: str, Re, inner_diameter_m, K=None, *, field: str = "fitting.
     Raises :class:`InputError` for an unknown kind, a custom fitting without K,
     a non-positive Reynolds number or bore.
     """
+    if isinstance(Re, (float, int)) and isinstance(inner_diameter_m, (float, int)):
+        return _fitting_K_scalar(kind, Re, inner_diameter_m, K, field, None)
     scalar = np.ndim(Re) == 0 and np.ndim(inner_diameter_m) == 0
     if kind == CUSTOM:
         if K is None or not np.isfinite(K) or K < 0:
@@ -239,11 +264,113 @@ def fitting_K(kind: str, Re, inner_diameter_m, K=None, *, field: str = "fitting.
     return float(result) if scalar else np.asarray(result, dtype=float)
 
 
+def _field_text(field: str, index) -> str:
+    """The path of a fitting's ``kind``: ``field`` itself, or ``<field>[<index>].kind`` in a list."""
+    return field if index is None else f"{field}[{index}].kind"
+
+
+@dataclass(frozen=True)
+class FittingsLoss:
+    """A segment's fittings at its bore, ready to evaluate at any Reynolds number.
+
+    ``terms``: per fitting ``(count, K1, rest)`` with K = K1/Re + rest (``K1`` None for a
+    constant K), the Re-free part worked out once with the very operations of
+    :func:`fitting_K`, so :meth:`at` gives the value of :func:`fittings_K_total` to the bit.
+    ``a``, ``b``: the sum as K(Re) = a/Re + b, the form the march uses (both the 2-K and the
+    3-K method have it at a fixed bore), solved from the values at Re 1e3 and 1e6.
+    """
+
+    terms: tuple[tuple[int, float | None, float], ...]
+    a: float
+    b: float
+
+    def at(self, Re: float) -> float:
+        """Sum of count x K at Reynolds number ``Re`` [-]."""
+        re = float(Re)
+        if not math.isfinite(re) or re <= 0:
+            if any(k1 is not None for _, k1, _ in self.terms):
+                raise InputError("Re", Re, "the Reynolds number must be positive and finite for a fitting loss")
+        total = 0.0
+        for count, k1, rest in self.terms:
+            total = total + count * (rest if k1 is None else k1 / re + rest)
+        return total
+
+
+def _fitting_terms(kind: str, d: float, K, field: str, index, Re=None) -> tuple[float | None, float]:
+    """``(K1, rest)`` of one fitting at bore ``d``: K = K1/Re + rest (K1 None: K = rest).
+
+    With ``Re`` given, it is checked where :func:`fitting_K` checks it (before the bore).
+    """
+    if kind == CUSTOM:
+        if K is None or not math.isfinite(K) or K < 0:
+            raise InputError(_k_field(_field_text(field, index)), K,
+                             "a 'custom' fitting needs a loss coefficient K >= 0")
+        return None, float(K)
+    fitting = FITTINGS.get(kind)
+    if fitting is None:
+        raise InputError(_field_text(field, index), kind, f"unknown fitting; known: {', '.join(fitting_labels())}")
+    if Re is not None and not (math.isfinite(Re) and Re > 0):
+        raise InputError("Re", Re, "the Reynolds number must be positive and finite for a fitting loss")
+    if not math.isfinite(d) or d <= 0:
+        raise InputError("inner_diameter_m", d, "the bore must be positive")
+    if fitting.method == "hooper_2k":
+        K1, K_inf = fitting.coefficients
+        return K1, K_inf * (1.0 + 1.0 / (d / INCH_M))
+    if fitting.method == "darby_3k":
+        K1, Ki, Kd = fitting.coefficients
+        return K1, Ki * (1.0 + Kd / _equivalent_nps_inches_scalar(d) ** 0.3)
+    return None, float(fitting.coefficients[0])
+
+
+def _fitting_K_scalar(kind: str, Re, inner_diameter_m, K, field: str, index) -> float:
+    """:func:`fitting_K` for a float Reynolds number and bore, in plain floats.
+
+    The same checks, messages and arithmetic (operation for operation) as the array path, so
+    the value is identical; a solve asks for a few of these per segment, where numpy's per-call
+    overhead on scalars was most of the cost. ``field`` is the path of ``kind``, or with an
+    ``index`` the prefix of a list of fittings (the path is only spelt out for an error).
+    """
+    k1, rest = _fitting_terms(kind, float(inner_diameter_m), K, field, index, Re=Re)
+    return rest if k1 is None else k1 / float(Re) + rest
+
+
+#: (kind, count, K) of each fitting and the bore -> FittingsLoss. A value key: an edited
+#: fitting or bore is a different key, and a hit holds the very numbers a fresh build gives.
+_LOSS_CACHE: dict[tuple, FittingsLoss] = {}
+_LOSS_CACHE_SIZE = 4096
+
+
+def fittings_loss(fittings: list[Fitting], inner_diameter_m: float,
+                  field_prefix: str = "fittings") -> FittingsLoss:
+    """A segment's fittings at its bore (see :class:`FittingsLoss`), remembered by value.
+
+    Errors name the fitting as :func:`fittings_K_total` does, e.g. ``fittings[2].kind``.
+    """
+    d = float(inner_diameter_m)
+    key = (tuple((f.kind, f.count, f.K) for f in fittings), d)
+    loss = _LOSS_CACHE.get(key)
+    if loss is None:
+        terms = tuple((f.count, *_fitting_terms(f.kind, d, f.K, field_prefix, i)) for i, f in enumerate(fittings))
+        probe = FittingsLoss(terms, 0.0, 0.0)
+        k1, k2 = probe.at(1e3), probe.at(1e6)
+        a = (k1 - k2) / (1e-3 - 1e-6)
+        loss = FittingsLoss(terms, a, k2 - a * 1e-6)
+        if len(_LOSS_CACHE) >= _LOSS_CACHE_SIZE:
+            _LOSS_CACHE.clear()
+        _LOSS_CACHE[key] = loss
+    return loss
+
+
 def fittings_K_total(fittings: list[Fitting], Re, inner_diameter_m, field_prefix: str = "fittings"):
     """Sum of count x K over a segment's fittings [-] (float, or array shaped like ``Re``).
 
     Errors name the fitting, e.g. ``fittings[2].kind``.
     """
+    if isinstance(Re, (float, int)) and isinstance(inner_diameter_m, (float, int)):
+        total = 0.0  # one segment at one Reynolds number: plain floats, same sum in the same order
+        for i, f in enumerate(fittings):
+            total = total + f.count * _fitting_K_scalar(f.kind, Re, inner_diameter_m, f.K, field_prefix, i)
+        return total
     total = 0.0 if np.ndim(Re) == 0 else np.zeros(np.shape(Re))
     for i, f in enumerate(fittings):
         k = fitting_K(f.kind, Re, inner_diameter_m, K=f.K, field=f"{field_prefix}[{i}].kind")

@@ -11,6 +11,7 @@ every segment repeats its boundary node so that wall values can jump there).
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass, field
 
@@ -45,6 +46,7 @@ class SegmentSetup:
     fittings: list
     cells: slice = field(default_factory=lambda: slice(0, 0))  # this segment's cells in the line's cell arrays
     nodes: slice = field(default_factory=lambda: slice(0, 0))  # its nodes in the profile (boundary nodes repeated)
+    fittings_loss: object = None  # fittings.FittingsLoss at this bore, when there are fittings
 
 
 @dataclass
@@ -103,24 +105,16 @@ def build_line(alt: Alternative, refine: float, cells_per_segment: int | None) -
     setups = _resolve_segments(alt)
     _cells_for(setups, refine, cells_per_segment)
 
-    seg_of_cell = np.concatenate([np.full(s.n_cells, s.index) for s in setups])
+    counts = np.array([s.n_cells for s in setups])
+    seg_of_cell = np.repeat(np.arange(len(setups)), counts)
     first = first_node = 0
     for s in setups:
         s.cells = slice(first, first + s.n_cells)
         s.nodes = slice(first_node, first_node + s.n_cells + 1)
         first += s.n_cells
         first_node += s.n_cells + 1
-    dx_list, x_start = [], 0.0
-    x_nodes_line = [0.0]
-    for s in setups:
-        edges = _cell_edges(s.length_m, s.n_cells, clustered=(s.index == 0))
-        dx_list.append(np.diff(edges))
-        x_nodes_line.extend((x_start + edges[1:]).tolist())
-        x_start += s.length_m
-    dx = np.concatenate(dx_list)
-    x_node = np.array(x_nodes_line)  # n+1 nodes along the whole line
+    dx, x_node = _cells_along(setups, counts, seg_of_cell)
     x_mid = 0.5 * (x_node[:-1] + x_node[1:])
-    n = dx.size
 
     def per_cell(attr):
         return np.array([getattr(s, attr) for s in setups], dtype=float)[seg_of_cell]
@@ -130,43 +124,44 @@ def build_line(alt: Alternative, refine: float, cells_per_segment: int | None) -
     kinds = np.array([s.kind for s in setups])[seg_of_cell]
     boundary = np.where(kinds == "fixed_wall", "T", "q")
 
-    # outside path pieces that do not depend on temperature
-    r_fixed_out = np.full(n, np.inf)  # for adiabatic
-    film_mask = np.zeros(n, dtype=bool)  # air film computed from temperature
-    wind_speed = np.zeros(n)
-    emissivity = np.zeros(n)
+    # outside path pieces that do not depend on temperature, per segment, then spread over its cells
+    r_fixed_seg = [math.inf] * len(setups)  # inf for adiabatic
+    film_seg = [False] * len(setups)  # air film computed from temperature
+    wind_seg = [0.0] * len(setups)
+    emissivity_seg = [0.0] * len(setups)
     for s in setups:
-        sel = s.cells
+        i = s.index
         sur = s.surroundings
         if isinstance(sur, Adiabatic):
-            r_fixed_out[sel] = np.inf
+            r_fixed_seg[i] = math.inf
         elif isinstance(sur, FixedWall):
-            r_fixed_out[sel] = 0.0
+            r_fixed_seg[i] = 0.0
         elif isinstance(sur, Jacket):
-            r_fixed_out[sel] = 1.0 / (sur.film_coefficient_W_per_m2K * math.pi * s.pipe_outer_diameter_m)
+            r_fixed_seg[i] = 1.0 / (sur.film_coefficient_W_per_m2K * math.pi * s.pipe_outer_diameter_m)
         elif isinstance(sur, Buried):
-            r_fixed_out[sel] = s.insulation_resistance + float(
-                correlations.buried_cylinder_resistance(s.outer_diameter_m, sur.depth_m, sur.soil_conductivity_W_per_mK)
-            )
+            r_fixed_seg[i] = s.insulation_resistance + _buried_resistance(
+                s.outer_diameter_m, sur.depth_m, sur.soil_conductivity_W_per_mK)
         elif isinstance(sur, (StillAir, Wind)):
             if sur.film_coefficient_W_per_m2K is not None:
-                r_fixed_out[sel] = s.insulation_resistance + 1.0 / (sur.film_coefficient_W_per_m2K * math.pi * s.outer_diameter_m)
+                r_fixed_seg[i] = s.insulation_resistance + 1.0 / (sur.film_coefficient_W_per_m2K * math.pi * s.outer_diameter_m)
             else:
-                film_mask[sel] = True
-            emissivity[sel] = sur.emissivity
+                film_seg[i] = True
+            emissivity_seg[i] = sur.emissivity
             if isinstance(sur, Wind):
-                wind_speed[sel] = sur.wind_speed_m_per_s
+                wind_seg[i] = sur.wind_speed_m_per_s
+    r_fixed_out = np.array(r_fixed_seg, dtype=float)[seg_of_cell]
+    film_mask = np.array(film_seg, dtype=bool)[seg_of_cell]
+    wind_speed = np.array(wind_seg, dtype=float)[seg_of_cell]
+    emissivity = np.array(emissivity_seg, dtype=float)[seg_of_cell]
 
     # fittings: K(Re) = A/Re + B per segment (both 2-K and 3-K methods have this form at a fixed bore)
     k_a = np.zeros(len(setups))
     k_b = np.zeros(len(setups))
     for s in setups:
         if s.fittings:
-            prefix = f"segments[{s.index}].fittings"
-            k1 = float(fittings_mod.fittings_K_total(s.fittings, 1e3, s.inner_diameter_m, field_prefix=prefix))
-            k2 = float(fittings_mod.fittings_K_total(s.fittings, 1e6, s.inner_diameter_m, field_prefix=prefix))
-            k_a[s.index] = (k1 - k2) / (1e-3 - 1e-6)
-            k_b[s.index] = k2 - k_a[s.index] * 1e-6
+            s.fittings_loss = fittings_mod.fittings_loss(s.fittings, s.inner_diameter_m,
+                                                         field_prefix=f"segments[{s.index}].fittings")
+            k_a[s.index], k_b[s.index] = s.fittings_loss.a, s.fittings_loss.b
 
     return LineGrid(
         segments=setups,
@@ -193,7 +188,7 @@ def build_line(alt: Alternative, refine: float, cells_per_segment: int | None) -
         k_a=k_a,
         k_b=k_b,
         seg_first_cell=np.cumsum([0] + [s.n_cells for s in setups[:-1]]),
-        cells_per_seg=np.array([s.n_cells for s in setups]),
+        cells_per_seg=counts,
         has_fittings=[bool(s.fittings) for s in setups],
     )
 
@@ -261,6 +256,13 @@ def _resolve_segments(alt: Alternative) -> list[SegmentSetup]:
     return setups
 
 
+@functools.lru_cache(maxsize=1024)
+def _buried_resistance(d_outer: float, depth: float, k_soil: float) -> float:
+    """correlations.buried_cylinder_resistance as a float, remembered by its three values (a pure
+    function of them, so a remembered value is the one it would compute again)."""
+    return float(correlations.buried_cylinder_resistance(d_outer, depth, k_soil))
+
+
 def _cylinder_resistance(d_inner: float, d_outer: float, k: float) -> float:
     """Conduction through a cylindrical layer per unit length, ln(Do/Di)/(2πk) [K·m/W] (closed form;
     the scalar twin of correlations.cylinder_wall_resistance, which validates arrays)."""
@@ -281,6 +283,44 @@ def _cells_for(setups: list[SegmentSetup], refine: float, cells_per_segment: int
             l_over_d = s.length_m / s.inner_diameter_m
             n = int(math.ceil(40 + 12 * math.log10(1 + l_over_d) ** 2))
         s.n_cells = max(4, int(math.ceil(n * refine)))
+
+
+def _cells_along(setups: list[SegmentSetup], counts: np.ndarray, seg_of_cell: np.ndarray):
+    """Cell lengths and the n + 1 cell edges along the whole line [m], all segments at once.
+
+    Each segment's edges are those of :func:`_cell_edges` (the same numbers: ``np.linspace``
+    is ``i · (1/n)`` with the last edge exactly 1), offset by the lengths of the segments
+    before it; only the first segment, clustered, is laid out on its own.
+    """
+    n = int(counts.sum())
+    first = setups[0]
+    edges0 = _cell_edges(first.length_m, first.n_cells, clustered=True)
+    dx = np.empty(n)
+    x_node = np.empty(n + 1)
+    x_node[0] = 0.0
+    m = first.n_cells
+    dx[:m] = np.diff(edges0)
+    x_node[1:m + 1] = edges0[1:]  # x_start 0.0 + edges, as for every segment
+    if len(setups) > 1:
+        rest = seg_of_cell[m:]
+        # position of each later cell within its segment: 0 .. n_cells - 1
+        local = np.arange(m, n) - np.repeat(np.cumsum(counts)[:-1], counts[1:])
+        length = np.array([s.length_m for s in setups], dtype=float)
+        step = 1.0 / counts.astype(float)  # linspace's step for one segment
+        lo = local * step[rest]  # linspace(0, 1, k + 1)[local] (+ 0.0 start changes nothing)
+        hi = (local + 1) * step[rest]
+        last = local == counts[rest] - 1
+        hi[last] = 1.0  # linspace sets its end point exactly
+        seg_len = length[rest]
+        edge_hi = seg_len * hi
+        dx[m:] = edge_hi - seg_len * lo
+        x_start = []
+        acc = 0.0
+        for s in setups:  # sums in flow order, as the segments are laid end to end
+            x_start.append(acc)
+            acc += s.length_m
+        x_node[m + 1:] = np.array(x_start)[rest] + edge_hi
+    return dx, x_node
 
 
 def _cell_edges(length: float, n: int, clustered: bool) -> np.ndarray:

@@ -12,7 +12,7 @@ import math
 
 import numpy as np
 
-from solver import checks as checks_mod, correlations, fittings as fittings_mod
+from solver import checks as checks_mod, correlations
 from solver.films import air_film, inside_nusselt
 from solver.line import GRAVITY, LineGrid, SegmentSetup
 from solver.model import Alternative
@@ -98,9 +98,13 @@ def _node_profiles(line: LineGrid, state: MarchState, fluid, heat_in_cell: np.nd
     ``heat_in_cell`` is the heat input per cell [W] (tracing and heating or cooling media).
     """
     # node k of a segment uses the cell downstream of it, the outlet node the cell upstream
-    node_index = [np.arange(s.cells.start, s.cells.stop + 1) for s in line.segments]
-    ni = np.concatenate(node_index)
-    ci = np.concatenate([np.minimum(nodes, s.cells.stop - 1) for s, nodes in zip(line.segments, node_index)])
+    # profile node j of segment s is line node j - s (each earlier segment repeats one boundary node)
+    segs = line.segments
+    nodes_per_seg = line.cells_per_seg + 1
+    seg_of_node = np.repeat(np.arange(len(segs)), nodes_per_seg)
+    ni = np.arange(seg_of_node.size) - seg_of_node
+    cell_stop = line.seg_first_cell + line.cells_per_seg
+    ci = np.minimum(ni, (cell_stop - 1)[seg_of_node])
     m_dot = state.m_dot
     x = line.x_node[ni]
     Tm = state.T[ni]
@@ -136,18 +140,23 @@ def _node_profiles(line: LineGrid, state: MarchState, fluid, heat_in_cell: np.nd
     t_heated = Tm + q_fluid * r_a
     q_loss = q_in - q_fluid
     # the outer surface: over insulation for air/buried; the pipe outer wall for jacket/fixed/adiabatic
-    t_surface = np.where(np.isin(line.kinds[ci], ("still_air", "wind", "buried")), t_heated - q_loss * r_ins_n, t_heated)
+    over_insulation = np.repeat([s.kind in ("still_air", "wind", "buried") for s in segs], nodes_per_seg)
+    t_surface = np.where(over_insulation, t_heated - q_loss * r_ins_n, t_heated)
     spans = []
-    dp_cell = state.dp_cell
-    for s in line.segments:
-        duty = float(np.sum(state.Q_cell[s.cells]))
-        heat_in = float(np.sum(heat_in_cell[s.cells]))
+    Q_cell, dp_cell = state.Q_cell, state.dp_cell
+    x_start = line.x_node[line.seg_first_cell].tolist()
+    x_end = line.x_node[cell_stop].tolist()
+    for s in segs:
+        a, b = s.cells.start, s.cells.stop
+        # per-segment sums as np.sum does them (pairwise), so the figures do not move at round-off
+        duty = float(np.add.reduce(Q_cell[a:b]))
+        heat_in = float(np.add.reduce(heat_in_cell[a:b]))
         spans.append(SegmentSpan(
-            index=s.index, name=s.name, x_start_m=float(line.x_node[s.cells.start]),
-            x_end_m=float(line.x_node[s.cells.stop]), inner_diameter_m=s.inner_diameter_m,
+            index=s.index, name=s.name, x_start_m=x_start[s.index],
+            x_end_m=x_end[s.index], inner_diameter_m=s.inner_diameter_m,
             outer_diameter_m=s.outer_diameter_m, node_start=s.nodes.start, node_end=s.nodes.stop - 1,
             fittings_K=_segment_K(s, Re[s.nodes]), duty_W=duty, heat_input_W=heat_in,
-            heat_loss_W=heat_in - duty, pressure_drop_Pa=float(np.sum(dp_cell[s.cells])),
+            heat_loss_W=heat_in - duty, pressure_drop_Pa=float(np.add.reduce(dp_cell[a:b])),
         ))
     prof = Profile(
         x_m=x, bulk_temperature_K=Tm, inner_wall_temperature_K=t_inner_wall,
@@ -160,7 +169,8 @@ def _node_profiles(line: LineGrid, state: MarchState, fluid, heat_in_cell: np.nd
 
 
 def _segment_K(s: SegmentSetup, re_nodes: np.ndarray) -> float:
+    """The segment's fittings K at the mean Reynolds number of its nodes."""
     if not s.fittings:
         return 0.0
-    return float(fittings_mod.fittings_K_total(s.fittings, float(np.mean(re_nodes)), s.inner_diameter_m,
-                                               field_prefix=f"segments[{s.index}].fittings"))
+    # the mean as ndarray.mean computes it (pairwise sum / count), without its per-call overhead
+    return s.fittings_loss.at(float(np.add.reduce(re_nodes)) / re_nodes.size)
