@@ -17,9 +17,12 @@ messages:
 - The current alternative (Profiles, Key Figures, Checks): :meth:`request_solve` is debounced (a
   burst of edits gives one solve) and its outcome arrives as :attr:`result_ready` or
   :attr:`solve_failed`. A solve known to be quick (a few ms of CPU last time, same fluid) runs on
-  the GUI thread ahead of the repaint, so the edit and its result are drawn together; anything
-  else runs on the worker thread. Each request carries the model generation it was made from; a
-  result that arrives after the model has moved on is dropped and the newest model is solved next.
+  the GUI thread ahead of the repaint, so the edit and its result are drawn together; so does a
+  longer one (up to :data:`SYNC_SOLVE_LIMIT_S`) for an edit that does not follow another
+  closely, as on the worker it would fight the repaint for the interpreter; edits arriving while
+  such a solve runs count as a burst. Anything else runs on the worker thread. Each request
+  carries the model generation it was made from; a result that arrives after the model has moved
+  on is dropped and the newest model is solved next.
 - Any alternatives (Side-by-Side, the report): :meth:`request_results` solves those not held yet
   on the worker thread, one job each, behind the current alternative's solves; each outcome is
   announced by :attr:`alternative_solved` to the alternatives that still have that content. A
@@ -52,8 +55,13 @@ log = logging.getLogger(__name__)
 
 #: debounce interval of a burst of edits [ms]
 SOLVE_DEBOUNCE_MS = 30
-#: a solve that took less than this last time runs on the GUI thread, ahead of the repaint [s]
-SYNC_SOLVE_LIMIT_S = 0.035
+#: a solve that took less than this (CPU) last time runs on the GUI thread, ahead of the repaint,
+#: for an edit that does not follow another closely [s]. Not only quick ones: on the worker a solve
+#: shares the interpreter with the repaint of the edit and took 2-3x its CPU time in wall time, and
+#: the edit was drawn twice (60-segment line, ~45 ms CPU: edit -> drawn 194 ms inline vs 221 ms on
+#: the worker, medians of 7 runs on a loaded 2-core machine). The price: an edit made while it
+#: solves waits for it, so the limit keeps that wait short
+SYNC_SOLVE_LIMIT_S = 0.1
 #: outcomes kept in the content-keyed cache (a 1,000-cell result is a few hundred kB)
 RESULT_CACHE_SIZE = 48
 _SOLVE_EVENT = QEvent.Type(QEvent.registerEventType())
@@ -349,8 +357,10 @@ class Document(QObject):
         previous one restart the timer, so a burst gives one solve. A solve whose last run took
         less than ``SYNC_SOLVE_LIMIT_S`` of CPU with the same fluid runs on the GUI thread ahead
         of the repaint (only while the worker is idle: one solve at a time); anything else (first
-        solve, new fluid, slow line) runs on the worker. A result already held is published
-        without solving.
+        solve, new fluid, very long line, the trailing solve of a burst) runs on the worker. An
+        inline solve counts as a request until it ends, so edits queued behind it are a burst
+        (typing gets one more solve, on the worker, not one inline solve per edit). A result
+        already held is published without solving.
         """
         now = time.perf_counter()
         quiet = (now - self._last_request) * 1000.0 > SOLVE_DEBOUNCE_MS and not self._timer.isActive()
@@ -359,9 +369,9 @@ class Document(QObject):
         if quiet:
             if (self._running_generation is None and self.last_solve_cpu_seconds < SYNC_SOLVE_LIMIT_S
                     and self._last_solved_fluid == self.current_alternative.fluid):
-                # quick solve: run it ahead of the repaint (a high-priority posted event), so the
-                # edit and its result are drawn in one pass; typing is not affected (edits
-                # commit when a field is left, not per keystroke)
+                # known solve time: run it ahead of the repaint (a high-priority posted event), so
+                # the edit and its result are drawn in one pass; typing is not affected (edits
+                # commit when a field is left, not per keystroke; see _solve_inline for bursts)
                 QCoreApplication.postEvent(self, QEvent(_SOLVE_EVENT), Qt.HighEventPriority.value)
             else:
                 self._start_solve()  # hand the model to the worker now
@@ -405,6 +415,8 @@ class Document(QObject):
         self._in_flight[ticket.key] = ticket
         self._running_generation = ticket.generation
         _SolveJob(ticket, sink).run()
+        # edits that queued up while the GUI thread solved arrive in a burst: debounce them
+        self._last_request = time.perf_counter()
         self._on_solved(box[0])
 
     def _start_solve(self) -> None:

@@ -107,12 +107,16 @@ class AlternativesPanel(QWidget):
         self.list.currentRowChanged.connect(self._on_row_changed)
         self.list.itemChanged.connect(self._on_item_edited)
         doc.project_replaced.connect(self.refresh)
-        doc.project_changed.connect(self.refresh)
+        doc.project_changed.connect(self._on_project_changed)
         doc.current_alternative_changed.connect(self._on_current_changed)
         # a new result changes one row's mark: only that row is looked at
         doc.result_ready.connect(lambda _r: self._update_marks({self.doc.current_alternative.name}))
         # other alternatives' results, where the Document holds and announces them
         self._verdicts: dict[str, tuple] = {}  # name -> (alternative, targets, verdict or None) last judged
+        self._rows: list = []  # the alternative object each row was built from
+        self._shape: tuple = ()  # (names, baseline) the list was built for
+        self._targets = None  # the targets the marks were judged against
+        self._current_verdict = None  # (result, targets, verdict) of the current alternative
         solved = getattr(doc, "alternative_solved", None)
         self._told_of_results = solved is not None
         if solved is not None:
@@ -132,17 +136,17 @@ class AlternativesPanel(QWidget):
                 item = QListWidgetItem(alt.name)
                 item.setData(Qt.UserRole, alt.name)
                 item.setFlags(item.flags() | Qt.ItemIsEditable)
-                n = len(alt.segments)
-                length = sum(s.length_m for s in alt.segments)
-                item.setToolTip(f"{alt.name}\n{n} segment{'s' if n != 1 else ''}, {length:g} m" + (f"\n{alt.description}" if alt.description else ""))
+                item.setToolTip(self._base_tip(alt, base))
                 if alt.name == base:
                     font = QFont(item.font())
                     font.setBold(True)
                     item.setFont(font)
                     item.setText(f"{alt.name}")
-                    item.setToolTip(item.toolTip() + "\nBaseline: the others are compared against it")
                     item.setData(Qt.AccessibleDescriptionRole, "baseline")
                 self.list.addItem(item)
+            self._rows = list(project.alternatives)
+            self._shape = (tuple(a.name for a in project.alternatives), base)
+            self._targets = project.targets
             self._mark_baseline(base)
             self._update_marks()
             self.list.setCurrentRow(self.doc.current_index)
@@ -150,6 +154,42 @@ class AlternativesPanel(QWidget):
             self._fit_height()
         finally:
             self._updating = False
+
+    @staticmethod
+    def _base_tip(alt, base: str) -> str:
+        """A row's tooltip before its verdict: name, size, description, and whether it is the baseline."""
+        n = len(alt.segments)
+        length = sum(s.length_m for s in alt.segments)
+        tip = f"{alt.name}\n{n} segment{'s' if n != 1 else ''}, {length:g} m" + (f"\n{alt.description}" if alt.description else "")
+        return tip + ("\nBaseline: the others are compared against it" if alt.name == base else "")
+
+    def _on_project_changed(self) -> None:
+        """An edit: rebuild the list only when its names, order or baseline changed; otherwise
+        refresh the tooltip and mark of the rows whose alternative changed (an edit of a segment
+        changes one row, and its mark again when the result arrives)."""
+        project = self.doc.project
+        base = project.baseline_alternative().name
+        alts = project.alternatives
+        if (tuple(a.name for a in alts), base) != self._shape or len(self._rows) != self.list.count():
+            self.refresh()
+            return
+        targets_changed = project.targets is not self._targets
+        self._targets = project.targets
+        changed = set()
+        was_updating, self._updating = self._updating, True  # these item changes are no renames
+        try:
+            for i, alt in enumerate(alts):
+                if alt is not self._rows[i]:  # the model swaps in a new object on every change
+                    self._rows[i] = alt
+                    self.list.item(i).setData(Qt.UserRole + 1, self._base_tip(alt, base))
+                    changed.add(alt.name)
+        finally:
+            self._updating = was_updating
+        if targets_changed:
+            self._update_marks()  # every verdict is judged against the targets
+        elif changed:
+            self._update_marks(changed)
+        self._update_buttons()
 
     def _fit_height(self) -> None:
         """Make the list as tall as its rows (up to MAX_VISIBLE_ROWS), and the panel no taller than
@@ -172,7 +212,14 @@ class AlternativesPanel(QWidget):
         if name == self.doc.current_alternative.name:
             # the last result stays on screen until the next one arrives, here as in every view
             result = self.doc.result if not self.doc.result_is_stale else None
-            return design_verdict(targets, result) if result is not None and result.name == name else None
+            if result is None or result.name != name:
+                return None
+            held = self._current_verdict  # every edit asks again before its result arrives
+            if held is not None and held[0] is result and held[1] is targets:
+                return held[2]
+            verdict = design_verdict(targets, result)
+            self._current_verdict = (result, targets, verdict)
+            return verdict
         result_for = getattr(self.doc, "result_for", None)
         alt = next((a for a in self.doc.project.alternatives if a.name == name), None)
         if alt is None or not callable(result_for):
@@ -210,14 +257,13 @@ class AlternativesPanel(QWidget):
             verdict = self.verdict_for(name)
             base_tip = item.data(Qt.UserRole + 1) or item.toolTip()
             item.setData(Qt.UserRole + 1, base_tip)
-            if verdict is None:
-                item.setIcon(_blank_icon())
-                item.setData(Qt.UserRole + 2, "")
-                item.setToolTip(base_tip)
-            else:
-                item.setIcon(style.severity_icon(VERDICT_MARKS[verdict.level]))
-                item.setData(Qt.UserRole + 2, verdict.level)
-                item.setToolTip(f"{base_tip}\n{style.VERDICT_SYMBOLS[verdict.level]} {verdict.text()}")
+            level = verdict.level if verdict is not None else ""
+            tip = base_tip if verdict is None else f"{base_tip}\n{style.VERDICT_SYMBOLS[level]} {verdict.text()}"
+            if item.data(Qt.UserRole + 2) == level and item.toolTip() == tip:
+                continue  # as shown: each item change makes the list look at its rows again
+            item.setIcon(_blank_icon() if verdict is None else style.severity_icon(VERDICT_MARKS[level]))
+            item.setData(Qt.UserRole + 2, level)
+            item.setToolTip(tip)
 
     def _mark_baseline(self, base: str) -> None:
         for i in range(self.list.count()):

@@ -220,6 +220,8 @@ class FeedPanel(EditorPanel):
     def __init__(self, doc, parent: Optional[QWidget] = None):
         super().__init__(doc, parent)
         self._shown_alt = doc.current_index
+        self._shown_model = None  # the alternative (a value: every change swaps in a new one) and unit
+        self._shown_system = ""  # system the widgets were last filled from
         self._last_tables: dict = {}  # alternative name -> its last user-defined table fluid
         self.table_dialog: Optional[FluidTableDialog] = None
         col = QVBoxLayout(self)
@@ -306,7 +308,7 @@ class FeedPanel(EditorPanel):
         col.addWidget(box)
         col.addStretch(1)
 
-        doc.project_changed.connect(self.refresh)
+        doc.project_changed.connect(self._on_project_changed)
         doc.project_replaced.connect(self.refresh)
         doc.current_alternative_changed.connect(self._on_alternative)
         doc.units_changed.connect(self._on_units)
@@ -325,6 +327,8 @@ class FeedPanel(EditorPanel):
 
     def refresh(self, *_args) -> None:
         self._shown_alt = self.doc.current_index
+        self._shown_model = self.doc.current_alternative
+        self._shown_system = self.doc.unit_system
         self.remember_table()
         self.loading = True
         try:
@@ -332,7 +336,37 @@ class FeedPanel(EditorPanel):
         finally:
             self.loading = False
 
+    def _on_project_changed(self) -> None:
+        """An edit: fill only the sections whose values differ from what the widgets show.
+
+        Most edits change a segment (nothing here changes) or one field typed into this panel
+        (shown already). Values are compared, so the source of the edit does not matter.
+        """
+        alt, prev = self.doc.current_alternative, self._shown_model
+        if prev is None or self._shown_alt != self.doc.current_index or self._shown_system != self.doc.unit_system:
+            self.refresh()
+            return
+        self._shown_model = alt
+        self.remember_table()
+        self.loading = True
+        try:
+            if alt.fluid != prev.fluid:
+                self._show_fluid(alt)
+            else:
+                self.fluid_error.hide()  # a successful edit clears a refusal, as a refill did
+            if alt.feed != prev.feed:
+                self._show_feed(alt)
+            if alt.limits != prev.limits:
+                self._show_limits(alt)
+        finally:
+            self.loading = False
+
     def _show(self, alt) -> None:
+        self._show_fluid(alt)
+        self._show_feed(alt)
+        self._show_limits(alt)
+
+    def _show_fluid(self, alt) -> None:
         fluid = alt.fluid
         key = {"pure": f"pure:{getattr(fluid, 'name', '')}", "solution": f"solution:{getattr(fluid, 'solute', '')}",
                "table": "table:"}[fluid.kind]
@@ -364,6 +398,7 @@ class FeedPanel(EditorPanel):
                                      f" to {units.format_value(fluid.rows[-1].temperature_K, 'temperature', self.doc.unit_system)}")
         self.fluid_error.hide()
 
+    def _show_feed(self, alt) -> None:
         feed = alt.feed
         self.temp_edit.set_value(feed.inlet_temperature_K)
         self.pressure_edit.set_value(feed.inlet_pressure_Pa)
@@ -375,6 +410,8 @@ class FeedPanel(EditorPanel):
         self.flow_label.setText("Mass flow" if by_mass else "Volume flow")
         self.mass_edit.set_value(feed.mass_flow_kg_per_s)
         self.volume_edit.set_value(feed.volume_flow_m3_per_s)
+
+    def _show_limits(self, alt) -> None:
         self.max_wall_edit.set_value(alt.limits.max_inner_wall_temperature_K)
         self.min_bulk_edit.set_value(alt.limits.min_bulk_temperature_K)
 

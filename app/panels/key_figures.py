@@ -96,6 +96,8 @@ class KeyFiguresPanel(QWidget):
         self._layout: list[str] = []  # key of each row the table holds ("" for a heading)
         self._label_width = -1  # width of the label column the row heights were fitted to
         self.verdict_level = ""
+        self._verdict_for: tuple = ()  # (targets, result, unit system) the verdict was shown for
+        self._shown_for: tuple = ()  # (result, unit system, stale) the table shows
 
         # the verdict: symbol + words + colour, so colour is never the only cue
         self.verdict = QLabel("")
@@ -155,8 +157,15 @@ class KeyFiguresPanel(QWidget):
         if res is None:
             self.verdict.hide()
             self.verdict_level = ""
+            self._verdict_for = ()
             return
-        verdict = design_verdict(self.doc.project.targets, res)
+        targets = self.doc.project.targets
+        shown_for = (targets, res, self.doc.unit_system)
+        if (self._verdict_for and self._verdict_for[0] is targets and self._verdict_for[1] is res
+                and self._verdict_for[2] == shown_for[2]):
+            return  # every edit asks before its result arrives: the verdict on screen stands
+        self._verdict_for = shown_for
+        verdict = design_verdict(targets, res)
         level = verdict.level
         symbol = style.VERDICT_SYMBOLS[level]
         text = f"{symbol}  {verdict.text()}"
@@ -178,6 +187,13 @@ class KeyFiguresPanel(QWidget):
 
     def refresh(self) -> None:
         res = self.doc.result
+        shown_for = (res, self.doc.unit_system, self.doc.result_is_stale)
+        if res is not None and self._shown_for and self._shown_for[0] is res and self._shown_for[1:] == shown_for[1:]:
+            # the result on screen published again (e.g. after an edit of the project's name or
+            # targets, which changes no alternative): only the verdict may differ
+            self._show_verdict()
+            return
+        self._shown_for = shown_for
         if res is None:
             self.table.setRowCount(0)
             self._row_of = {}

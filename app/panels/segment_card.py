@@ -70,6 +70,8 @@ class SegmentCard(EditorPanel):
         super().__init__(doc, parent)
         self._shown: Optional[tuple[int, int]] = None  # (alternative, segment) the widgets show
         self._shown_name = ""
+        self._shown_seg = None  # the segment (a value: every change swaps in a new one) and unit
+        self._shown_system = ""  # system the widgets were last filled from
 
         outer = QVBoxLayout(self)
         outer.setContentsMargins(0, 0, 0, 0)
@@ -101,7 +103,7 @@ class SegmentCard(EditorPanel):
         # never narrower than its fields: a squeezed dock would cut them off (no sideways scrolling)
         self.setMinimumWidth(body.minimumSizeHint().width() + scroll.verticalScrollBar().sizeHint().width())
 
-        doc.project_changed.connect(self.refresh)
+        doc.project_changed.connect(self._on_project_changed)
         doc.project_replaced.connect(self.refresh)
         doc.selection_changed.connect(self._on_selection)
         doc.current_alternative_changed.connect(self._on_selection)
@@ -230,10 +232,12 @@ class SegmentCard(EditorPanel):
             self._on_name()
 
     def refresh(self, *_args) -> None:
-        """Show the selected segment (called on every model change; emits nothing)."""
+        """Show the selected segment, every widget (a new selection, units, project; emits nothing)."""
         seg = self.doc.selected
         self._shown = (self.doc.current_index, self.doc.selected_segment) if seg is not None else None
         self._shown_name = seg.name if seg is not None else ""
+        self._shown_seg = seg
+        self._shown_system = self.doc.unit_system
         self.body.setEnabled(seg is not None)
         if seg is None:
             self.header.setText("Segment Card — no segment selected")
@@ -244,13 +248,62 @@ class SegmentCard(EditorPanel):
         finally:
             self.loading = False
 
+    def _on_project_changed(self) -> None:
+        """An edit: fill only the sections whose values differ from what the widgets show.
+
+        Most edits change one field (often typed into this card, which shows it already) or
+        another segment; refilling every widget cost ~2 ms per edit. Values are compared, so the
+        source of the edit does not matter (an undo, the Line Strip, another segment moved into
+        this place). A refused entry is left marked as before: its box keeps its text while the
+        model value it would replace is unchanged.
+        """
+        seg, prev = self.doc.selected, self._shown_seg
+        if (seg is None or prev is None or self._shown_system != self.doc.unit_system
+                or self._shown != (self.doc.current_index, self.doc.selected_segment)):
+            self.refresh()
+            return
+        self._shown_seg = seg
+        self._shown_name = seg.name
+        self.loading = True
+        try:
+            self._show_segment_fields(seg)
+            if seg is not prev:
+                fixed_changed = seg.surroundings.kind != prev.surroundings.kind
+                if seg.pipe != prev.pipe:
+                    self._show_pipe(seg)
+                if fixed_changed or seg.heat_input_W_per_m != prev.heat_input_W_per_m:
+                    self._show_heat(seg)
+                for box, same in ((self.layers, seg.insulation == prev.insulation and not fixed_changed),
+                                  (self.fittings, seg.fittings == prev.fittings),
+                                  (self.surroundings, seg.surroundings == prev.surroundings)):
+                    if not same:
+                        box.show_segment(seg)
+                    elif getattr(box, "error", None) is not None:
+                        box.error.hide()  # a successful edit clears a group's refusal, as a refill did
+            self.card_error.hide()
+        finally:
+            self.loading = False
+
     def _show(self, seg) -> None:
+        self._show_segment_fields(seg)
+        self._show_pipe(seg)
+        self._show_heat(seg)
+        self.layers.show_segment(seg)
+        self.fittings.show_segment(seg)
+        self.surroundings.show_segment(seg)
+        self.card_error.hide()
+
+    def _show_segment_fields(self, seg) -> None:
         n = len(self.doc.current_alternative.segments)
-        self.header.setText(f"Segment {self.doc.selected_segment + 1} of {n} — {seg.name}")
+        header = f"Segment {self.doc.selected_segment + 1} of {n} — {seg.name}"
+        if self.header.text() != header:
+            self.header.setText(header)
         if not self.name_edit.hasFocus() or self.name_edit.text() != seg.name:
             self.name_edit.setText(seg.name)
         self.length_edit.set_value(seg.length_m)
         self.elevation_edit.set_value(seg.elevation_change_m)
+
+    def _show_pipe(self, seg) -> None:
         pipe = seg.pipe
         set_combo_data(self.bore_combo, pipe.bore)
         by_nps = pipe.bore == "nps"
@@ -269,14 +322,11 @@ class SegmentCard(EditorPanel):
         self.kwall_edit.set_value(pipe.wall_conductivity_W_per_mK)
         self._show_dimensions(seg)
 
+    def _show_heat(self, seg) -> None:
         fixed = seg.surroundings.kind == "fixed_wall"
         self.heat_edit.set_value(seg.heat_input_W_per_m)
         self.heat_edit.setEnabled(not fixed)
         self.heat_hint.setText("Not used with a fixed wall temperature." if fixed else HEAT_HINT)
-        self.layers.show_segment(seg)
-        self.fittings.show_segment(seg)
-        self.surroundings.show_segment(seg)
-        self.card_error.hide()
 
     def _show_material_defaults(self, material: str) -> None:
         system = self.doc.unit_system
