@@ -44,8 +44,7 @@ average). The GUI thread's CPU per edit includes the solve when it ran inline.
 
 Run: ``.venv/bin/python benchmarks/bench_gui.py`` (about three minutes; ``--quick`` for fewer
 repeats; ``--only a,b,c,d,e`` for a subset). Where the time goes: ``timers_gui.py`` (a clock
-around the main handlers, per edit), ``profile_gui.py`` (cProfile per edit), and
-``try_gui_changes.py`` (candidate speed-ups tried by monkeypatching, against the unchanged app).
+around the main handlers, per edit) and ``profile_gui.py`` (cProfile per edit).
 """
 
 from __future__ import annotations
