@@ -285,8 +285,9 @@ def blank_doc() -> Document:
 
 
 @pytest.mark.parametrize("unit_system, min_temperature_span, min_pressure_span", [
-    ("SI", 2.0, 0.1),  # 2 K and 0.1 bar (10 kPa)
-    ("US", 3.6, 1.45),  # 2 K = 3.6 °F (ITS-90 scale ratio 9/5); 10 kPa = 1.450 psi (NIST SP 811)
+    # 2 K, and 1 % of the 3 bar(a) feed of a default segment (app.axes, common practice)
+    ("SI", 2.0, 0.03),
+    ("US", 3.6, 0.435),  # 2 K = 3.6 °F (ITS-90 scale ratio 9/5); 3 kPa = 0.435 psi (NIST SP 811)
 ])
 def test_a_flat_profile_keeps_a_minimum_axis_span(qtbot, unit_system, min_temperature_span, min_pressure_span):
     doc = blank_doc()

@@ -9,7 +9,8 @@ from PySide6.QtWidgets import QApplication
 
 from app.commands import SetSegmentField
 from app.document import Document
-from app.panels.profiles import ProfilesPanel, thin
+from app.axes import thin
+from app.panels.profiles import ProfilesPanel
 from solver.model import Alternative, Feed, Project, Segment
 
 

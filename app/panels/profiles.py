@@ -19,6 +19,7 @@ are thinned to the extremes of each pixel column and drawn without antialiasing.
 from __future__ import annotations
 
 import math
+
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QLineF, QPointF, QRectF, QSize, Qt
@@ -26,6 +27,7 @@ from PySide6.QtGui import QBrush, QColor, QFont, QFontMetrics, QPainter, QPen
 from PySide6.QtWidgets import QGraphicsSimpleTextItem, QLabel, QSizePolicy, QVBoxLayout, QWidget
 
 from app import style
+from app.axes import FILL_SHARE, keeps, minimum_span, position_range, thin, value_range
 from app.units import format_value, from_display, label as unit_label, to_display, unit
 
 # curve key -> (legend name, Profile attribute, line style, width)
@@ -37,11 +39,6 @@ TEMPERATURE_CURVES: dict[str, tuple[str, str, str, float]] = {
 }
 
 
-#: Smallest span of each value axis as an SI difference (K, Pa). Below it, round-off and tiny real
-#: changes would fill the plot's height and read as a steep slope: 2 K is about the resolution at
-#: which an engineer reads a temperature profile, 0.1 bar a pressure profile (common practice).
-MIN_SPAN_SI: dict[str, float] = {"temperature": 2.0, "pressure": 10_000.0}
-
 #: Limit lines: key -> (short name shown in the margin, full name for the tooltip, curve colour key).
 LIMIT_NAMES: dict[str, tuple[str, str, str]] = {
     "max_wall": ("max wall", "Maximum inner-wall temperature", "inner_wall"),
@@ -51,92 +48,6 @@ LIMIT_NAMES: dict[str, tuple[str, str, str]] = {
 
 def _display(values, quantity: str, system: str) -> np.ndarray:
     return to_display(np.asarray(values, dtype=float), quantity, system)
-
-
-def min_span(quantity: str, system: str) -> float:
-    """The smallest span of an axis showing ``quantity`` ('temperature' or 'pressure'), in display units."""
-    return MIN_SPAN_SI[quantity] * unit(quantity, system).scale  # a span: the scale, no offset
-
-
-#: A kept value range must be filled this much by the new data (share of its span), else the axis
-#: moves: small edits leave the axes (and their cached pictures) alone, a big change still fills
-#: the plot. x moves sooner: empty width at the outlet end reads as a missing piece of line.
-FILL_SHARE = {"x": 0.9, "y": 0.6}
-
-
-def nice_step(span: float) -> float:
-    """The smallest of 1, 2, 2.5 and 5 × 10^k that is at least ``span`` (> 0)."""
-    base = 10.0 ** math.floor(math.log10(span))
-    for m in (1.0, 2.0, 2.5, 5.0, 10.0):
-        if m * base >= span * (1 - 1e-12):
-            return m * base
-    return 10.0 * base
-
-
-def value_range(lo: float, hi: float, smallest: float) -> tuple[float, float]:
-    """A view range for data between ``lo`` and ``hi``: at least ``smallest`` wide (centred on the
-    data), a little room at both ends, and bounds rounded outward to a nice step of about 1/40 of the span."""
-    if hi - lo < smallest:
-        mid = (lo + hi) / 2
-        lo, hi = mid - smallest / 2, mid + smallest / 2
-    pad = 0.04 * (hi - lo)
-    lo, hi = lo - pad, hi + pad
-    step = nice_step((hi - lo) / 40)
-    return math.floor(lo / step) * step, math.ceil(hi / step) * step
-
-
-def position_range(lo: float, hi: float) -> tuple[float, float]:
-    """A view range for positions ``lo``..``hi``: 2 % room at both ends, so the inlet and outlet
-    boundaries are not drawn on the frame, and the outlet end rounded up to a nice step of about
-    1/40 of the span, so a line made a little longer still fits."""
-    pad = 0.02 * (hi - lo) if hi > lo else 1.0
-    step = nice_step((hi - lo + 2 * pad) / 40)
-    return lo - pad, math.ceil((hi + pad) / step) * step
-
-
-def keeps(current: tuple[float, float], lo: float, hi: float, smallest: float, share: float) -> bool:
-    """True if the view range ``current`` still suits data ``lo``..``hi``: the data lie inside it
-    (clear of the frame) and fill at least ``share`` of it (a span below ``smallest`` counts as ``smallest``)."""
-    c0, c1 = current
-    span = c1 - c0
-    if not (span > 0 and math.isfinite(span)):
-        return False
-    margin = 0.01 * span
-    return c0 + margin <= lo and hi <= c1 - margin and max(hi - lo, smallest) >= share * span
-
-
-def thin(x: np.ndarray, y: np.ndarray, x0: float, x1: float, columns: int) -> tuple[np.ndarray, np.ndarray]:
-    """The points of a curve worth drawing at ``columns`` pixels across ``x0``..``x1``: where there
-    are more than two points per pixel column, each column keeps its lowest and its highest point
-    (so no peak is lost), plus the first and last point of the curve; points outside the view go,
-    except one beyond each edge so the line still runs to the frame. ``x`` must be sorted; a curve
-    with gaps (non-finite values) is returned whole, as its gaps would otherwise be bridged."""
-    n = x.size
-    if columns < 1 or n <= 2 * columns + 2 or not x1 > x0 or not np.isfinite(y).all():
-        return x, y
-    i0 = max(0, int(np.searchsorted(x, x0, "left")) - 1)
-    i1 = min(n, int(np.searchsorted(x, x1, "right")) + 1)
-    xs, ys = x[i0:i1], y[i0:i1]
-    if xs.size <= 2 * columns + 2:
-        keep = np.arange(xs.size)
-    else:
-        col = np.clip(((xs - x0) * (columns / (x1 - x0))).astype(np.int64), -1, columns)
-        new_col = np.empty(xs.size, dtype=bool)
-        new_col[0] = True
-        np.not_equal(col[1:], col[:-1], out=new_col[1:])
-        starts = np.flatnonzero(new_col)  # x sorted: each column is one run
-        counts = np.diff(starts, append=xs.size)
-        at = np.arange(xs.size)
-        mask = np.zeros(xs.size, dtype=bool)
-        for extreme in (np.minimum, np.maximum):  # the last point of each column at its extreme value
-            hit = ys == np.repeat(extreme.reduceat(ys, starts), counts)
-            mask[np.maximum.reduceat(np.where(hit, at, -1), starts)] = True
-        mask[[0, -1]] = True
-        keep = np.flatnonzero(mask)
-    idx = keep + i0
-    if i0 > 0 or i1 < n:  # the curve's own ends stay, so it still starts and ends where the line does
-        idx = np.unique(np.concatenate(([0], idx, [n - 1])))
-    return x[idx], y[idx]
 
 
 class _PlainAxis(pg.AxisItem):
@@ -339,7 +250,7 @@ class ProfilesPanel(QWidget):
     """``ProfilesPanel(doc)``: plots of the current result; observes the Document.
 
     Public for tests and other panels: ``curves`` (dict of PlotDataItem: bulk, inner_wall,
-    outer_surface, saturation, pressure; dense curves hold thinned data, see :func:`thin`),
+    outer_surface, saturation, pressure; dense curves hold thinned data, see :func:`app.axes.thin`),
     ``temperature_plot``, ``pressure_plot``, ``readout`` (QLabel), ``stale_note`` (QLabel),
     ``marker_lines``, ``limit_lines``, ``boundary_lines`` (one per plot; ``positions`` in display
     units), :meth:`readout_at` (x_m -> text).
@@ -567,7 +478,7 @@ class ProfilesPanel(QWidget):
             self._fit_axis_labels()
             self.pressure_plot.setLabel("bottom", f"Position from inlet [{unit_label('length', system)}]", color=style.INK)
             for plot, quantity in ((self.temperature_plot, "temperature"), (self.pressure_plot, "pressure")):
-                plot.vb.setLimits(minYRange=min_span(quantity, system))
+                plot.vb.setLimits(minYRange=minimum_span(quantity, system))
         res = self._result
         self._refreshing = True  # the curves are drawn once, after the ranges are set
         try:
@@ -609,7 +520,7 @@ class ProfilesPanel(QWidget):
         """Set each axis's range from the result (never pyqtgraph's auto-range), before any paint.
 
         The range is rounded to nice values and kept while the new data still fill it (see
-        :func:`keeps`), so a small edit leaves the axes as they were and they are not redrawn.
+        :func:`app.axes.keeps`), so a small edit leaves the axes as they were and they are not redrawn.
         An axis the user panned or zoomed stays put; one the user set back to automatic from the
         plot's menu follows the results again.
         """
@@ -647,7 +558,7 @@ class ProfilesPanel(QWidget):
         for vb, plot, lo, hi, quantity in ((tvb, self.temperature_plot, t_lo, t_hi, "temperature"),
                                            (pvb, self.pressure_plot, float(np.nanmin(p)), float(np.nanmax(p)), "pressure")):
             y_range = None
-            smallest = min_span(quantity, system)
+            smallest = minimum_span(quantity, system, (lo, hi))
             if self._follow_y[id(plot)] and math.isfinite(lo) and math.isfinite(hi):
                 if new_system or not keeps(vb.viewRange()[1], lo, hi, smallest, FILL_SHARE["y"]):
                     y_range = value_range(lo, hi, smallest)

@@ -41,6 +41,7 @@ from PySide6.QtWidgets import (
 )
 
 from app import comparison, style, units
+from app.axes import minimum_span
 from solver.results import Result, check_sort_key
 
 _PEN_STYLES = {"solid": Qt.SolidLine, "dash": Qt.DashLine, "dot": Qt.DotLine, "dashdot": Qt.DashDotLine}
@@ -48,10 +49,6 @@ _PEN_STYLES = {"solid": Qt.SolidLine, "dash": Qt.DashLine, "dot": Qt.DotLine, "d
 DESIGNED_FOR = 6
 _CELL_PADDING = 14  # px left and right of the text in a cell, together
 _ICON_W, _ICON_H = 26, 12  # line sample in the column headers
-#: smallest span of the plots' value axes, in display units: round-off on a flat profile must not
-#: look like a slope (temperature: 2 K or °F; pressure: about 1 kPa)
-_MIN_SPAN = {("temperature", "SI"): 2.0, ("temperature", "US"): 2.0}
-_MIN_SPAN_PRESSURE_PA = 1000.0
 
 
 def alternative_colour(index: int) -> str:
@@ -513,8 +510,9 @@ class SideBySidePanel(QWidget):
                 line.setToolTip("Segment boundary\n" + "\n".join(where))
                 plot.addItem(line)
                 self._boundaries.append((line, plot))
-        min_t = _MIN_SPAN.get(("temperature", system), 2.0)
-        min_p = float(units.to_display(_MIN_SPAN_PRESSURE_PA, "pressure_difference", system))
+        # the one rule for the smallest value span (round-off on a flat profile must not look like a slope)
+        min_t = minimum_span("temperature", system)
+        min_p = minimum_span("pressure", system, p_range)
         for plot, rng, span in ((tp, t_range, min_t), (pp, p_range, min_p)):
             vb = plot.getViewBox()
             if math.isfinite(rng[0]) and rng[1] - rng[0] < span:

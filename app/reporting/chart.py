@@ -19,15 +19,10 @@ from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QColor, QFont, QFontMetricsF, QPainterPath, QPen
 
 from app import units
+from app.axes import minimum_span
 from app.style import ALTERNATIVE_COLOURS, ALTERNATIVE_STYLES, CURVE_COLOURS, INK, INK_MUTED
 from app.texts import fmt, ulabel
 from solver.results import Result
-
-#: Smallest span of an axis, SI (a difference): below it round-off would look like a slope.
-#: 2 K of temperature and 1 kPa of pressure are below what a line design turns on (ours).
-MIN_SPAN_SI: dict[str, float] = {"temperature": 2.0, "pressure": 1000.0}
-#: Smallest span relative to the size of the values, for quantities with a true zero (pressure).
-MIN_RELATIVE_SPAN = 0.01
 
 LIMIT_STYLE = "dashdot"
 
@@ -71,18 +66,6 @@ class Chart:
     #: Legend entries beyond the series: (label, colour, style).
     legend_extra: list[tuple[str, str, str]] = field(default_factory=list)
     aspect: float = 0.62  # height / width
-
-
-def minimum_span(quantity: str, system: str, values=()) -> float:
-    """The smallest axis span for ``quantity`` in display units: an absolute floor
-    (:data:`MIN_SPAN_SI`) and, for quantities with a true zero, a share of the values' size."""
-    floor = MIN_SPAN_SI.get(quantity, 0.0) * units.unit(quantity, system).scale  # a span: the scale, no offset
-    if quantity == "temperature":
-        return floor
-    v = np.asarray(values, dtype=float)
-    v = v[np.isfinite(v)]
-    size = float(np.max(np.abs(v))) if v.size else 0.0
-    return max(floor, MIN_RELATIVE_SPAN * size)
 
 
 def nice_ticks(lo: float, hi: float, target: int = 6) -> list[float]:
