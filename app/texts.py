@@ -170,23 +170,40 @@ def method_entries(results: Iterable[Result]) -> list[tuple[str, str]]:
     return out
 
 
-def key_figure_label_and_value(spec: KeyFigure, figures: Mapping[str, float], system: str,
-                               indent: str = "   ") -> tuple[str, str]:
-    """One Key Figure as ``(label, value text)`` in the reader's units.
+def key_figure_parts(spec: KeyFigure, figures: Mapping[str, float], system: str,
+                     indent: str = "   ") -> tuple[str, str, str]:
+    """One Key Figure as ``(label, value text, note)`` in the reader's units: the one way every view
+    writes a figure.
 
     The label is the list's label (indented with ``indent`` under the figure it is a share of); a
     negative value of a figure with a ``negative_label`` is shown under that label with its sign
-    turned ("Heat gained from surroundings 4.6 kW", not "Heat loss −4.6 kW"); a figure with a
-    ``position_key`` says where it occurs.
+    turned ("Heat gained from surroundings 4.6 kW", not "Heat loss −4.6 kW"). The note says where
+    the value occurs (``position_key``: "at 12.3 m"; "none in air" when there is no such surface)
+    or the inlet value it is read against (``inlet_key``: "inlet 75.0 °C").
     """
     value = figures.get(spec.key)
+    finite = value is not None and math.isfinite(value)
     label = spec.indented_label(indent)
-    if spec.negative_label and value is not None and math.isfinite(value) and value < 0:
+    if spec.negative_label and finite and value < 0:
         label = dataclasses.replace(spec, label=spec.negative_label).indented_label(indent)
         value = -value
+    note = ""
     if spec.position_key:
         position = figures.get(spec.position_key)
-        if value is None or not math.isfinite(value):
-            return label, "—"  # e.g. no surface in air
-        return label, f"{fmt(value, spec.quantity, system)} at {fmt(position, 'length', system)}"
-    return label, fmt(value, spec.quantity, system)
+        if not finite:
+            note = "none in air"
+        elif position is not None and math.isfinite(position):
+            note = "at " + fmt(position, "length", system)
+    elif spec.inlet_key:
+        note = "inlet " + fmt(figures.get(spec.inlet_key), spec.quantity, system)
+    return label, fmt(value, spec.quantity, system), note
+
+
+def key_figure_label_and_value(spec: KeyFigure, figures: Mapping[str, float], system: str,
+                               indent: str = "   ") -> tuple[str, str]:
+    """One Key Figure as ``(label, value text)``, the position where it occurs after the value
+    ("79.6 °C at 185.0 m"); "—" for a figure that does not apply (e.g. no surface in air)."""
+    label, value, note = key_figure_parts(spec, figures, system, indent)
+    if spec.position_key:
+        return label, (f"{value} {note}" if note.startswith("at ") else "—")
+    return label, value

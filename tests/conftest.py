@@ -17,3 +17,12 @@ if os.environ.get("CI"):
 
     settings.register_profile("ci", derandomize=True, deadline=None)
     settings.load_profile("ci")
+
+import pytest  # noqa: E402
+
+
+@pytest.fixture(autouse=True)
+def isolated_settings(tmp_path, monkeypatch):
+    """No test reads or writes the user's settings, Recent files or autosave file."""
+    monkeypatch.setenv("CALORUN_SETTINGS_DIR", str(tmp_path / "settings"))
+    monkeypatch.setenv("CALORUN_RECOVERY_DIR", str(tmp_path / "recovery"))

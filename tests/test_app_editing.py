@@ -48,11 +48,6 @@ def names(doc) -> list[str]:
     return [s.name for s in doc.current_alternative.segments]
 
 
-@pytest.fixture(autouse=True)
-def isolated_settings(tmp_path, monkeypatch):
-    monkeypatch.setenv("CALORUN_SETTINGS_DIR", str(tmp_path / "settings"))
-    monkeypatch.setenv("CALORUN_RECOVERY_DIR", str(tmp_path / "recovery"))
-
 
 @pytest.fixture
 def win(qtbot):

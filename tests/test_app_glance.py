@@ -37,11 +37,6 @@ TRACED = ROOT / "sample_projects" / "traced_residue_line.json"
 GLYCOL = ROOT / "sample_projects" / "glycol_return.json"
 
 
-@pytest.fixture(autouse=True)
-def isolated_settings(tmp_path, monkeypatch):
-    monkeypatch.setenv("CALORUN_SETTINGS_DIR", str(tmp_path / "settings"))
-    monkeypatch.setenv("CALORUN_RECOVERY_DIR", str(tmp_path / "recovery"))
-
 
 def settle(qtbot, ms: int = 60) -> None:
     for _ in range(3):

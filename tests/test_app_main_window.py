@@ -35,11 +35,6 @@ def small_project() -> Project:
     return Project(name="Window test line", alternatives=[alt])
 
 
-@pytest.fixture(autouse=True)
-def isolated_settings(tmp_path, monkeypatch):
-    monkeypatch.setenv("CALORUN_SETTINGS_DIR", str(tmp_path / "settings"))
-    monkeypatch.setenv("CALORUN_RECOVERY_DIR", str(tmp_path / "recovery"))
-
 
 @pytest.fixture
 def win(qtbot):

@@ -51,11 +51,6 @@ def long_named_project(n: int):
     return base.model_copy(update={"alternatives": alts, "baseline": alts[0].name})
 
 
-@pytest.fixture(autouse=True)
-def isolated_settings(tmp_path, monkeypatch):
-    monkeypatch.setenv("CALORUN_SETTINGS_DIR", str(tmp_path / "settings"))
-    monkeypatch.setenv("CALORUN_RECOVERY_DIR", str(tmp_path / "recovery"))
-
 
 def comparing_window(qtbot, n: int, size: tuple[int, int]) -> MainWindow:
     win = MainWindow(interactive=False)

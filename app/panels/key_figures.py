@@ -9,8 +9,6 @@ picking and formatting.
 
 from __future__ import annotations
 
-import math
-
 from PySide6.QtCore import Qt, QTimer
 from PySide6.QtGui import QBrush, QFont
 from PySide6.QtWidgets import (
@@ -26,7 +24,7 @@ from PySide6.QtWidgets import (
 
 from app import style
 from app.comparison import design_verdict
-from app.units import format_value
+from app.texts import key_figure_parts
 from solver.results import KEY_FIGURES, KeyFigure
 
 COLUMNS = ("Figure", "Value", "Note")
@@ -38,29 +36,9 @@ RANGES: dict[str, tuple[str, str]] = {
 }
 
 
-def _finite(value) -> bool:
-    return value is not None and isinstance(value, (int, float)) and math.isfinite(value)
-
-
 def figure_row(figure: KeyFigure, values: dict[str, float], system: str) -> tuple[str, str, str, str]:
-    """(label, value text, note, method) of one key figure in ``system``.
-
-    A negative value of a figure with a ``negative_label`` (heat loss that is really a gain) is
-    shown under that label with its sign turned. The note says where the value occurs
-    (``position_key``) or the inlet value it is read against (``inlet_key``).
-    """
-    value = values.get(figure.key)
-    label = figure.indented_label()
-    if figure.negative_label and _finite(value) and value < 0:
-        label = figure.negative_label
-        value = -value
-    note = ""
-    if figure.position_key:
-        x = values.get(figure.position_key)
-        note = "at " + format_value(x, "length", system) if _finite(x) else ("none in air" if not _finite(value) else "")
-    elif figure.inlet_key:
-        note = "inlet " + format_value(values.get(figure.inlet_key), figure.quantity, system)
-    return label, format_value(value, figure.quantity, system), note, figure.method
+    """(label, value text, note, method) of one key figure in ``system`` (see texts.key_figure_parts)."""
+    return (*key_figure_parts(figure, values, system), figure.method)
 
 
 def key_figure_rows(result, system: str) -> list[tuple[str, str, str, str, str]]:
