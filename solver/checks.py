@@ -15,13 +15,15 @@ import math
 
 import numpy as np
 
-from solver import correlations, fittings as fittings_mod
-from solver.line import GRAVITY, LineGrid
+from solver import correlations, films, fittings as fittings_mod, fouling, steam
+from solver.line import LineGrid
 from solver.results import Check, Profile, check_sort_key, render_message
 from solver.state import MarchState
 
 BURN_THRESHOLD_K = 333.15  # 60 °C contact burn threshold for metal-like surfaces (common practice)
 COLD_CONTACT_K = 263.15  # −10 °C, cold-contact injury threshold (common practice)
+#: A surface counts as made hot or cold by the line only when it differs from the air by more than this.
+SURFACE_MARGIN_K = 1.0
 
 
 def line_checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> list[Check]:
@@ -189,23 +191,27 @@ def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> lis
                                  f"Liquid velocity {_v(v_min)} is below about {_v(0.3)}{more} (common practice): "
                                  "settling, fouling and poor heat transfer.", segment=s.index, x_m=float(x_mid[i])))
 
-    # surfaces people can touch
+    # surfaces people can touch: judged by the surface temperature the LINE makes. In a freezing yard
+    # every surface is cold; a contact hazard is a surface the line makes hotter (or colder) than the
+    # air around it and beyond the threshold.
     ts_max_seg = np.maximum.reduceat(Ts, node_start).tolist()
     ts_min_seg = np.minimum.reduceat(Ts, node_start).tolist()
     for s in setups:
         a = s.nodes.start
         if s.kind in ("still_air", "wind"):
-            if ts_max_seg[s.index] >= BURN_THRESHOLD_K:
+            t_air = s.medium_temperature_K
+            if ts_max_seg[s.index] >= BURN_THRESHOLD_K and ts_max_seg[s.index] > t_air + SURFACE_MARGIN_K:
                 k = a + int(np.argmax(Ts[s.nodes]))
                 out.append(Check("warning", "HOT_SURFACE",
                                  f"Outer surface reaches {c(Ts[k])}: hot enough to burn on contact (above about {_T(BURN_THRESHOLD_K)}, "
                                  "common practice). Insulate or guard for personnel protection.",
                                  segment=s.index, x_m=float(x[k])))
-            if ts_min_seg[s.index] <= COLD_CONTACT_K:
+            if ts_min_seg[s.index] <= COLD_CONTACT_K and ts_min_seg[s.index] < t_air - SURFACE_MARGIN_K:
                 k = a + int(np.argmin(Ts[s.nodes]))
                 out.append(Check("warning", "COLD_SURFACE",
-                                 f"Outer surface falls to {c(Ts[k])}: cold enough to injure on contact (below about "
-                                 f"{_T(COLD_CONTACT_K)}, common practice). Insulate or guard.", segment=s.index, x_m=float(x[k])))
+                                 f"Outer surface falls to {c(Ts[k])}, {_dT(t_air - Ts[k])} below the air: cold enough "
+                                 f"to injure on contact (below about {_T(COLD_CONTACT_K)}, common practice). Insulate or guard.",
+                                 segment=s.index, x_m=float(x[k])))
         elif s.kind in ("jacket", "fixed_wall") and math.isfinite(s.medium_temperature_K):
             if s.medium_temperature_K >= BURN_THRESHOLD_K:
                 out.append(Check("warning", "HOT_JACKET",
@@ -217,10 +223,12 @@ def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> lis
                                  "Insulation layers play no part with a jacket or fixed wall temperature; "
                                  "they would insulate the jacket, not the line.", segment=s.index, x_m=float(x[a])))
 
-    # correlations outside their validity
+    # correlations outside their validity, each where the solve used it
     regime_turb = regime == 2
     bad_g = regime_turb & correlations.out_of_range("gnielinski", Re=Re, Pr=Pr)
     bad_l = (regime == 0) & correlations.out_of_range("laminar_entry", Pr=Pr)
+    bad_cb = (Re >= correlations.RE_COLEBROOK_MIN) & correlations.out_of_range(
+        "colebrook", Re=Re, relative_roughness=line.rel_rough)
     for mask, name in ((bad_g, "Gnielinski"), (bad_l, "laminar entry")):
         for s, sel in zip(setups, cells_where(mask)):
             if sel.size:
@@ -228,17 +236,103 @@ def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> lis
                                  f"The {name} correlation is used outside its published range here "
                                  f"(Re {_n(Re[sel].min())}–{_n(Re[sel].max())}, Pr {_n(Pr[sel].min())}–{_n(Pr[sel].max())}).",
                                  segment=s.index, x_m=float(x_mid[sel[0]])))
-    film_mask, air = line.film_mask, state.air
-    if air is not None and film_mask.any():
-        T_surface, t_inf = state.T_surface, line.t_inf
-        t_film = 0.5 * (T_surface + np.nan_to_num(t_inf, nan=293.15))
-        nu_kin, alpha, _ = air.at(t_film)
-        ra = GRAVITY / t_film * np.abs(T_surface - np.nan_to_num(t_inf, nan=293.15)) * line.d_outer**3 / (nu_kin * alpha)
-        bad_cc = film_mask & (ra > correlations.VALIDITY["churchill_chu"]["Ra"][1])
-        for s, sel in zip(setups, cells_where(bad_cc)):
+    lo_ed, hi_ed = correlations.VALIDITY["colebrook"]["relative_roughness"]
+    for s, sel in zip(setups, cells_where(bad_cb)):
+        if sel.size:
+            out.append(Check("warning", "CORRELATION_RANGE",
+                             f"The Colebrook friction factor is used outside its published range here (relative "
+                             f"roughness ε/D {_n(line.rel_rough[sel].max())}, Re {_n(Re[sel].min())}–{_n(Re[sel].max())}; "
+                             f"published for ε/D up to {_n(hi_ed)}): the pressure drop is uncertain.",
+                             segment=s.index, x_m=float(x_mid[sel[0]])))
+    if state.wall_groups is not None:
+        for s, sel in zip(setups, cells_where(_property_ratio_out_of_range(state, regime))):
             if sel.size:
                 out.append(Check("warning", "CORRELATION_RANGE",
-                                 f"Natural convection outside the Churchill–Chu range (Ra up to {_n(ra[sel].max())}).",
+                                 "The bulk-to-wall property correction is used outside its published range here "
+                                 "(the wall is far hotter or colder than the bulk; the factor is held at its value at "
+                                 "the range's edge): the inside coefficient is uncertain.",
+                                 segment=s.index, x_m=float(x_mid[sel[0]])))
+    film_mask, air = line.film_mask, state.air
+    if air is not None and film_mask.any():
+        out += _air_film_range_checks(line, state, setups, x_mid, cells_where)
+    if line.cond_mask.any():
+        # Nusselt's film theory holds for a laminar condensate film
+        cm = line.cond_mask
+        re_film = np.zeros(line.n)
+        re_film[cm] = steam.condensate_film_reynolds(line.steam_pressure[cm], state.T_heated[cm], line.d_pipe_outer[cm])
+        hi = correlations.VALIDITY["film_condensation"]["Re_film"][1]
+        for s, sel in zip(setups, cells_where(cm & correlations.out_of_range("film_condensation", Re_film=re_film))):
+            if sel.size:
+                out.append(Check("warning", "CORRELATION_RANGE",
+                                 f"The condensate film is no longer laminar here (film Reynolds number up to "
+                                 f"{_n(re_film[sel].max())}; Nusselt's theory holds below about {_n(hi)}).",
+                                 segment=s.index, x_m=float(x_mid[sel[0]])))
+    if line.any_tracer:
+        idle = (line.g_tracer > 0) & (state.g_tracer == 0)
+        for s, sel in zip(setups, cells_where(idle)):
+            if sel.size:
+                out.append(Check("info", "TRACER_IDLE",
+                                 f"The pipe is at or above the tracer's steam temperature ({_T(s.tracer_temperature_K)}) "
+                                 "here: the steam tracer gives no heat. A higher steam pressure would.",
+                                 segment=s.index, x_m=float(x_mid[sel[0]])))
+    return out
+
+
+def _property_ratio_out_of_range(state: MarchState, regime: np.ndarray) -> np.ndarray:
+    """Cells whose bulk-to-wall ratio lies outside the range of the correction used there: the viscosity
+    ratio in laminar and transitional liquid flow, the Prandtl ratio in turbulent and transitional liquid
+    flow, the temperature ratio in turbulent and transitional gas flow (laminar gases are not corrected)."""
+    g = state.wall_groups
+    if state.gas:
+        return (regime >= 1) & correlations.out_of_range("property_ratio_gas", T_ratio=g["T_ratio"])
+    bad_mu = (regime <= 1) & correlations.out_of_range("property_ratio_liquid", mu_ratio=g["mu_ratio"])
+    bad_pr = (regime >= 1) & correlations.out_of_range("property_ratio_liquid", Pr_ratio=g["Pr_ratio"])
+    return bad_mu | bad_pr
+
+
+def _air_film_range_checks(line: LineGrid, state: MarchState, setups, x_mid, cells_where) -> list[Check]:
+    """Churchill–Chu (lower and upper Ra; on risers the vertical form and its thin-cylinder limit) and
+    Churchill–Bernstein (Re·Pr) ranges, where the outer film in air is computed."""
+    out = []
+    film_mask, air = line.film_mask, state.air
+    fm = film_mask
+    vertical_f, ra_f, thin_f = films.free_convection_groups(
+        air, state.T_surface[fm], line.t_inf[fm], line.d_outer[fm], line.vertical_length[fm])
+    n = line.n
+    ra = np.full(n, np.nan)
+    thin = np.full(n, np.inf)
+    vertical = np.zeros(n, dtype=bool)
+    ra[fm], thin[fm], vertical[fm] = ra_f, thin_f, vertical_f
+    bad_h = fm & ~vertical & correlations.out_of_range("churchill_chu", Ra=np.nan_to_num(ra, nan=1.0))
+    bad_v = fm & vertical & correlations.out_of_range("churchill_chu_vertical", Ra=np.nan_to_num(ra, nan=1.0))
+    for mask, what, name in ((bad_h, "horizontal cylinder", "churchill_chu"),
+                             (bad_v, "vertical surface", "churchill_chu_vertical")):
+        lo, hi = correlations.VALIDITY[name]["Ra"]
+        for s, sel in zip(setups, cells_where(mask)):
+            if sel.size:
+                out.append(Check("warning", "CORRELATION_RANGE",
+                                 f"Natural convection ({what}) outside the Churchill–Chu range "
+                                 f"(Ra {_n(ra[sel].min())}–{_n(ra[sel].max())}; published {_n(lo)}–{_n(hi)}).",
+                                 segment=s.index, x_m=float(x_mid[sel[0]])))
+    bad_thin = fm & vertical & correlations.out_of_range("churchill_chu_vertical", D_Gr_quarter_over_L=thin)
+    for s, sel in zip(setups, cells_where(bad_thin)):
+        if sel.size:
+            out.append(Check("info", "CORRELATION_RANGE",
+                             "This riser is slender for its height: the vertical-plate correlation used for its "
+                             "natural convection understates a thin vertical cylinder's loss somewhat "
+                             "(the plate form holds when D/L ≥ 35/Gr_L^¼; Incropera & DeWitt §9.6).",
+                             segment=s.index, x_m=float(x_mid[sel[0]])))
+    windy = fm & (line.wind_speed > 0)
+    if windy.any():
+        t_film = 0.5 * (state.T_surface + np.nan_to_num(line.t_inf, nan=293.15))
+        _, alpha, _ = air.at(t_film)
+        re_pr = line.wind_speed * line.d_outer / alpha  # Re·Pr = V·D/ν · ν/α
+        bad_w = windy & correlations.out_of_range("churchill_bernstein", RePr=re_pr)
+        for s, sel in zip(setups, cells_where(bad_w)):
+            if sel.size:
+                out.append(Check("warning", "CORRELATION_RANGE",
+                                 f"Wind convection outside the Churchill–Bernstein range (Re·Pr {_n(re_pr[sel].min())}; "
+                                 "published from 0.2): the outer film is uncertain.",
                                  segment=s.index, x_m=float(x_mid[sel[0]])))
     return out
 
@@ -330,6 +424,14 @@ def _dew_point_checks(line: LineGrid, prof: Profile) -> list[Check]:
         if rh is None or rh <= 0.0:
             continue
         t_dew = float(correlations.dew_point_magnus(s.medium_temperature_K, rh))
+        if "dew_point" in correlations.VALIDITY and correlations.out_of_range(
+                "dew_point", T_air_K=np.array([s.medium_temperature_K])).any():
+            lo, hi = correlations.VALIDITY["dew_point"]["T_air_K"]
+            out.append(Check(
+                "warning", "CORRELATION_RANGE",
+                f"The dew-point formula is used outside its published range (air at {_T(s.medium_temperature_K)}; "
+                f"published {_T(lo)} to {_T(hi)}): the dew point is uncertain.",
+                segment=s.index, x_m=float(prof.x_m[s.nodes.start])))
         seg_ts = prof.outer_surface_temperature_K[s.nodes]
         k = int(np.argmin(seg_ts))
         if seg_ts[k] < t_dew:
@@ -356,7 +458,7 @@ def methods_used(line: LineGrid, state: MarchState) -> list[str]:
     regime = correlations.flow_regime(state.Re)
     used = []
     if (regime == 0).any() or (regime == 1).any():
-        used.append(f"Laminar inside heat transfer, developing flow: {m['laminar_entry']}")
+        used.append(f"Laminar inside heat transfer, mean values over each cell of the entry length: {m['laminar_entry']}")
         used.append(f"Laminar friction factor: {m['laminar_friction']}")
     if (regime == 1).any():
         used.append(f"Friction in transition: {m['friction_transition']}")
@@ -364,16 +466,37 @@ def methods_used(line: LineGrid, state: MarchState) -> list[str]:
     if (regime >= 1).any():
         used.append(f"Turbulent inside heat transfer: {m['gnielinski']}")
         used.append(f"Turbulent friction factor: {m['colebrook']}")
+    used.append(ENTRY_RULE)
+    if state.wall_factor is not None and not np.allclose(state.wall_factor, 1.0):
+        key = "property_ratio_gas" if state.gas else "property_ratio_liquid"
+        used.append(f"Bulk-to-wall property correction: {m[key]}")
+    if np.any(line.r_foul > 0):
+        used.append(f"Inside fouling resistance as entered; typical values: {fouling.FOULING_SOURCE}")
     if line.film_mask.any():
-        used.append(f"Natural convection, horizontal cylinder: {m['churchill_chu']}")
+        if np.any(line.film_mask & (line.vertical_length == 0)):
+            used.append(f"Natural convection, horizontal cylinder: {m['churchill_chu']}")
+        if np.any(line.vertical_length > 0):
+            used.append(f"Natural convection on steep runs, vertical surface: {m['churchill_chu_vertical']}")
         used.append(f"Thermal radiation to surroundings: {m['radiation']}")
     if (line.wind_speed > 0).any():
         used.append(f"Wind in cross-flow: {m['churchill_bernstein']}")
         used.append(f"Mixed convection: {m['mixed_convection']}")
     if (line.kinds == "buried").any():
         used.append(f"Buried pipe: {m['buried_cylinder']}")
+    if line.cond_mask.any():
+        used.append(f"Condensing steam on the pipe: {m['film_condensation']}")
+    if line.any_tracer:
+        used.append(f"Steam tracer contact: {steam.TRACER_SOURCE}")
     used.append(f"Dew point of surrounding air (when humidity is given): {m['dew_point']}")
     if line.any_fittings:
         used.append(f"Fittings loss coefficients: {'; '.join(fittings_mod.SOURCES)}")
     used.append("Fluid properties: CoolProp (Bell et al. 2014) or user table")
     return used
+
+
+#: How the entry length is laid out along the line (solver.line._entry_origins), for the methods list.
+ENTRY_RULE = (
+    "Entry lengths: from the line inlet when the flow develops there (or none when it arrives fully "
+    "developed); restarted where the bore changes (velocity and temperature) or the thermal condition of the "
+    "wall changes (temperature only); film coefficients are cell means of the local values"
+)

@@ -17,13 +17,15 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from solver import catalogue, correlations, fittings as fittings_mod
+from solver import catalogue, correlations, fittings as fittings_mod, steam
 from solver.errors import InputError
-from solver.model import Adiabatic, Alternative, Buried, FixedWall, Jacket, PureFluid, StillAir, Wind
-from solver.properties import fluid_model
+from solver.factors import NEUTRAL, MethodFactors
+from solver.model import Adiabatic, Alternative, Buried, FixedWall, Jacket, StillAir, Wind
 
 GRAVITY = 9.80665  # m/s², standard gravity (CGPM 1901)
 AMBIENT_PRESSURE_PA = 101_325.0  # air around the line, standard atmosphere
+#: A run in air rising more than this share of its length (sin 45°) loses heat as a vertical surface.
+STEEP_RISE_RATIO = math.sin(math.radians(45.0))
 
 
 @dataclass
@@ -47,6 +49,17 @@ class SegmentSetup:
     cells: slice = field(default_factory=lambda: slice(0, 0))  # this segment's cells in the line's cell arrays
     nodes: slice = field(default_factory=lambda: slice(0, 0))  # its nodes in the profile (boundary nodes repeated)
     fittings_loss: object = None  # fittings.FittingsLoss at this bore, when there are fittings
+    layer_resistances: list = field(default_factory=list)  # (material, K·m/W) per insulation layer, innermost first
+    inside_fouling_resistance: float = 0.0  # K·m/W
+    soil_resistance: float = 0.0  # K·m/W (buried only)
+    jacket_resistance: float = 0.0  # K·m/W (jacket film only)
+    steam_pressure_Pa: float = math.nan  # condensing steam on the pipe (fixed wall by steam pressure)
+    steam_fouling_resistance: float = 0.0  # K·m/W on the steam side
+    tracer_conductance: float = 0.0  # W/(m·K), all steam tracers of the segment together
+    tracer_temperature_K: float = math.nan  # saturation temperature of the tracer steam
+    vertical_length_m: float = 0.0  # height of a steep run in air (natural convection as a vertical surface)
+    entry_origin_m: float = 0.0  # where this segment's entry length starts, along the line; inf = developed
+    entry_developing: bool = True  # velocity develops with the temperature (False: thermal entry only)
 
 
 @dataclass
@@ -86,6 +99,17 @@ class LineGrid:
     seg_first_cell: np.ndarray  # per segment
     cells_per_seg: np.ndarray  # per segment
     has_fittings: list[bool] = field(default_factory=list)  # per segment
+    r_foul: np.ndarray = None  # inside fouling [K·m/W]
+    cond_mask: np.ndarray = None  # condensing steam on the pipe (coefficient from the wall temperature)
+    steam_pressure: np.ndarray = None  # [Pa], NaN where no condensing steam
+    r_steam_foul: np.ndarray = None  # steam-side fouling [K·m/W]
+    d_pipe_outer: np.ndarray = None  # pipe outside diameter [m]
+    g_tracer: np.ndarray = None  # steam tracer conductance [W/(m·K)], 0 without
+    t_tracer: np.ndarray = None  # tracer steam temperature [K], 0 without
+    vertical_length: np.ndarray = None  # [m] height of a steep run in air, 0 elsewhere
+    x0_entry: np.ndarray = None  # cell start, distance from where its entry length starts [m]; inf developed
+    x1_entry: np.ndarray = None  # cell end, likewise
+    developing: np.ndarray = None  # per cell: velocity develops too (simultaneous entry)
 
     @property
     def n(self) -> int:
@@ -95,14 +119,24 @@ class LineGrid:
     def any_fittings(self) -> bool:
         return any(self.has_fittings)
 
+    @property
+    def any_tracer(self) -> bool:
+        return bool(np.any(self.g_tracer > 0.0))
+
     def segment_at(self, i_node: int) -> SegmentSetup:
         """The segment of cell edge ``i_node`` (the outlet edge belongs to the last cell)."""
         return self.segments[int(self.seg_of_cell[min(i_node, self.n - 1)])]
 
 
-def build_line(alt: Alternative, refine: float, cells_per_segment: int | None) -> LineGrid:
-    """Resolve the alternative's segments and lay them out in cells; see :class:`LineGrid`."""
-    setups = _resolve_segments(alt)
+def build_line(alt: Alternative, refine: float, cells_per_segment: int | None,
+               factors: MethodFactors = NEUTRAL) -> LineGrid:
+    """Resolve the alternative's segments and lay them out in cells; see :class:`LineGrid`.
+
+    ``factors`` scales the insulation and soil conductivities, the jacket film, the tracer contact
+    and the fittings (the uncertainty bands; all 1 in an ordinary solve).
+    """
+    setups = _resolve_segments(alt, factors)
+    _entry_origins(setups, alt.feed.inlet_flow)
     _cells_for(setups, refine, cells_per_segment)
 
     counts = np.array([s.n_cells for s in setups])
@@ -137,10 +171,9 @@ def build_line(alt: Alternative, refine: float, cells_per_segment: int | None) -
         elif isinstance(sur, FixedWall):
             r_fixed_seg[i] = 0.0
         elif isinstance(sur, Jacket):
-            r_fixed_seg[i] = 1.0 / (sur.film_coefficient_W_per_m2K * math.pi * s.pipe_outer_diameter_m)
+            r_fixed_seg[i] = s.jacket_resistance
         elif isinstance(sur, Buried):
-            r_fixed_seg[i] = s.insulation_resistance + _buried_resistance(
-                s.outer_diameter_m, sur.depth_m, sur.soil_conductivity_W_per_mK)
+            r_fixed_seg[i] = s.insulation_resistance + s.soil_resistance
         elif isinstance(sur, (StillAir, Wind)):
             if sur.film_coefficient_W_per_m2K is not None:
                 r_fixed_seg[i] = s.insulation_resistance + 1.0 / (sur.film_coefficient_W_per_m2K * math.pi * s.outer_diameter_m)
@@ -149,6 +182,7 @@ def build_line(alt: Alternative, refine: float, cells_per_segment: int | None) -
             emissivity_seg[i] = sur.emissivity
             if isinstance(sur, Wind):
                 wind_seg[i] = sur.wind_speed_m_per_s
+    kinds_steam = np.array([math.isfinite(s.steam_pressure_Pa) for s in setups], dtype=bool)[seg_of_cell]
     r_fixed_out = np.array(r_fixed_seg, dtype=float)[seg_of_cell]
     film_mask = np.array(film_seg, dtype=bool)[seg_of_cell]
     wind_speed = np.array(wind_seg, dtype=float)[seg_of_cell]
@@ -162,6 +196,17 @@ def build_line(alt: Alternative, refine: float, cells_per_segment: int | None) -
             s.fittings_loss = fittings_mod.fittings_loss(s.fittings, s.inner_diameter_m,
                                                          field_prefix=f"segments[{s.index}].fittings")
             k_a[s.index], k_b[s.index] = s.fittings_loss.a, s.fittings_loss.b
+    if factors.fittings != 1.0:
+        k_a, k_b = k_a * factors.fittings, k_b * factors.fittings
+
+    # entry lengths: each cell's edges measured from where its entry starts (inf: fully developed)
+    origin = per_cell("entry_origin_m")
+    x0_entry = x_node[:-1] - origin
+    x1_entry = x_node[1:] - origin
+    if np.isinf(origin).any():
+        developed = np.isinf(origin)
+        x0_entry[developed] = np.inf
+        x1_entry[developed] = np.inf
 
     return LineGrid(
         segments=setups,
@@ -190,10 +235,21 @@ def build_line(alt: Alternative, refine: float, cells_per_segment: int | None) -
         seg_first_cell=np.cumsum([0] + [s.n_cells for s in setups[:-1]]),
         cells_per_seg=counts,
         has_fittings=[bool(s.fittings) for s in setups],
+        r_foul=per_cell("inside_fouling_resistance"),
+        cond_mask=kinds_steam,
+        steam_pressure=per_cell("steam_pressure_Pa"),
+        r_steam_foul=per_cell("steam_fouling_resistance"),
+        d_pipe_outer=per_cell("pipe_outer_diameter_m"),
+        g_tracer=per_cell("tracer_conductance"),
+        t_tracer=np.nan_to_num(per_cell("tracer_temperature_K"), nan=0.0),
+        vertical_length=per_cell("vertical_length_m") * film_mask,
+        x0_entry=x0_entry,
+        x1_entry=x1_entry,
+        developing=np.array([s.entry_developing for s in setups], dtype=bool)[seg_of_cell],
     )
 
 
-def _resolve_segments(alt: Alternative) -> list[SegmentSetup]:
+def _resolve_segments(alt: Alternative, factors: MethodFactors = NEUTRAL) -> list[SegmentSetup]:
     setups = []
     for i, seg in enumerate(alt.segments):
         prefix = f"segments[{i}]"
@@ -204,11 +260,18 @@ def _resolve_segments(alt: Alternative) -> list[SegmentSetup]:
         sur = seg.surroundings
         d = d_po
         r_ins = 0.0
+        layers = []
         if not isinstance(sur, (FixedWall, Jacket)):
             for layer in seg.insulation:
                 d_next = d + 2.0 * layer.thickness_m
-                r_ins += _cylinder_resistance(d, d_next, layer.conductivity_W_per_mK)
+                r_layer = _cylinder_resistance(d, d_next, layer.conductivity_W_per_mK * factors.insulation_conductivity)
+                layers.append((layer.material, r_layer))
+                r_ins += r_layer
                 d = d_next
+        steam_p = math.nan
+        r_steam_foul = 0.0
+        r_soil = 0.0
+        r_jacket = 0.0
         if isinstance(sur, (StillAir, Wind)):
             t_inf = sur.temperature_K
         elif isinstance(sur, Buried):
@@ -218,21 +281,27 @@ def _resolve_segments(alt: Alternative) -> list[SegmentSetup]:
                     f"{prefix}.surroundings.depth_m", sur.depth_m,
                     f"the pipe centreline must lie deeper than its outer radius ({d / 2:.3f} m)",
                 )
+            r_soil = _buried_resistance(d, sur.depth_m, sur.soil_conductivity_W_per_mK * factors.soil_conductivity)
         elif isinstance(sur, Jacket):
             t_inf = sur.medium_temperature_K
+            r_jacket = 1.0 / (sur.film_coefficient_W_per_m2K * factors.jacket_film * math.pi * d_po)
         elif isinstance(sur, FixedWall):
             if sur.wall_temperature_K is not None:
                 t_inf = sur.wall_temperature_K
             else:
-                water = fluid_model(PureFluid(name="Water"))
-                t_inf = float(water.saturation_temperature(np.array([sur.steam_pressure_Pa]))[0])
-                if not math.isfinite(t_inf):
-                    raise InputError(
-                        f"{prefix}.surroundings.steam_pressure_Pa", sur.steam_pressure_Pa,
-                        "no saturation temperature at this pressure (above the critical point of water?)",
-                    )
+                t_inf = _steam_temperature(sur.steam_pressure_Pa, f"{prefix}.surroundings.steam_pressure_Pa")
+                steam_p = sur.steam_pressure_Pa
+                r_steam_foul = sur.steam_side_fouling_m2K_per_W / (math.pi * d_po)
         else:  # adiabatic
             t_inf = math.nan
+        g_tracer, t_tracer = 0.0, math.nan
+        if seg.steam_tracer is not None:
+            tr = seg.steam_tracer
+            t_tracer = _steam_temperature(tr.steam_pressure_Pa, f"{prefix}.steam_tracer.steam_pressure_Pa")
+            g_tracer = tr.count * factors.tracer_conductance * steam.tracer_conductance_W_per_mK(
+                tr.contact, tr.tube_outer_diameter_m)
+        # a steep run in air loses heat like a vertical surface of its height, not a horizontal cylinder
+        steep = abs(seg.elevation_change_m) > STEEP_RISE_RATIO * seg.length_m
         setups.append(
             SegmentSetup(
                 index=i,
@@ -251,9 +320,58 @@ def _resolve_segments(alt: Alternative) -> list[SegmentSetup]:
                 n_cells=0,
                 surroundings=sur,
                 fittings=list(seg.fittings),
+                layer_resistances=layers,
+                inside_fouling_resistance=seg.inside_fouling_m2K_per_W / (math.pi * d_in),
+                soil_resistance=r_soil,
+                jacket_resistance=r_jacket,
+                steam_pressure_Pa=steam_p,
+                steam_fouling_resistance=r_steam_foul,
+                tracer_conductance=g_tracer,
+                tracer_temperature_K=t_tracer,
+                vertical_length_m=abs(seg.elevation_change_m) if steep else 0.0,
             )
         )
     return setups
+
+
+def _steam_temperature(p_steam: float, field_name: str) -> float:
+    """Saturation temperature of steam at ``p_steam`` [K]; an InputError naming the field outside water's range."""
+    return steam.saturation_temperature_K(p_steam, field_name)
+
+
+def _entry_origins(setups: list[SegmentSetup], inlet_flow: str) -> None:
+    """Where each segment's entry length starts (DESIGN: the entry rule).
+
+    * The first segment: at the line inlet when the flow develops from there (fed from a vessel
+      or header: velocity and temperature develop together); nowhere (fully developed) when the
+      flow arrives developed from long upstream piping.
+    * A change of bore restarts both (the flow re-develops after a reducer).
+    * A change of the wall's thermal condition — another kind of surroundings, or heat input
+      (tracing, steam tracer) switched on or off — restarts the thermal entry only: the velocity
+      profile is already developed there.
+    * Otherwise the entry carries on from the segment before: a run of like segments is one entry.
+    """
+    x = 0.0
+    for k, s in enumerate(setups):
+        if k == 0:
+            if inlet_flow == "developed":
+                s.entry_origin_m, s.entry_developing = math.inf, False
+            else:
+                s.entry_origin_m, s.entry_developing = 0.0, True
+        else:
+            prev = setups[k - 1]
+            if not math.isclose(s.inner_diameter_m, prev.inner_diameter_m, rel_tol=1e-9):
+                s.entry_origin_m, s.entry_developing = x, True
+            elif _thermal_condition(s) != _thermal_condition(prev):
+                s.entry_origin_m, s.entry_developing = x, False
+            else:
+                s.entry_origin_m, s.entry_developing = prev.entry_origin_m, prev.entry_developing
+        x += s.length_m
+
+
+def _thermal_condition(s: SegmentSetup) -> tuple:
+    """What the entry rule compares between neighbours: the surroundings' kind and whether heat is put in."""
+    return (s.kind, s.heat_input_W_per_m > 0.0 or s.tracer_conductance > 0.0)
 
 
 @functools.lru_cache(maxsize=1024)
@@ -288,44 +406,29 @@ def _cells_for(setups: list[SegmentSetup], refine: float, cells_per_segment: int
 def _cells_along(setups: list[SegmentSetup], counts: np.ndarray, seg_of_cell: np.ndarray):
     """Cell lengths and the n + 1 cell edges along the whole line [m], all segments at once.
 
-    Each segment's edges are those of :func:`_cell_edges` (the same numbers: ``np.linspace``
-    is ``i · (1/n)`` with the last edge exactly 1), offset by the lengths of the segments
-    before it; only the first segment, clustered, is laid out on its own.
+    Within a segment the edges are at s·L for s = i/n; where an entry length starts at the
+    segment's inlet, s is replaced by s² so the cells cluster where the entry effects are steep (the
+    inside coefficient is singular at an entry start; s² keeps the bulk there grid-independent to
+    well under 0.01 K on the sample projects, s^1.5 did not).
     """
     n = int(counts.sum())
-    first = setups[0]
-    edges0 = _cell_edges(first.length_m, first.n_cells, clustered=True)
-    dx = np.empty(n)
+    first_cell = np.concatenate([[0], np.cumsum(counts)[:-1]])
+    local = np.arange(n) - np.repeat(first_cell, counts)  # position of each cell within its segment
+    step = 1.0 / counts.astype(float)
+    lo = local * step[seg_of_cell]
+    hi = (local + 1) * step[seg_of_cell]
+    hi[local == counts[seg_of_cell] - 1] = 1.0  # the last edge exactly at the segment's end
+    x_start = np.empty(len(setups))
+    acc = 0.0
+    for s in setups:  # sums in flow order, as the segments are laid end to end
+        x_start[s.index] = acc
+        acc += s.length_m
+    clustered = np.array([s.entry_origin_m == x_start[s.index] for s in setups], dtype=bool)[seg_of_cell]
+    lo = np.where(clustered, lo * lo, lo)
+    hi = np.where(clustered, hi * hi, hi)
+    seg_len = np.array([s.length_m for s in setups], dtype=float)[seg_of_cell]
+    dx = seg_len * hi - seg_len * lo
     x_node = np.empty(n + 1)
     x_node[0] = 0.0
-    m = first.n_cells
-    dx[:m] = np.diff(edges0)
-    x_node[1:m + 1] = edges0[1:]  # x_start 0.0 + edges, as for every segment
-    if len(setups) > 1:
-        rest = seg_of_cell[m:]
-        # position of each later cell within its segment: 0 .. n_cells - 1
-        local = np.arange(m, n) - np.repeat(np.cumsum(counts)[:-1], counts[1:])
-        length = np.array([s.length_m for s in setups], dtype=float)
-        step = 1.0 / counts.astype(float)  # linspace's step for one segment
-        lo = local * step[rest]  # linspace(0, 1, k + 1)[local] (+ 0.0 start changes nothing)
-        hi = (local + 1) * step[rest]
-        last = local == counts[rest] - 1
-        hi[last] = 1.0  # linspace sets its end point exactly
-        seg_len = length[rest]
-        edge_hi = seg_len * hi
-        dx[m:] = edge_hi - seg_len * lo
-        x_start = []
-        acc = 0.0
-        for s in setups:  # sums in flow order, as the segments are laid end to end
-            x_start.append(acc)
-            acc += s.length_m
-        x_node[m + 1:] = np.array(x_start)[rest] + edge_hi
+    x_node[1:] = x_start[seg_of_cell] + seg_len * hi
     return dx, x_node
-
-
-def _cell_edges(length: float, n: int, clustered: bool) -> np.ndarray:
-    """Cell edges on [0, L]; near the line inlet cells are clustered where entry effects are steep."""
-    s = np.linspace(0.0, 1.0, n + 1)
-    if clustered:
-        s = s**1.5
-    return length * s

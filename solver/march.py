@@ -35,7 +35,8 @@ import numpy as np
 from solver import correlations
 from solver._numeric import clip as _clip
 from solver.errors import CalorunError, InputError, PropertyRangeError, SolverError
-from solver.films import AirAtOneAtmosphere, air_film, inside_nusselt
+from solver.factors import NEUTRAL, MethodFactors
+from solver.films import AirAtOneAtmosphere, air_film_parts, condensate_resistance, inside_nusselt_mean
 from solver.line import GRAVITY, LineGrid, build_line
 from solver.model import Alternative
 from solver.profiles import line_result
@@ -54,15 +55,17 @@ def solve(
     cells_per_segment: int | None = None,
     max_iterations: int = 60,
     tolerance_K: float = 1e-3,
+    factors: MethodFactors | None = None,
 ) -> Result:
     """Solve one alternative and return its :class:`~solver.results.Result`.
 
     ``refine`` scales the automatic cell counts (2.0 doubles them: the grid
-    check); ``cells_per_segment`` fixes them. Raises only
+    check); ``cells_per_segment`` fixes them. ``factors`` scales the methods' results (the
+    uncertainty bands; None = every method as published). Raises only
     :class:`~solver.errors.CalorunError` subclasses.
     """
     try:
-        return _solve(alternative, refine, cells_per_segment, max_iterations, tolerance_K)
+        return _solve(alternative, refine, cells_per_segment, max_iterations, tolerance_K, factors or NEUTRAL)
     except PropertyRangeError as exc:
         raise SolverError(f"fluid property out of range: {exc}", alternative=alternative.name) from None
     except InputError as exc:
@@ -86,7 +89,8 @@ def _located_input_error(alt: Alternative, exc: InputError) -> InputError:
     return located
 
 
-def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: int, tol: float) -> Result:
+def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: int, tol: float,
+           factors: MethodFactors) -> Result:
     fluid = fluid_model(alt.fluid)
     feed = alt.feed
     t_in = feed.inlet_temperature_K
@@ -97,30 +101,43 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
         m_dot = feed.mass_flow_kg_per_s
     else:
         m_dot = feed.volume_flow_m3_per_s * float(props_in.rho[0])
-    line = build_line(alt, refine, cells_per_segment)
-    state = _march(alt, fluid, line, m_dot, float(props_in.h[0]), max_iterations, tol)
+    line = build_line(alt, refine, cells_per_segment, factors)
+    state = _march(alt, fluid, line, m_dot, float(props_in.h[0]), max_iterations, tol, factors)
     return line_result(alt, fluid, line, state)
 
 
 def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max_iterations: int,
-           tol: float) -> MarchState:
-    """Iterate properties, film coefficients, heat and pressure over all cells to a fixed point."""
+           tol: float, factors: MethodFactors = NEUTRAL) -> MarchState:
+    """Iterate properties, film coefficients, heat and pressure over all cells to a fixed point.
+
+    The fixed point is reached when, between two passes, no bulk, inner-wall, outer-surface or
+    heated-wall temperature moves by ``tol`` or more and no pressure by ``tol`` × 1 bar or more:
+    every reported temperature has settled, not only the bulk.
+    """
     t_in = alt.feed.inlet_temperature_K
     p_in = alt.feed.inlet_pressure_Pa
     n = line.n
-    dx, D, area, rel_rough, x_mid = line.dx, line.D, line.area, line.rel_rough, line.x_mid
-    q_in, t_inf, dz, film_mask = line.q_in, line.t_inf, line.dz, line.film_mask
+    dx, D, area, rel_rough = line.dx, line.D, line.area, line.rel_rough
+    t_inf, dz, film_mask, cond_mask = line.t_inf, line.dz, line.film_mask, line.cond_mask
     air = AirAtOneAtmosphere.get() if film_mask.any() else None
+    any_cond = bool(cond_mask.any())
+    x0_over_d, x1_over_d = line.x0_entry / D, line.x1_entry / D
 
     T = np.full(n + 1, t_in)
     p = np.full(n + 1, p_in)
     T_surface = np.where(np.isfinite(t_inf), 0.5 * (t_in + np.nan_to_num(t_inf, nan=t_in)), t_in)
+    T_wall = np.full(n, t_in)  # inner wall (the surface the fluid touches), cell means
+    T_heated = np.full(n, t_in)  # outer surface of the pipe wall (where tracing heat enters), cell means
+    if any_cond:
+        T_heated[cond_mask] = 0.5 * (t_in + t_inf[cond_mask])
     e_corr = np.zeros(n)  # temperature change not explained by Q / (m cp): pressure effect, cp curvature
     t_lo, t_hi = fluid.T_min_K, fluid.T_max_K
     t_inf_eff = np.nan_to_num(t_inf, nan=0.0)
     r_ins_film = line.r_ins[film_mask]
     d_film = line.d_outer[film_mask]
     area_film = math.pi * d_film
+    vertical_film = line.vertical_length[film_mask]
+    vertical_kw = {"vertical_length": vertical_film} if vertical_film.any() else {}
     converged = False
     last_change = math.inf
     h_target = None  # enthalpy at the nodes from the last pass (None before the first)
@@ -132,6 +149,12 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
     tsat_nodes = None
     sat_possible = isinstance(fluid, PureFluidModel) and bool(
         np.isfinite(fluid.saturation_temperature(np.array([p_in, max(p_in * 0.5, 2e3)]))).any())
+    h_conv = h_rad = np.zeros(0)
+    r_cond = np.full(n, np.nan)
+    wall_factor = np.ones(n)
+    wall_groups = None
+    g_tracer = g_tracer_pass = line.g_tracer
+    first_pass = True
     for _ in range(max_iterations):
         # properties at the nodes; cell values are the means of their two nodes (second order)
         T_eval = _clip(T, t_lo, t_hi)
@@ -169,18 +192,29 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
         Re = m_dot * D / (area * mu)
         Pr = cp * mu / k
         f = correlations.friction_factor(Re, rel_rough)
-        Nu = inside_nusselt(Re, Pr, f, x_mid / D, line.boundary, rel_rough)
-        h_inside = Nu * k / D
+        # cell means of the inside coefficient over each cell's stretch of its entry length
+        Nu = inside_nusselt_mean(Re, Pr, f, x0_over_d, x1_over_d, line.boundary, rel_rough, line.developing)
+        if not first_pass:
+            wall_factor, wall_groups = _wall_property_factor(fluid, Re, Pr, mu, T, T_wall, p, t_lo, t_hi, liquid_feed,
+                                                             tsat_nodes if sat_possible else None)
+        h_inside = Nu * wall_factor * (k / D) * factors.inside_film
         r_in = 1.0 / (h_inside * math.pi * D)
-        r_a = r_in + line.r_wall
+        r_a = r_in + line.r_foul + line.r_wall
 
-        # outside path; the air film depends on the outer surface temperature (iterated with the rest)
+        # outside path; the air film and the condensate film depend on temperatures (iterated with the rest)
         r_out_total = line.r_fixed_out.copy()
         if air is not None:
-            h_out = air_film(air, T_surface[film_mask], t_inf[film_mask], d_film,
-                             line.wind_speed[film_mask], line.emissivity[film_mask])
-            r_out_total[film_mask] = r_ins_film + 1.0 / (h_out * area_film)
-        T_new, Q_cell = _heat_pass(line, r_a, r_out_total, m_dot * cp, e_corr, t_in, t_inf_eff)
+            h_conv, h_rad = air_film_parts(air, T_surface[film_mask], t_inf[film_mask], d_film,
+                                           line.wind_speed[film_mask], line.emissivity[film_mask], factors,
+                                           **vertical_kw)
+            r_out_total[film_mask] = r_ins_film + 1.0 / ((h_conv + h_rad) * area_film)
+        if any_cond:
+            r_cond = np.full(n, np.nan)
+            r_cond[cond_mask] = condensate_resistance(line.steam_pressure[cond_mask], line.d_pipe_outer[cond_mask],
+                                                      line.r_steam_foul[cond_mask], T_heated[cond_mask], factors)
+            r_out_total[cond_mask] = r_cond[cond_mask]
+        g_tracer_pass = g_tracer
+        T_new, Q_cell, tm_cell = _heat_pass(line, r_a, r_out_total, m_dot * cp, e_corr, t_in, t_inf_eff, g_tracer)
         h_nodes = np.empty(n + 1)
         h_nodes[0] = h0
         # energy: d(h + g z) = dQ / m, so a liquid running downhill does not seem to cool
@@ -188,7 +222,7 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
         h_nodes[1:] += h0
 
         # pressure: friction + fittings + elevation + acceleration (density from the previous iterate)
-        dp_parts = _pressure_drops(line, fluid, m_dot, T, p, rho, velocity, Re, f)
+        dp_parts = _pressure_drops(line, fluid, m_dot, T, p, rho, velocity, Re, f * factors.friction)
         dp_friction, dp_fittings, dp_elevation, dp_accel = dp_parts
         dp_cell = dp_friction + dp_fittings + dp_elevation + dp_accel
         p_new = np.empty(n + 1)
@@ -203,12 +237,27 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
                 alternative=alt.name, segment=line.segment_at(i_bad).name, x_m=float(line.x_node[i_bad]),
             )
 
-        # outer surface temperature for the film coefficient
+        # the wall temperatures of this pass: inner wall (fluid side) and the heated node
+        q_fluid = Q_cell / dx
+        T_wall_new = tm_cell + q_fluid * r_in
+        T_heated_new = tm_cell + q_fluid * r_a
+        wall_step = float(np.max(np.abs(T_wall_new - T_wall)))
+        if any_cond:
+            wall_step = max(wall_step, float(np.max(np.abs(T_heated_new[cond_mask] - T_heated[cond_mask]))))
+        T_wall, T_heated = T_wall_new, T_heated_new
+        if line.any_tracer:
+            # a steam tracer only heats: where the pipe is at or above its steam temperature it gives nothing
+            g_tracer = np.where(T_heated < line.t_tracer, line.g_tracer, 0.0)
+        # outer surface temperature for the film coefficient: the surface balance closed per cell
+        surface_step = 0.0
         if air is not None:
-            q_loss = q_in[film_mask] - Q_cell[film_mask] / dx[film_mask]
-            r_film = r_out_total[film_mask] - r_ins_film
-            T_surface[film_mask] = t_inf[film_mask] + q_loss * r_film
-        last_step = max(float(np.max(np.abs(T_new - T))), float(np.max(np.abs(p_new - p))) * 1e-5)
+            t_surf_new = _surface_temperature(air, line, film_mask, T_heated[film_mask], T_surface[film_mask],
+                                              r_ins_film, d_film, vertical_kw, factors)
+            surface_step = float(np.max(np.abs(t_surf_new - T_surface[film_mask])))
+            T_surface[film_mask] = t_surf_new
+        last_step = max(float(np.max(np.abs(T_new - T))), float(np.max(np.abs(p_new - p))) * 1e-5,
+                        wall_step, surface_step)
+        first_pass = False
         # a phase change or a state beyond the fluid data on two passes in a row is real, not a transient
         tsat_nodes = fluid.saturation_temperature(p_new) if sat_possible else None
         problem = _phase_or_range_problem(fluid, T_new, p_new, t_lo, t_hi, liquid_feed, tsat_nodes)
@@ -238,37 +287,105 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
             f"at {T[i_bad] - 273.15:.1f} °C",
             alternative=alt.name, segment=line.segment_at(i_bad).name, x_m=float(line.x_node[i_bad]),
         )
+    h_conv_out = np.full(n, np.nan)
+    h_rad_out = np.full(n, np.nan)
+    if air is not None:
+        h_conv_out[film_mask], h_rad_out[film_mask] = h_conv, h_rad
+    q_tracer = g_tracer_pass * (line.t_tracer - T_heated) if line.any_tracer else np.zeros(n)
     return MarchState(
         m_dot=m_dot, h_in=h0, T=T, p=p, h_nodes=h_nodes, Q_cell=Q_cell, T_surface=T_surface,
         r_out_total=r_out_total, Re=Re, Pr=Pr, velocity=velocity, rho=rho,
         dp_friction=dp_friction, dp_fittings=dp_fittings, dp_elevation=dp_elevation, dp_accel=dp_accel, air=air,
+        r_in=r_in, wall_factor=wall_factor, h_conv_out=h_conv_out, h_rad_out=h_rad_out, r_cond=r_cond,
+        q_tracer=q_tracer, T_heated=T_heated, T_wall=T_wall, factors=factors, gas=bool(fluid.compressible),
+        wall_groups=wall_groups, g_tracer=g_tracer_pass,
     )
 
 
 # --------------------------------------------------------------------------- pieces
 
 
-def _heat_pass(line: LineGrid, r_a, r_out_total, mcp, e_corr, t_in: float, t_inf_eff):
-    """Bulk temperature at the cell edges and heat to the fluid per cell [W] for one pass.
+def _wall_property_factor(fluid, Re, Pr, mu, T_nodes, T_wall, p_nodes, t_lo, t_hi, liquid_feed, tsat_nodes):
+    """The property-ratio factor on the inside coefficient per cell, from the last pass's inner wall,
+    and the ratios it was formed from (for the validity check)."""
+    T_bulk = 0.5 * (T_nodes[:-1] + T_nodes[1:])
+    if fluid.compressible:
+        groups = {"T_ratio": T_bulk / T_wall}
+        return correlations.wall_property_factor(Re, None, None, None, None, T_bulk, T_wall, True), groups
+    p_cell = 0.5 * (p_nodes[:-1] + p_nodes[1:])
+    t_eval = _clip(T_wall, t_lo, t_hi)
+    if tsat_nodes is not None and liquid_feed:
+        # a wall above boiling is flagged by the checks; its properties are taken just below it
+        tsat_cell = np.minimum(tsat_nodes[:-1], tsat_nodes[1:])
+        t_eval = np.where(np.isfinite(tsat_cell), np.minimum(t_eval, tsat_cell - 0.05), t_eval)
+    pw = fluid.props(t_eval, p_cell)
+    pr_wall = pw.cp * pw.mu / pw.k
+    groups = {"mu_ratio": mu / pw.mu, "Pr_ratio": Pr / pr_wall}
+    return correlations.wall_property_factor(Re, Pr, pr_wall, mu, pw.mu, T_bulk, T_wall, False), groups
+
+
+def _surface_temperature(air, line: LineGrid, film_mask, t_heated, t_surface, r_ins, d_out, vertical_kw, factors,
+                         passes: int = 1):
+    """Outer surface temperature in air, with the surface balance closed at the pass's heated-wall temperature.
+
+    At the surface, heat conducted through the insulation equals the heat the air film carries away:
+    (T_h − T_s)/R_ins = h(T_s)·π·D·(T_s − T∞). Solved by a few fixed-point steps on T_s from the
+    last value (h depends weakly on T_s, so each step cuts the error several-fold; one step per pass
+    is enough, the march's own passes repeat it until nothing moves).
+    """
+    t_inf = line.t_inf[film_mask]
+    area = math.pi * d_out
+    for _ in range(passes):
+        h_conv, h_rad = air_film_parts(air, t_surface, t_inf, d_out, line.wind_speed[film_mask],
+                                       line.emissivity[film_mask], factors, **vertical_kw)
+        g_film = (h_conv + h_rad) * area
+        # series: heated node -> insulation -> surface -> film -> air
+        t_surface = (t_heated + r_ins * g_film * t_inf) / (1.0 + r_ins * g_film)
+    return t_surface
+
+
+def _heat_pass(line: LineGrid, r_a, r_out_total, mcp, e_corr, t_in: float, t_inf_eff, g_tracer):
+    """Bulk temperature at the cell edges, heat to the fluid per cell [W] and the cell-mean bulk for one pass.
 
     Per cell the coefficients are constant and the bulk follows the exact exponential:
-    ΔT = [source + U'(T∞ − T_i)] dx/(m cp) · φ(NTU), with φ(NTU) = (1 − e^−NTU)/NTU.
+    ΔT = [source + U'(T_e − T_i)] dx/(m cp) · φ(NTU), with φ(NTU) = (1 − e^−NTU)/NTU.
+    The heated node (the pipe's outer wall) leads to the surroundings through ``r_out_total`` and,
+    where there are steam tracers, to their steam through 1/g_tracer: two paths in parallel, one
+    path of conductance G_e = 1/R_o + g_t to the temperature T_e = (T∞/R_o + g_t·T_t)/G_e
+    (``g_tracer`` per cell: 0 where there is no tracer or it gives no heat).
     ``e_corr`` is the temperature change not explained by Q/(m cp) (pressure effect, cp curvature).
     """
     n, dx = line.n, line.dx
     finite_out = np.isfinite(r_out_total)
+    g_out = np.zeros(n)
+    with np.errstate(divide="ignore"):
+        g_out[finite_out] = 1.0 / r_out_total[finite_out]  # inf where R_o = 0 (a fixed wall)
+    t_e = t_inf_eff
+    if line.any_tracer:
+        g_t = g_tracer
+        with np.errstate(invalid="ignore"):
+            g_e = g_out + g_t
+            t_e = np.where(g_t > 0, (g_out * t_inf_eff + g_t * line.t_tracer) / np.where(g_e > 0, g_e, 1.0),
+                           t_inf_eff)
+        g_out = g_e
     u_prime = np.zeros(n)
-    u_prime[finite_out] = 1.0 / (r_a[finite_out] + r_out_total[finite_out])
+    has_path = g_out > 0
+    with np.errstate(divide="ignore"):
+        u_prime[has_path] = 1.0 / (r_a[has_path] + 1.0 / g_out[has_path])
     source = line.q_in * (1.0 - r_a * u_prime)  # share of heat input reaching the fluid [W/m]
     ntu = u_prime * dx / mcp
     decay = np.exp(-ntu)
     one_minus = -np.expm1(-ntu)  # = NTU·φ(NTU)
     phi = np.where(ntu > 1e-12, one_minus / np.maximum(ntu, 1e-300), 1.0)
-    gain = (source * dx / mcp) * phi + one_minus * t_inf_eff
+    gain = (source * dx / mcp) * phi + one_minus * t_e
     T_new = _linear_recurrence(decay, gain + e_corr, t_in)
     dT_heat = np.diff(T_new) - e_corr
     Q_cell = mcp * dT_heat  # heat to fluid in each cell [W]
-    return T_new, Q_cell
+    # the cell-mean bulk of the exponential: T_i + w·ΔT with w = (1 − φ)/(1 − e^−NTU) (1/2 + NTU/12 for
+    # small NTU, where the closed form cancels), so mean wall temperatures follow the same profile
+    w = np.where(ntu > 1e-5, (1.0 - phi) / np.where(ntu > 1e-5, one_minus, 1.0), 0.5 + ntu / 12.0)
+    tm_cell = T_new[:-1] + w * np.diff(T_new)
+    return T_new, Q_cell, tm_cell
 
 
 def _pressure_drops(line: LineGrid, fluid, m_dot: float, T, p, rho, velocity, Re, f):

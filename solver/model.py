@@ -118,6 +118,11 @@ class Feed(_Model):
     inlet_pressure_Pa: PositiveFloat = Field(300_000.0, description="absolute")
     mass_flow_kg_per_s: Optional[PositiveFloat] = 1.0
     volume_flow_m3_per_s: Optional[PositiveFloat] = None
+    inlet_flow: Literal["developing", "developed"] = Field(
+        "developing",
+        description="developing: the flow enters from a vessel or header and develops from the inlet; "
+                    "developed: it arrives fully developed from long upstream piping",
+    )
 
     @model_validator(mode="after")
     def _one_flow(self) -> "Feed":
@@ -272,15 +277,20 @@ class Jacket(_Model):
 
 
 class FixedWall(_Model):
-    """The pipe's outer wall held at a fixed temperature, e.g. by condensing steam.
+    """The pipe's outer wall held at a fixed temperature, or heated by condensing steam.
 
-    Give the temperature, or the steam pressure (absolute) whose saturation
-    temperature holds the wall. Insulation layers play no part here.
+    Give the wall temperature (an idealisation: the wall is held exactly there), or
+    the steam pressure (absolute) of saturated steam condensing on the pipe: then the
+    condensate film (Nusselt film condensation on a horizontal tube) and any steam-side
+    fouling lie between the steam and the pipe wall. Insulation layers play no part here.
     """
 
     kind: Literal["fixed_wall"] = "fixed_wall"
     wall_temperature_K: Optional[Temperature] = 423.15
     steam_pressure_Pa: Optional[PositiveFloat] = None
+    steam_side_fouling_m2K_per_W: NonNegativeFloat = Field(
+        0.0, description="fouling resistance on the steam side (with steam pressure only), per m² of pipe outside"
+    )
 
     @model_validator(mode="after")
     def _one_source(self) -> "FixedWall":
@@ -304,6 +314,21 @@ Surroundings = Annotated[
 ]
 
 
+class SteamTracer(_Model):
+    """Steam tube tracers laid along the pipe under its insulation.
+
+    Saturated steam at ``steam_pressure_Pa`` (absolute) in ``count`` tubes; each passes heat to
+    the pipe wall through its contact conductance per metre, which depends on ``contact``:
+    ``"bare"`` (wired to the pipe) or ``"cement"`` (bedded in heat-transfer cement). The heat a
+    tracer gives then depends on the pipe temperature; see ``solver.steam``.
+    """
+
+    steam_pressure_Pa: PositiveFloat = Field(450_000.0, description="absolute")
+    count: int = Field(1, ge=1, le=12)
+    tube_outer_diameter_m: PositiveFloat = Field(0.0127, description="tube outside diameter (1/2 in by default)")
+    contact: Literal["bare", "cement"] = "bare"
+
+
 # --------------------------------------------------------------------------- segment, alternative, project
 
 
@@ -321,6 +346,10 @@ class Segment(_Model):
     elevation_change_m: float = Field(0.0, description="outlet elevation minus inlet elevation")
     fittings: list[Fitting] = Field(default_factory=list)
     heat_input_W_per_m: NonNegativeFloat = 0.0
+    steam_tracer: Optional[SteamTracer] = None
+    inside_fouling_m2K_per_W: NonNegativeFloat = Field(
+        0.0, description="fouling resistance on the fluid side, per m² of bore surface"
+    )
     insulation: list[Layer] = Field(default_factory=list)
     surroundings: Surroundings = Field(default_factory=StillAir)
 
@@ -335,6 +364,11 @@ class Segment(_Model):
             raise ValueError(
                 "heat_input_W_per_m cannot be combined with a fixed wall temperature "
                 f"(the wall already has its temperature), got {self.heat_input_W_per_m} W/m"
+            )
+        if self.steam_tracer is not None and isinstance(self.surroundings, (FixedWall, Jacket)):
+            raise ValueError(
+                "steam_tracer cannot be combined with a jacket or a fixed wall temperature "
+                f"(the jacket or wall already sets the outside), got surroundings {self.surroundings.kind!r}"
             )
         return self
 

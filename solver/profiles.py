@@ -13,9 +13,10 @@ import math
 import numpy as np
 
 from solver import checks as checks_mod, correlations
-from solver.films import air_film, inside_nusselt
+from solver.films import air_film_parts, condensate_resistance, inside_nusselt
 from solver.line import GRAVITY, LineGrid, SegmentSetup
 from solver.model import Alternative
+from solver.resistances import segment_resistances
 from solver.results import PressureDropBreakdown, Profile, Result, SegmentSpan
 from solver.state import MarchState
 
@@ -26,7 +27,7 @@ def line_result(alt: Alternative, fluid, line: LineGrid, state: MarchState) -> R
     # Heat input = tracing + heat from heating or cooling media (jacket, fixed wall; signed);
     # heat loss = heat to the ambient (air, soil). duty = heat input − heat loss.
     media = (line.kinds == "jacket") | (line.kinds == "fixed_wall")
-    tracing_cell = line.q_in * line.dx
+    tracing_cell = (line.q_in + state.q_tracer) * line.dx  # electric and steam tracing
     media_cell = np.where(media, Q_cell - tracing_cell, 0.0)
     q_loss_cell = np.where(media, 0.0, tracing_cell - Q_cell)  # W to the ambient per cell
     heat_tracing = float(np.sum(tracing_cell))
@@ -89,6 +90,7 @@ def line_result(alt: Alternative, fluid, line: LineGrid, state: MarchState) -> R
         reynolds_range=(float(np.min(Re)), float(np.max(Re))),
         cells=line.n,
         methods=checks_mod.methods_used(line, state),
+        resistances=segment_resistances(line, state),
     )
 
 
@@ -117,28 +119,47 @@ def _node_profiles(line: LineGrid, state: MarchState, fluid, heat_in_cell: np.nd
     Pr = pr.cp * pr.mu / pr.k
     rel_rough = line.rel_rough[ci]
     f = correlations.friction_factor(Re, rel_rough)
-    # the local coefficient is unbounded at x = 0; report the inlet node at half the first cell
-    x_over_d = np.maximum(x, 0.5 * line.dx[0]) / Dn
+    # the local coefficient at the node's own distance along its entry length (inf: developed); at
+    # the very start of an entry it is unbounded (clipped to X_OVER_D_MIN) and the wall meets the bulk
+    seg_origin = np.array([s.entry_origin_m for s in segs])[seg_of_node]
+    x_entry = np.where(np.isinf(seg_origin), np.inf, x - np.where(np.isinf(seg_origin), 0.0, seg_origin))
+    x_over_d = np.maximum(x_entry, 0.0) / Dn
     boundary = line.boundary if isinstance(line.boundary, str) else line.boundary[ci]
-    Nu = inside_nusselt(Re, Pr, f, x_over_d, boundary, rel_rough)
-    h_i = Nu * pr.k / Dn
+    Nu = inside_nusselt(Re, Pr, f, x_over_d, boundary, rel_rough, line.developing[ci])
+    h_i = Nu * pr.k / Dn * _at_nodes(state.wall_factor, line, ni, ci) * state.factors.inside_film
     r_in = 1.0 / (h_i * math.pi * Dn)
-    r_a = r_in + line.r_wall[ci]
-    r_out = line.r_fixed_out[ci].copy()
-    fm = line.film_mask[ci]
-    r_ins_n = line.r_ins[ci]
-    if state.air is not None and fm.any():
-        d_out = line.d_outer[ci][fm]
-        h_out = air_film(state.air, state.T_surface[ci][fm], line.t_inf[ci][fm], d_out, line.wind_speed[ci][fm],
-                         line.emissivity[ci][fm])
-        r_out[fm] = r_ins_n[fm] + 1.0 / (h_out * math.pi * d_out)
-    u = np.where(np.isinf(r_out), 0.0, 1.0 / (r_a + r_out))
+    r_a = r_in + line.r_foul[ci] + line.r_wall[ci]
+    r_out = state.r_out_total[ci].copy()  # the cells' converged outside path: the start for the nodes' own
     tinf = np.nan_to_num(line.t_inf[ci], nan=0.0)
     q_in = line.q_in[ci]
-    q_fluid = q_in * (1.0 - r_a * u) + u * (tinf - Tm)  # W/m into the fluid at this node
+    g_t = state.g_tracer[ci]
+    t_t = line.t_tracer[ci]
+    fm = line.film_mask[ci]
+    cm = line.cond_mask[ci]
+    r_ins_n = line.r_ins[ci]
+    t_surface_film = None
+    for _ in range(3 if (fm.any() or cm.any()) else 1):
+        # the outside path at the node's own temperatures: a few fixed-point steps from the cell values
+        q_fluid, t_heated = _node_heat(q_in, Tm, r_a, r_out, tinf, g_t, t_t)
+        if state.air is not None and fm.any():
+            d_out = line.d_outer[ci][fm]
+            if t_surface_film is None:
+                t_surface_film = state.T_surface[ci][fm]
+            else:
+                g_film = np.where(np.isfinite(r_out[fm]), 1.0 / (r_out[fm] - r_ins_n[fm]), 0.0)
+                t_surface_film = (t_heated[fm] + r_ins_n[fm] * g_film * tinf[fm]) / (1.0 + r_ins_n[fm] * g_film)
+            kw = {"vertical_length": line.vertical_length[ci][fm]} if line.vertical_length[ci][fm].any() else {}
+            h_conv, h_rad = air_film_parts(state.air, t_surface_film, line.t_inf[ci][fm], d_out,
+                                           line.wind_speed[ci][fm], line.emissivity[ci][fm], state.factors, **kw)
+            r_out[fm] = r_ins_n[fm] + 1.0 / ((h_conv + h_rad) * math.pi * d_out)
+        if cm.any():
+            cc = ci[cm]
+            r_out[cm] = condensate_resistance(line.steam_pressure[cc], line.d_pipe_outer[cc], line.r_steam_foul[cc],
+                                              t_heated[cm], state.factors)
+    q_fluid, t_heated = _node_heat(q_in, Tm, r_a, r_out, tinf, g_t, t_t)
     t_inner_wall = Tm + q_fluid * r_in
-    t_heated = Tm + q_fluid * r_a
-    q_loss = q_in - q_fluid
+    q_tracer = g_t * (t_t - t_heated)
+    q_loss = q_in + q_tracer - q_fluid  # W/m to the surroundings (or from a heating medium, negative)
     # the outer surface: over insulation for air/buried; the pipe outer wall for jacket/fixed/adiabatic
     over_insulation = np.repeat([s.kind in ("still_air", "wind", "buried") for s in segs], nodes_per_seg)
     t_surface = np.where(over_insulation, t_heated - q_loss * r_ins_n, t_heated)
@@ -166,6 +187,45 @@ def _node_profiles(line: LineGrid, state: MarchState, fluid, heat_in_cell: np.nd
         saturation_temperature_K=fluid.saturation_temperature(pn),
     )
     return prof, spans
+
+
+def _at_nodes(cell_values: np.ndarray, line: LineGrid, ni: np.ndarray, ci: np.ndarray) -> np.ndarray:
+    """A cell quantity at the profile nodes, second order: the mean of the two cells either side of
+    an interior node, extrapolated linearly at a segment's first and last node (values do not cross
+    segment boundaries, where the wall model may change)."""
+    first = line.seg_first_cell[line.seg_of_cell[ci]]
+    last = first + line.cells_per_seg[line.seg_of_cell[ci]] - 1
+    up = np.maximum(ni - 1, first)  # the cell upstream of the node, within the segment
+    v = 0.5 * (cell_values[up] + cell_values[np.minimum(ni, last)])
+    # segment ends: extrapolate from the two nearest cells (weights by cell centres)
+    at_start = ni == first
+    at_end = ni > last
+    for mask, a, b in ((at_start, first, np.minimum(first + 1, last)), (at_end, last, np.maximum(last - 1, first))):
+        if mask.any():
+            ia, ib = a[mask], b[mask]
+            xa, xb = line.x_mid[ia], line.x_mid[ib]
+            xn = line.x_node[ni[mask]]
+            with np.errstate(invalid="ignore", divide="ignore"):
+                w = np.where(ia != ib, (xn - xa) / (xb - xa), 0.0)
+            v[mask] = cell_values[ia] + w * (cell_values[ib] - cell_values[ia])
+    return v
+
+
+def _node_heat(q_in, Tm, r_a, r_out, t_inf, g_t, t_t):
+    """Heat to the fluid [W/m] and the heated-node temperature [K] at nodes, for given resistances.
+
+    The heated node (pipe outer wall) takes the heat input q_in, loses through R_o to T∞ and gains
+    from steam tracers through 1/g_t from T_t: T_h = (q_in + Tm/R_a + T∞/R_o + g_t·T_t)/(1/R_a + 1/R_o + g_t).
+    """
+    with np.errstate(divide="ignore"):
+        g_out = np.where(np.isinf(r_out), 0.0, 1.0 / r_out)  # inf for a fixed wall (R_o = 0)
+    fixed = np.isinf(g_out)
+    g_a = 1.0 / r_a
+    g_sum = g_a + np.where(fixed, 0.0, g_out) + g_t
+    t_heated = (q_in + g_a * Tm + np.where(fixed, 0.0, g_out) * t_inf + g_t * t_t) / g_sum
+    t_heated = np.where(fixed, t_inf, t_heated)
+    q_fluid = (t_heated - Tm) * g_a
+    return q_fluid, t_heated
 
 
 def _segment_K(s: SegmentSetup, re_nodes: np.ndarray) -> float:

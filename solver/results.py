@@ -127,6 +127,7 @@ CHECK_TITLES: dict[str, str] = {
     "NO_FLOW_HOLD": "too cold with the flow stopped",
     "NO_FLOW_OVERHEAT": "too hot with the flow stopped",
     "SURFACE_CONDENSATION": "surface below the dew point",
+    "TRACER_IDLE": "steam tracer gives no heat",
 }
 
 _TOKEN = re.compile(r"⟦(T|dT|v|q|n):([-+0-9.eE]+)⟧")
@@ -383,6 +384,8 @@ class Result:
     reynolds_range: tuple[float, float]
     cells: int
     methods: list[str] = field(default_factory=list)  # correlations used, with sources
+    # per segment: its heat path as resistances per metre (solver.resistances.SegmentResistances)
+    resistances: list = field(default_factory=list)
 
     @property
     def pressure_drop_Pa(self) -> float:
@@ -456,6 +459,8 @@ class Result:
             }
             for s in self.segments
         ]
+        for seg_out, res in zip(out["segments"], self.resistances):
+            seg_out["resistances"] = res.to_dict()
         if include_profile:
             out["profile"] = {k: _clean_list(v) for k, v in self.profile.columns().items()}
         out["checks"] = [c.to_dict() for c in self.checks]

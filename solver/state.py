@@ -10,6 +10,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from solver.factors import NEUTRAL, MethodFactors
 from solver.films import AirAtOneAtmosphere
 
 
@@ -39,6 +40,18 @@ class MarchState:
     dp_elevation: np.ndarray
     dp_accel: np.ndarray
     air: AirAtOneAtmosphere | None  # air properties where an outer air film is computed
+    r_in: np.ndarray = None  # inside film per cell [K·m/W] (property-ratio factor included)
+    wall_factor: np.ndarray = None  # property-ratio factor on the inside coefficient per cell [-]
+    h_conv_out: np.ndarray = None  # outer air film, convection [W/(m²·K)]; NaN where no air film
+    h_rad_out: np.ndarray = None  # outer air film, radiation [W/(m²·K)]; NaN where no air film
+    r_cond: np.ndarray = None  # condensate film + steam-side fouling [K·m/W]; NaN where no condensing steam
+    q_tracer: np.ndarray = None  # heat from steam tracers [W/m], cell means
+    g_tracer: np.ndarray = None  # steam tracer conductance in use [W/(m·K)]: 0 where a tracer gives no heat
+    T_heated: np.ndarray = None  # pipe outer wall (where tracing heat enters), cell means [K]
+    T_wall: np.ndarray = None  # inner wall the fluid touches, cell means [K]
+    factors: MethodFactors = NEUTRAL  # multipliers the solve used (uncertainty bands)
+    gas: bool = False  # the fluid is compressible (property correction by temperature ratio)
+    wall_groups: dict = None  # the property-ratio groups per cell (for the validity check), or None
 
     @property
     def dp_cell(self) -> np.ndarray:

@@ -40,7 +40,9 @@ SAMPLE = ROOT / "sample_projects" / "traced_residue_line.json"
 
 def _norm(text: str) -> str:
     """Whitespace-insensitive text (PDF extraction breaks lines; numbers use thin spaces)."""
-    text = text.replace("\u2009", " ").replace("\u00a0", " ").replace("\ufb01", "fi").replace("\ufb02", "fl")
+    text = text.replace("\u2009", " ").replace("\u00a0", " ")
+    for ligature, letters in (("\ufb00", "ff"), ("\ufb01", "fi"), ("\ufb02", "fl"), ("\ufb03", "ffi"), ("\ufb04", "ffl")):
+        text = text.replace(ligature, letters)
     return re.sub(r"\s+", " ", text).strip()
 
 

@@ -40,7 +40,6 @@ def test_cutting_a_line_into_segments_changes_nothing():
     # the spans tile the line: each starts where the previous ends, at the running length
     assert [s.x_start_m for s in rc.segments] == pytest.approx([10.0 * i for i in range(24)], abs=1e-9)
     assert [s.x_end_m for s in rc.segments] == pytest.approx([10.0 * (i + 1) for i in range(24)], abs=1e-9)
-    assert sum(s.duty_W for s in rc.segments) == pytest.approx(rc.duty_W, rel=1e-9)
     # each piece's share of the friction drop: Darcy-Weisbach, Colebrook friction factor (fluids)
     rho = float(rc.profile.density_kg_per_m3[0])
     d = rc.segments[0].inner_diameter_m
@@ -81,3 +80,32 @@ def test_a_check_is_reported_only_where_it_happens():
     walls = [c for c in r.checks if c.code == "WALL_LIMIT"]
     assert [c.segment for c in walls] == [0]
     assert r.outlet_temperature_K < 360.0  # the unheated pipe's wall is the bulk temperature, below the limit
+
+
+def test_each_segment_reports_its_own_heat():
+    """Six segments of different lengths, bare and insulated in turn: each one's duty is what the
+    water lost between its own ends, m (h_end − h_start), with both enthalpies from CoolProp
+    (IAPWS-95) at the profile's bulk temperature and pressure there; its span starts and ends at the
+    running length. A segment that summed another's cells, or a profile that mixed up the segments'
+    nodes, would show here (the segments' duties differ by a factor of ten)."""
+    import CoolProp.CoolProp as CP
+
+    lengths = [5.0, 20.0, 8.0, 30.0, 3.0, 12.0]
+    segs = [Segment(name=f"S{i}", length_m=length, pipe=NPS2,
+                    insulation=[Layer(thickness_m=0.05, conductivity_W_per_mK=0.04)] if i % 2 else [],
+                    surroundings=Wind(temperature_K=268.15, wind_speed_m_per_s=6.0))
+            for i, length in enumerate(lengths)]
+    alt = Alternative(name="cut unevenly", fluid=WATER, segments=segs,
+                      feed=Feed(inlet_temperature_K=353.15, inlet_pressure_Pa=5e5, mass_flow_kg_per_s=0.4))
+    r = solve(alt)
+    prof = r.profile
+    x_start = 0.0
+    for s, length in zip(r.segments, lengths):
+        assert (s.x_start_m, s.x_end_m) == pytest.approx((x_start, x_start + length), abs=1e-9)
+        assert (prof.x_m[s.node_start], prof.x_m[s.node_end]) == pytest.approx((x_start, x_start + length), abs=1e-9)
+        h0 = CP.PropsSI("H", "T", prof.bulk_temperature_K[s.node_start], "P", prof.pressure_Pa[s.node_start], "Water")
+        h1 = CP.PropsSI("H", "T", prof.bulk_temperature_K[s.node_end], "P", prof.pressure_Pa[s.node_end], "Water")
+        assert s.duty_W == pytest.approx(0.4 * (h1 - h0), rel=2e-3), s.name
+        x_start += length
+    bare, insulated = -r.segments[0].duty_W / 5.0, -r.segments[1].duty_W / 20.0
+    assert bare > 8 * insulated  # W/m: the bare pipe in wind loses an order of magnitude more
