@@ -2,7 +2,7 @@
 
     calorun [FILE]                         open the desktop app (the demo project when no file)
     calorun --screenshot OUT.png [FILE]    render the main window offscreen and exit
-    calorun solve PROJECT.json [--json] [--csv DIR] [--units SI|US] [--alternative NAME ...]
+    calorun solve PROJECT.json [--json [--uncertainty]] [--csv DIR] [--units SI|US] [--alternative NAME ...]
     calorun report PROJECT.json -o summary.pdf [--alternative NAME ...] [--units SI|US]
     calorun schema                         print the project file's JSON Schema
     calorun --help                         all of the above; ``calorun COMMAND --help`` for one
@@ -62,6 +62,9 @@ def build_parser() -> argparse.ArgumentParser:
     p_solve.add_argument("--csv", metavar="DIR", help="write the profiles of each alternative as CSV into DIR")
     p_solve.add_argument("--units", choices=("SI", "US"), default="SI", help="units of the table and CSV (default SI)")
     p_solve.add_argument("--alternative", action="append", metavar="NAME", help="solve only these alternatives")
+    p_solve.add_argument("--uncertainty", action="store_true",
+                         help="with --json: add uncertainty bands (each method re-solved at the edges of its "
+                              "published accuracy; ± per key figure, per method, bands along the line)")
 
     p_report = sub.add_parser("report", help="write the summary report (PDF)")
     p_report.add_argument("project", metavar="PROJECT.json")
@@ -170,6 +173,10 @@ def _headless(argv: list[str]) -> int:
             continue
         results.append(r)
         entries.append(r.to_dict())
+        if args.uncertainty and args.json:
+            from solver.uncertainty import line_bands
+
+            entries[-1]["uncertainty"] = line_bands(alt, r).to_dict()
     if args.json:
         print(json.dumps({"project": project.name, "alternatives": entries, "cautions": list(CAUTIONS)}, indent=1))
     else:

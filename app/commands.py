@@ -28,6 +28,12 @@ FIELD_LABELS = {
     "length_m": "length",
     "elevation_change_m": "elevation change",
     "heat_input_W_per_m": "heat input",
+    "inside_fouling_m2K_per_W": "inside fouling",
+    "steam_tracer": "steam tracer",
+    "steam_tracer.steam_pressure_Pa": "tracer steam pressure",
+    "steam_tracer.count": "number of tracer tubes",
+    "steam_tracer.tube_outer_diameter_m": "tracer tube diameter",
+    "steam_tracer.contact": "tracer contact",
     "pipe": "pipe",
     "pipe.bore": "bore entry",
     "pipe.nps": "NPS",
@@ -46,6 +52,7 @@ FIELD_LABELS = {
     "feed.inlet_pressure_Pa": "inlet pressure",
     "feed.mass_flow_kg_per_s": "mass flow",
     "feed.volume_flow_m3_per_s": "volume flow",
+    "feed.inlet_flow": "flow at inlet",
     "limits.max_inner_wall_temperature_K": "max inner-wall temperature",
     "limits.min_bulk_temperature_K": "min bulk temperature",
     "description": "description",
@@ -238,12 +245,14 @@ class DuplicateSegment(InsertSegment):
 def continuation_of(segment: Segment, name: str) -> Segment:
     """A new segment that continues ``segment``'s pipe and wall model.
 
-    It keeps what sets the heat path (pipe, heat input, insulation, surroundings), so a segment
+    It keeps what sets the heat path (pipe, heat input, steam tracer, inside fouling, insulation,
+    surroundings), so a segment
     inserted into a traced, insulated run is traced and insulated too and opens no cold gap;
     it starts level, without fittings and at the default length, since those belong to the
     place along the line, not to the wall.
     """
     return Segment(name=name, pipe=segment.pipe, heat_input_W_per_m=segment.heat_input_W_per_m,
+                   steam_tracer=segment.steam_tracer, inside_fouling_m2K_per_W=segment.inside_fouling_m2K_per_W,
                    insulation=list(segment.insulation), surroundings=segment.surroundings)
 
 

@@ -33,10 +33,18 @@ messages:
   anything else is a bug, logged with its traceback and shown as "internal error (…)".
 
 Results are handed back on the GUI thread through a queued signal.
+
+Uncertainty bands (:mod:`solver.uncertainty`: each method re-solved at the edges of its published
+accuracy) of the current alternative are computed on the same worker after its result is on
+screen and the edits have paused for :data:`BANDS_DELAY_MS`, at the lowest priority, one job
+that checks between its solves whether it is still wanted: an edit cancels it, so a new result
+waits at most for one perturbed solve. Bands are cached by the same content key as results and
+announced by :attr:`bands_ready`; :meth:`bands_for_result` gives the bands of a result on screen.
 """
 
 from __future__ import annotations
 
+import dataclasses
 import hashlib
 import logging
 import math
@@ -68,6 +76,12 @@ _SOLVE_EVENT = QEvent.Type(QEvent.registerEventType())
 # worker-pool priorities: the alternative on screen goes ahead of background solves
 _PRIORITY_CURRENT = 1
 _PRIORITY_BACKGROUND = 0
+_PRIORITY_BANDS = -1
+#: quiet time after the current alternative's result is shown before its uncertainty bands are
+#: computed [ms]: while edits follow each other (each with its result; pauses between fields are
+#: mostly well under half a second) no band solve competes with them. An edit that comes while a band
+#: is computed waits for at most one perturbed solve (60-segment line: ~85 ms CPU, bench_gui case c)
+BANDS_DELAY_MS = 600
 
 
 def default_project() -> Project:
@@ -106,6 +120,54 @@ def run_solver(alternative: Alternative):
         log.exception("internal error while solving alternative %r", getattr(alternative, "name", "?"))
         return None, f"internal error ({type(exc).__name__}: {exc})", time.thread_time() - cpu0
     return result, "", time.thread_time() - cpu0
+
+
+def run_bands(alternative: Alternative, result, cancelled=None):
+    """``(Bands or None, error)`` of one solved alternative; never raises. None without an error: cancelled.
+
+    A perturbed solve the solver refuses is named in the Bands (see :mod:`solver.uncertainty`);
+    anything else is a bug, logged with its traceback and reported as "internal error (…)".
+    """
+    from solver.uncertainty import band_plan, combine, run_plan
+
+    t0 = time.perf_counter()
+    try:
+        outcomes = run_plan(alternative, band_plan(alternative), cancelled=cancelled)
+        if outcomes is None:
+            return None, ""
+        return combine(alternative, result, outcomes, seconds=time.perf_counter() - t0), ""
+    except Exception as exc:  # noqa: BLE001 - the boundary between the app and a solver bug: log it, keep running
+        log.exception("internal error while computing the bands of alternative %r", getattr(alternative, "name", "?"))
+        return None, f"internal error ({type(exc).__name__}: {exc})"
+
+
+class _BandsTicket:
+    """One band computation; ``cancelled`` is set on the GUI thread, read by the worker between solves."""
+
+    __slots__ = ("key", "alternative", "result", "cancelled", "bands", "error", "handled")
+
+    def __init__(self, key: str, alternative: Alternative, result):
+        self.key = key
+        self.alternative = alternative
+        self.result = result
+        self.cancelled = False
+        self.bands = None
+        self.error = ""
+        self.handled = False
+
+
+class _BandsJob(QRunnable):
+    def __init__(self, ticket: _BandsTicket, sink: "_SolveSink"):
+        super().__init__()
+        self.setAutoDelete(True)
+        self._ticket = ticket
+        self._sink = sink
+
+    def run(self) -> None:  # worker thread
+        t = self._ticket
+        if not t.cancelled:
+            t.bands, t.error = run_bands(t.alternative, t.result, cancelled=lambda: t.cancelled)
+        self._sink.finished.emit(t)
 
 
 class SolveFailure(Exception):
@@ -176,6 +238,8 @@ class Document(QObject):
     solve_started = Signal()
     # any alternative's outcome from the runner: (name, Result or None, error message or "")
     alternative_solved = Signal(str, object, str)
+    # uncertainty bands ready: (alternative name, solver.uncertainty.Bands)
+    bands_ready = Signal(str, object)
 
     def __init__(self, project: Optional[Project] = None, unit_system: str = "SI", parent: Optional[QObject] = None):
         super().__init__(parent)
@@ -212,6 +276,17 @@ class Document(QObject):
         self._timer = QTimer(self)
         self._timer.setSingleShot(True)
         self._timer.timeout.connect(self._start_solve)
+
+        # uncertainty bands: content-keyed like results; one job at a time, after a quiet spell
+        self.bands_enabled = True
+        self._bands_cache: OrderedDict[str, tuple] = OrderedDict()  # key -> (Bands | None, error)
+        self._bands_job: Optional[_BandsTicket] = None
+        self._bands_sink = _SolveSink(self)
+        self._bands_sink.finished.connect(self._on_bands)
+        self._bands_timer = QTimer(self)
+        self._bands_timer.setSingleShot(True)
+        self._bands_timer.setInterval(BANDS_DELAY_MS)
+        self._bands_timer.timeout.connect(self._start_bands)
 
         self.undo_stack.cleanChanged.connect(self._on_clean_changed)
 
@@ -363,6 +438,7 @@ class Document(QObject):
         already held is published without solving.
         """
         now = time.perf_counter()
+        self._hold_bands()
         quiet = (now - self._last_request) * 1000.0 > SOLVE_DEBOUNCE_MS and not self._timer.isActive()
         self._last_request = now
         self._published_generation = None  # asked for: publish even if nothing changed
@@ -458,6 +534,8 @@ class Document(QObject):
             self._cache_put(ticket.key, (ticket.result, ticket.error))
             self._announce(ticket.key, ticket.result, ticket.error)
         if ticket.generation is None or ticket.generation != self._running_generation:
+            if ticket.generation is None and self.bands_enabled and not self.background_solving:
+                self._bands_timer.start()  # the background solves are done: the bands held for them may go on
             return  # a background solve
         self._running_generation = None
         if ticket.skipped:
@@ -484,10 +562,18 @@ class Document(QObject):
         self.result_is_stale = False
         self.result = result
         self.result_ready.emit(result)
+        if self.bands_enabled:
+            self._bands_timer.start()  # its bands once the edits pause
 
     def _drain(self) -> None:
         """Wait for the worker and take in what it finished, without waiting for the event loop."""
+        held = self._bands_job is not None or self._bands_timer.isActive()
+        self._hold_bands()  # a band job stops after its current solve, and is asked for again below
         self._pool.waitForDone()
+        if self._bands_job is not None:
+            self._on_bands(self._bands_job)
+        if held and self.bands_enabled:
+            self._bands_timer.start()
         for ticket in list(self._in_flight.values()):
             if ticket.done:
                 self._on_solved(ticket)
@@ -545,6 +631,7 @@ class Document(QObject):
             pending.append(alt.name)
             running = self._in_flight.get(key)
             if running is None or running.cancelled:
+                self._hold_bands()  # results someone waits for go first; the bands follow them
                 self._submit(_Ticket(key, alt, None), _PRIORITY_BACKGROUND)
         return pending
 
@@ -599,9 +686,102 @@ class Document(QObject):
         while len(self._cache) > RESULT_CACHE_SIZE:
             self._cache.popitem(last=False)
 
+    # ------------------------------------------------------------------ uncertainty bands
+
+    def _hold_bands(self) -> None:
+        """An edit or a new request: no band job now (a running one stops after its current solve)."""
+        self._bands_timer.stop()
+        if self._bands_job is not None:
+            self._bands_job.cancelled = True
+
+    def _start_bands(self) -> None:
+        """Compute the bands of the result on screen on the worker, unless held or on their way (GUI thread)."""
+        result = self.result
+        if not self.bands_enabled or result is None or self.result_is_stale or self.last_error or self.solving:
+            return
+        alt = self.current_alternative
+        key = alternative_key(alt)
+        held = self._cache.get(key)
+        if held is None or held[0] is not result:
+            return  # the result on screen is not this content's (an edit is on its way)
+        if self._bands_held(key, result) is not None:
+            self.bands_ready.emit(alt.name, self._bands_cache[key][0])
+            return
+        job = self._bands_job
+        if job is not None and job.key == key and not job.cancelled:
+            return  # already on its way
+        ticket = _BandsTicket(key, alt, result)
+        self._bands_job = ticket
+        self._pool.start(_BandsJob(ticket, self._bands_sink), _PRIORITY_BANDS)
+
+    def _on_bands(self, ticket: _BandsTicket) -> None:  # GUI thread
+        if ticket.handled:
+            return
+        ticket.handled = True
+        if self._bands_job is ticket:
+            self._bands_job = None
+        if ticket.bands is None and not ticket.error:
+            return  # cancelled: asked for again when its result is shown next
+        self._bands_cache[ticket.key] = (ticket.bands, ticket.error)
+        self._bands_cache.move_to_end(ticket.key)
+        while len(self._bands_cache) > RESULT_CACHE_SIZE:
+            self._bands_cache.popitem(last=False)
+        if ticket.bands is None:
+            return  # a bug, logged by run_bands: the views go on without bands
+        for alt in self.project.alternatives:
+            if alternative_key(alt) == ticket.key:
+                self.bands_ready.emit(alt.name, ticket.bands)
+
+    def _bands_held(self, key: str, result):
+        """The cached bands of this content, around ``result`` (same content, same numbers), or None."""
+        held = self._bands_cache.get(key)
+        if held is None or held[0] is None:
+            return None
+        bands = held[0]
+        if bands.base is not result:
+            bands = dataclasses.replace(bands, base=result)  # the result was solved again: same content
+            self._bands_cache[key] = (bands, "")
+        self._bands_cache.move_to_end(key)
+        return bands
+
+    def bands_for_result(self, result):
+        """The bands held around this Result object (the one a view shows), or None (not yet, or none)."""
+        if result is None:
+            return None
+        for bands, _error in self._bands_cache.values():
+            if bands is not None and bands.base is result:
+                return bands
+        return None
+
+    def bands_for(self, which: Union[int, str]):
+        """The held bands of this alternative (index or name), or None (not computed yet, or it failed)."""
+        alt = self._alternative(which)
+        key = alternative_key(alt)
+        held = self._cache_get(key)
+        if held is None or held[0] is None:
+            return None
+        return self._bands_held(key, held[0])
+
+    def bands_now(self, which: Union[int, str, None] = None):
+        """Solve (if need be) and compute the bands of this alternative (default the current) on this
+        thread, cache and announce them (scripts, tests, screenshots). None if it does not solve."""
+        alt = self._alternative(self.current_index if which is None else which)
+        result, _error = self.results_now([alt.name])[alt.name]
+        if result is None:
+            return None
+        key = alternative_key(alt)
+        bands = self._bands_held(key, result)
+        if bands is None:
+            ticket = _BandsTicket(key, alt, result)
+            ticket.bands, ticket.error = run_bands(alt, result)
+            self._on_bands(ticket)
+            bands = ticket.bands
+        return bands
+
     def shutdown(self, timeout_ms: int = 5000) -> None:
         """Stop the timer, cancel background solves and wait for a running solve (call before the application quits)."""
         self._timer.stop()
+        self._hold_bands()
         for t in self._in_flight.values():
             t.cancelled = True
         self._pool.waitForDone(timeout_ms)

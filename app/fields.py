@@ -33,6 +33,8 @@ FIELDS: dict[str, FieldInfo] = {
     "length_m": FieldInfo("Length", "length"),
     "elevation_change_m": FieldInfo("Elevation change", "elevation"),
     "heat_input_W_per_m": FieldInfo("Tracing power", "power_per_length"),
+    "inside_fouling_m2K_per_W": FieldInfo("Inside fouling", "fouling_resistance"),
+    "steam_tracer": FieldInfo("Steam tracer"),
     "pipe": FieldInfo("Pipe"),
     "fittings": FieldInfo("Fittings"),
     "insulation": FieldInfo("Insulation"),
@@ -66,6 +68,10 @@ FIELDS: dict[str, FieldInfo] = {
     "medium_temperature_K": FieldInfo("Medium temperature", "temperature"),
     "wall_temperature_K": FieldInfo("Wall temperature", "temperature"),
     "steam_pressure_Pa": FieldInfo("Steam pressure", "pressure"),
+    "steam_side_fouling_m2K_per_W": FieldInfo("Steam-side fouling", "fouling_resistance"),
+    # SteamTracer
+    "tube_outer_diameter_m": FieldInfo("Tracer tube outside diameter", "diameter"),
+    "contact": FieldInfo("Tracer contact"),
     # Fluid
     "fluid": FieldInfo("Fluid"),
     "solute": FieldInfo("Solution"),
@@ -82,6 +88,7 @@ FIELDS: dict[str, FieldInfo] = {
     "inlet_pressure_Pa": FieldInfo("Inlet pressure", "pressure"),
     "mass_flow_kg_per_s": FieldInfo("Mass flow", "mass_flow"),
     "volume_flow_m3_per_s": FieldInfo("Volume flow", "volume_flow"),
+    "inlet_flow": FieldInfo("Flow at inlet"),
     # Limits
     "limits": FieldInfo("Limits"),
     "max_inner_wall_temperature_K": FieldInfo("Max inner-wall temperature", "temperature"),
@@ -122,11 +129,13 @@ CONTEXT_FIELDS: dict[tuple[str, str], FieldInfo] = {
     ("wind", "film_coefficient_W_per_m2K"): FieldInfo("Outer film coefficient", "film_coefficient"),
     ("jacket", "film_coefficient_W_per_m2K"): FieldInfo("Jacket film coefficient", "film_coefficient"),
     ("targets", "max_inner_wall_temperature_K"): FieldInfo("Inner-wall temperature target (at most)", "temperature"),
+    ("steam_tracer", "steam_pressure_Pa"): FieldInfo("Tracer steam pressure", "pressure"),
+    ("steam_tracer", "count"): FieldInfo("Number of tracer tubes", "dimensionless"),
 }
 
 #: Parts of a path that set the context of the fields below them (lists, sub-models, union tags).
 _CONTEXTS = {"rows", "insulation", "pipe", "fittings", "surroundings", "fluid", "segments", "alternatives",
-             "targets", "limits", "feed", "still_air", "wind", "buried", "jacket", "fixed_wall", "adiabatic",
+             "targets", "limits", "feed", "steam_tracer", "still_air", "wind", "buried", "jacket", "fixed_wall", "adiabatic",
              "pure", "solution", "table"}
 UNION_TAGS = {"pure", "solution", "table", "still_air", "wind", "buried", "jacket", "fixed_wall", "adiabatic"}
 
@@ -134,7 +143,7 @@ UNION_TAGS = {"pure", "solution", "table", "still_air", "wind", "buried", "jacke
 OBJECTS: dict[str, str] = {
     "alternatives": "Alternative", "segments": "Segment", "insulation": "Insulation layer",
     "fittings": "Fitting", "rows": "Table row", "pipe": "Pipe", "feed": "Feed", "surroundings": "Surroundings",
-    "fluid": "Fluid", "limits": "Limits", "targets": "Targets",
+    "fluid": "Fluid", "limits": "Limits", "targets": "Targets", "steam_tracer": "Steam tracer",
 }
 
 #: Position words for items of the lists inside a segment or fluid (1-based, as people count).
@@ -142,7 +151,7 @@ _ITEM_WORDS = {"insulation": "layer", "fittings": "fitting", "rows": "row", "seg
                "alternatives": "alternative"}
 
 UNIT_SUFFIX = re.compile(
-    r"_(K|m|Pa|W|s|W_per_m|W_per_mK|W_per_m2K|m_per_s|kg_per_s|m3_per_s|kg_per_m3|J_per_kgK|Pa_s)$")
+    r"_(K|m|Pa|W|s|W_per_m|W_per_mK|W_per_m2K|m2K_per_W|m_per_s|kg_per_s|m3_per_s|kg_per_m3|J_per_kgK|Pa_s)$")
 
 
 def split_path(path: Path) -> tuple:
@@ -212,7 +221,7 @@ QUANTITY_WORDS: dict[str, str] = {
     "elevation": "elevation change", "diameter": "diameter", "thickness": "thickness",
     "roughness": "roughness", "depth": "depth", "mass_flow": "mass flow", "volume_flow": "volume flow",
     "power": "power", "power_per_length": "power per length", "heat_flux": "heat flux",
-    "film_coefficient": "film coefficient", "conductivity": "thermal conductivity", "velocity": "velocity",
+    "film_coefficient": "film coefficient", "fouling_resistance": "fouling resistance", "conductivity": "thermal conductivity", "velocity": "velocity",
     "speed": "speed", "density": "density", "specific_heat": "specific heat", "viscosity": "viscosity",
     "time": "time", "energy_per_mass": "energy per mass", "dimensionless": "plain number",
     "fraction": "fraction", "mass": "mass", "volume": "volume", "area": "area", "energy": "energy",
@@ -237,6 +246,7 @@ EXAMPLES: dict[str, tuple[str, str]] = {
     "power_per_length": ("30 W/m", "10 W/ft"),
     "heat_flux": ("500 W/m²", "160 Btu/(h·ft²)"),
     "film_coefficient": ("1000 W/(m²·K)", "176 Btu/(h·ft²·°F)"),
+    "fouling_resistance": ("0.0002 m²·K/W", "0.001 h·ft²·°F/Btu"),
     "conductivity": ("0.04 W/(m·K)", "0.023 Btu/(h·ft·°F)"),
     "velocity": ("2 m/s", "6 ft/s"),
     "speed": ("5 m/s", "10 mph"),

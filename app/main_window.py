@@ -643,7 +643,9 @@ class MainWindow(QMainWindow):
             QApplication.processEvents()
             from app.report import write_report
 
-            write_report(self.doc.project, path, unit_system=self.doc.unit_system, results=held)
+            # the bands the Document already holds for these results; the report computes the others
+            bands = {name: b for name in held if (b := self.doc.bands_for(name)) is not None}
+            write_report(self.doc.project, path, unit_system=self.doc.unit_system, results=held, bands=bands)
         except OSError as exc:
             self.error_dialog("Report not written", f"Could not write {path}: {exc.strerror or exc}")
             return False
@@ -813,8 +815,8 @@ def _wait_for_first_result(win: MainWindow, timeout_s: float = 60.0) -> None:
 def run(path: Optional[str] = None, screenshot: Optional[str] = None, unit_system: Optional[str] = None) -> int:
     """Start the desktop app on ``path`` (the demo project when None).
 
-    With ``screenshot``, render the window offscreen at 1600×1000 once the first result is
-    plotted, save it as PNG and return 0 without entering the event loop. A screenshot is a
+    With ``screenshot``, render the window offscreen at 1600×1000 once the first result and its
+    uncertainty bands are plotted, save it as PNG and return 0 without entering the event loop. A screenshot is a
     picture, not a session: it shows ``unit_system`` (default SI, not the remembered one) and
     writes no settings, no Recent files entry and no autosave file, and leaves a recovery file
     from a real session where it is.
@@ -839,6 +841,7 @@ def run(path: Optional[str] = None, screenshot: Optional[str] = None, unit_syste
         win.resize(1600, 1000)
         win.show()
         _wait_for_first_result(win)
+        win.doc.bands_now()  # the picture shows the uncertainty bands, as a user sees them a moment later
         win.resize(1600, 1000)
         app.processEvents()
         image = win.grab()

@@ -204,9 +204,26 @@ def _flow_rule(m, obj, system):
 def _fixed_wall_rule(m, obj, system):
     t, p = _get(obj, "wall_temperature_K"), _get(obj, "steam_pressure_Pa")
     if t is None and p is None:
-        return "Give the wall temperature or the steam pressure that holds it"
+        return "Give the wall temperature, or the pressure of the steam that heats the wall"
     return (f"Give the wall temperature or the steam pressure, not both; you entered "
             f"{entered(t, 'temperature', system)} and {entered(p, 'pressure', system)}")
+
+
+_OUTSIDE_WORDS = {"jacket": "a jacket: the jacket already sets what is outside the pipe",
+                  "fixed_wall": "a fixed wall (held temperature or condensing steam): the wall already has its heat"}
+
+
+def _steam_tracer_rule(m, obj, system):
+    """A tracer with a jacket or a fixed wall: the outside is already set, so the tracer has no place."""
+    tracer, outside = _get(obj, "steam_tracer"), _get(obj, "surroundings")
+    kind = _get(outside, "kind") if outside is not None else None
+    with_what = _OUTSIDE_WORDS.get(kind, "these surroundings")
+    count, pressure = _get(tracer, "count"), _get(tracer, "steam_pressure_Pa")
+    entry = ""
+    if _is_number(count) and _is_number(pressure):
+        tubes = plural(int(count), "tube")
+        entry = f"; you entered {tubes} with steam at {entered(pressure, 'pressure', system)}"
+    return f"Steam tracer cannot be combined with {with_what}{entry} — remove the tracer or choose other surroundings"
 
 
 def _rows_rule(m, obj, system):
@@ -220,6 +237,7 @@ _VALUE_RULES: tuple[tuple[re.Pattern, Any], ...] = (
     (re.compile(r"^heat_input_W_per_m cannot be combined with a fixed wall"), _tracing_rule),
     (re.compile(r"^give exactly one of mass_flow_kg_per_s or volume_flow_m3_per_s"), _flow_rule),
     (re.compile(r"^give exactly one of wall_temperature_K or steam_pressure_Pa"), _fixed_wall_rule),
+    (re.compile(r"^steam_tracer cannot be combined with a jacket or a fixed wall"), _steam_tracer_rule),
     (re.compile(r"^bore 'nps' needs nps and schedule"),
      lambda m, obj, s: "A bore given by NPS needs both the NPS and the schedule"),
     (re.compile(r"^bore 'diameter' needs inner_diameter_m"),

@@ -28,17 +28,19 @@ from solver.results import Result
 __all__ = ["write_report", "solve_alternatives", "select_alternatives"]
 
 
-def solve_alternatives(alternatives: Sequence[Alternative], results: Optional[Mapping[str, object]] = None) -> list[Outcome]:
+def solve_alternatives(alternatives: Sequence[Alternative], results: Optional[Mapping[str, object]] = None,
+                       bands: Optional[Mapping[str, object]] = None) -> list[Outcome]:
     """Each alternative with its result: taken from ``results`` (name -> Result, or the exception
     its solve raised) when given there, solved here otherwise. A failed solve becomes a message
-    printed in the report, not a crash."""
+    printed in the report, not a crash. ``bands`` (name -> Bands of that same result) are used as
+    given; the report computes the rest."""
     from solver import solve
 
     outcomes = []
     for alt in alternatives:
         given = (results or {}).get(alt.name)
         if isinstance(given, Result):
-            outcomes.append(Outcome(alt, given, None))
+            outcomes.append(Outcome(alt, given, None, bands=(bands or {}).get(alt.name)))
             continue
         if isinstance(given, BaseException):
             outcomes.append(Outcome(alt, None, str(given)))
@@ -74,13 +76,15 @@ def write_report(
     alternatives: Optional[Sequence[str]] = None,
     results: Optional[Mapping[str, object]] = None,
     date: Optional[str] = None,
+    bands: Optional[Mapping[str, object]] = None,
 ) -> Path:
     """Write the summary report of ``project`` as a PDF at ``path`` and return the path.
 
     ``alternatives``: names to include (default all, in project order).
     ``results``: name -> Result (or an exception) already solved, e.g. by the
     app; those are not solved again, the rest are solved here. A solve failure
-    is reported in the PDF. ``date``: the date printed (default today, ISO
+    is reported in the PDF. ``bands``: name -> uncertainty bands of those results, already
+    computed (the rest are computed here). ``date``: the date printed (default today, ISO
     format). Works with no display; writes atomically (temporary file, then rename).
     """
     if unit_system not in units.UNIT_SYSTEMS:
@@ -90,7 +94,7 @@ def write_report(
 
         project = load_project(project)
     chosen = select_alternatives(project, alternatives)
-    outcomes = solve_alternatives(chosen, results)
+    outcomes = solve_alternatives(chosen, results, bands)
     body = build_html(project, outcomes, unit_system, date or _dt.date.today().isoformat())
 
     ensure_gui_application()

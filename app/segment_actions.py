@@ -22,9 +22,16 @@ _NEED_ONE = "A line needs at least one segment: the only segment cannot be delet
 
 
 def wall_model_words(segment, system: str) -> str:
-    """What an inserted segment took over, in words: 'heat input 25 W/m, insulation 50 mm, still air 20 °C'."""
+    """What an inserted segment took over, in words: 'heat input 25 W/m, insulation 50 mm, still air 20 °C'
+    ('steam tracer 2 × 12.7 mm at 4.50 bar(a), ...' for a steam-traced one)."""
     q = segment.heat_input_W_per_m
-    heat = "heat input " + format_value(q, "power_per_length", system, digits=3) if q > 0 else "no heat input"
+    tracer = segment.steam_tracer
+    heat = "heat input " + format_value(q, "power_per_length", system, digits=3) if q > 0 else ""
+    if tracer is not None:
+        heat = ", ".join(filter(None, (heat, f"steam tracer {tracer.count} × "
+                                             f"{format_value(tracer.tube_outer_diameter_m, 'diameter', system, digits=3)}"
+                                             f" at {format_value(tracer.steam_pressure_Pa, 'pressure', system, digits=3)}")))
+    heat = heat or "no heat input"
     total = sum(layer.thickness_m for layer in segment.insulation)
     ins = "insulation " + format_value(total, "thickness", system, digits=3) if total > 0 else "no insulation"
     s = segment.surroundings

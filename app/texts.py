@@ -31,7 +31,7 @@ from solver.results import KeyFigure, Result
 
 __all__ = [
     "esc", "fmt", "num", "ulabel", "fluid_text", "fluid_source_text", "surroundings_text", "pipe_text",
-    "insulation_text", "fittings_text", "method_entries", "key_figure_label_and_value",
+    "insulation_text", "fittings_text", "steam_tracer_text", "fouling_text", "CONTACT_WORDS", "method_entries", "key_figure_label_and_value",
 ]
 
 
@@ -105,11 +105,42 @@ def surroundings_text(s, system: str) -> str:
         return f"Jacket medium at {t(s.medium_temperature_K)}, film {fmt(s.film_coefficient_W_per_m2K, 'film_coefficient', system)}"
     if isinstance(s, FixedWall):
         if s.steam_pressure_Pa is not None:
-            return f"Wall held by condensing steam at {fmt(s.steam_pressure_Pa, 'pressure', system)}"
-        return f"Wall held at {t(s.wall_temperature_K)}"
+            out = f"Steam at {fmt(s.steam_pressure_Pa, 'pressure', system)} condensing on the pipe (condensate film)"
+            if s.steam_side_fouling_m2K_per_W > 0:
+                out += f", steam-side fouling {units.format_exact(s.steam_side_fouling_m2K_per_W, 'fouling_resistance', system, 3)}"
+            return out
+        return f"Wall held at {t(s.wall_temperature_K)} (idealised)"
     if isinstance(s, Adiabatic):
         return "Adiabatic (no exchange)"
     return str(getattr(s, "kind", s))
+
+
+#: how a steam tracer tube touches the pipe, in words (SteamTracer.contact -> words)
+CONTACT_WORDS = {"bare": "bare, wired to the pipe", "cement": "bedded in heat-transfer cement"}
+
+
+def steam_tracer_text(tracer, system: str) -> str:
+    """A segment's steam tracer in words, or ``'none'``.
+
+    E.g. ``'2 steam tracer tubes of 12.7 mm OD, bedded in heat-transfer cement, steam at 4.5 bar(a)'``.
+    """
+    if tracer is None:
+        return "none"
+    tubes = "1 steam tracer tube" if tracer.count == 1 else f"{tracer.count} steam tracer tubes"
+    size = units.format_exact(tracer.tube_outer_diameter_m, "diameter", system, digits=3)
+    return (f"{tubes} of {size} OD, {CONTACT_WORDS.get(tracer.contact, tracer.contact)}, "
+            f"steam at {fmt(tracer.steam_pressure_Pa, 'pressure', system, 3)}")
+
+
+def fouling_text(seg: Segment, system: str) -> str:
+    """The segment's fouling allowances, or ``'none'`` (inside; steam side when steam heats the wall)."""
+    parts = []
+    if seg.inside_fouling_m2K_per_W > 0:
+        parts.append(f"inside {units.format_exact(seg.inside_fouling_m2K_per_W, 'fouling_resistance', system, 3)}")
+    steam_side = getattr(seg.surroundings, "steam_side_fouling_m2K_per_W", 0.0)
+    if steam_side > 0 and getattr(seg.surroundings, "steam_pressure_Pa", None) is not None:
+        parts.append(f"steam side {units.format_exact(steam_side, 'fouling_resistance', system, 3)}")
+    return "; ".join(parts) if parts else "none"
 
 
 def pipe_text(seg: Segment, system: str) -> str:
@@ -207,3 +238,15 @@ def key_figure_label_and_value(spec: KeyFigure, figures: Mapping[str, float], sy
     if spec.position_key:
         return label, (f"{value} {note}" if note.startswith("at ") else "—")
     return label, value
+
+
+def plus_minus_text(pm, spec: KeyFigure, system: str) -> str:
+    """``'± 0.8 K'``: a key figure's ± in the reader's units, as a difference quantity; "" when there is
+    none or it reads as nothing at the display's precision ("0.0 K", "< 0.001 m/s")."""
+    if pm is None or not pm > 0:
+        return ""
+    shown = units.format_value(pm, spec.difference_quantity, system, digits=2)
+    if shown.startswith("<") or not any(ch in "123456789" for ch in shown.split(" ")[0]):
+        return ""
+    return "± " + shown
+

@@ -98,9 +98,17 @@ QUANTITIES: dict[str, tuple[DisplayUnit, DisplayUnit]] = {
         DisplayUnit("W/(m²·K)", 1.0, 0.0, "W/m**2/K"),
         DisplayUnit("Btu/(h·ft²·°F)", 3600.0 * _FT**2 / _BTU / _F_PER_K, 0.0, "Btu/hour/ft**2/delta_degF"),
     ),
+    "fouling_resistance": (  # per unit area of the surface it coats; the inverse of a film coefficient
+        DisplayUnit("m²·K/W", 1.0, 0.0, "m**2*K/W"),
+        DisplayUnit("h·ft²·°F/Btu", _BTU / (3600.0 * _FT**2) * _F_PER_K, 0.0, "hour*ft**2*delta_degF/Btu"),
+    ),
     "conductivity": (
         DisplayUnit("W/(m·K)", 1.0, 0.0, "W/m/K"),
         DisplayUnit("Btu/(h·ft·°F)", 3600.0 * _FT / _BTU / _F_PER_K, 0.0, "Btu/hour/ft/delta_degF"),
+    ),
+    "resistance_per_length": (  # thermal resistance per metre of pipe (ΔT per W/m): the inverse of W/(m·K)
+        DisplayUnit("K·m/W", 1.0, 0.0, "K*m/W"),
+        DisplayUnit("h·ft·°F/Btu", _BTU / (3600.0 * _FT) * _F_PER_K, 0.0, "hour*ft*delta_degF/Btu"),
     ),
     "velocity": (DisplayUnit("m/s", 1.0, 0.0, "m/s"), DisplayUnit("ft/s", 1 / _FT, 0.0, "ft/s")),
     "speed": (DisplayUnit("m/s", 1.0, 0.0, "m/s"), DisplayUnit("mph", 3600 / 1609.344, 0.0, "mph")),
@@ -140,7 +148,9 @@ _SI_BASE: dict[str, str] = {
     "power_per_length": "W/m",
     "heat_flux": "W/m**2",
     "film_coefficient": "W/m**2/K",
+    "fouling_resistance": "m**2*K/W",
     "conductivity": "W/m/K",
+    "resistance_per_length": "K*m/W",
     "velocity": "m/s",
     "speed": "m/s",
     "density": "kg/m**3",
@@ -235,6 +245,8 @@ _FLOORS: dict[tuple[str, UnitSystem], float] = {
     ("dimensionless", "US"): 1e-4,
     ("viscosity", "SI"): 1e-4,
     ("viscosity", "US"): 1e-4,
+    ("fouling_resistance", "SI"): 1e-6,  # typical values are 0.0001–0.001 m²·K/W
+    ("fouling_resistance", "US"): 1e-5,
 }
 _DEFAULT_FLOOR = 1e-3
 
@@ -525,6 +537,7 @@ _KINDS: tuple[tuple[str, str], ...] = (
     ("power_per_length", "W/m"),
     ("heat_flux", "W/m**2"),
     ("film_coefficient", "W/m**2/K"),
+    ("fouling_resistance", "m**2*K/W"),
     ("conductivity", "W/m/K"),
     ("speed", "m/s"),
     ("density", "kg/m**3"),

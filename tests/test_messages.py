@@ -137,7 +137,7 @@ def test_every_numeric_field_has_a_label_and_the_quantity_its_key_names():
 
     reg = units.registry()
     suffix_unit = {"_K": "kelvin", "_m": "m", "_Pa": "Pa", "_W": "W", "_W_per_m": "W/m", "_W_per_mK": "W/m/K",
-                   "_W_per_m2K": "W/m**2/K", "_m_per_s": "m/s", "_kg_per_s": "kg/s", "_m3_per_s": "m**3/s",
+                   "_W_per_m2K": "W/m**2/K", "_m2K_per_W": "m**2*K/W", "_m_per_s": "m/s", "_kg_per_s": "kg/s", "_m3_per_s": "m**3/s",
                    "_kg_per_m3": "kg/m**3", "_J_per_kgK": "J/kg/K", "_Pa_s": "Pa*s"}
     checked = 0
     for m in _models():

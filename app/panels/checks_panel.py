@@ -12,7 +12,7 @@ from __future__ import annotations
 import html
 import math
 
-from PySide6.QtCore import QSize, Qt
+from PySide6.QtCore import QEvent, QSize, Qt
 from PySide6.QtGui import QBrush, QFont
 from PySide6.QtWidgets import (
     QAbstractItemView,
@@ -21,13 +21,14 @@ from PySide6.QtWidgets import (
     QStyle,
     QStyledItemDelegate,
     QStyleOptionViewItem,
+    QToolTip,
     QTreeWidget,
     QTreeWidgetItem,
     QVBoxLayout,
     QWidget,
 )
 
-from app import style, units
+from app import style, trace, units
 from app.comparison import plural
 from app.units import format_value
 from solver.results import check_sort_key
@@ -119,6 +120,7 @@ class ChecksPanel(QWidget):
         h.sectionResized.connect(lambda col, _old, _new: col == 1 and self.tree.scheduleDelayedItemsLayout())
         self.tree.itemClicked.connect(lambda item, _col: self.activate_row(item))
         self.tree.itemActivated.connect(lambda item, _col: self.activate_row(item))
+        self.tree.viewport().installEventFilter(self)  # pointing at a finding shows how it was reached
 
         lay = QVBoxLayout(self)
         lay.setContentsMargins(0, 0, 0, 0)
@@ -200,6 +202,20 @@ class ChecksPanel(QWidget):
             item.setTextAlignment(3, Qt.AlignRight | Qt.AlignVCenter)
             item.setData(0, ROLE_CHECK, c)
             self.tree.addTopLevelItem(item)
+
+    def trace_text(self, check) -> str:
+        """How a finding was reached (:func:`app.trace.check_trace`): its rule, threshold and source, and
+        the inputs of its segment."""
+        return trace.check_trace(check, self.doc.result, self.doc.current_alternative, self.doc.unit_system)
+
+    def eventFilter(self, obj, event) -> bool:
+        if event.type() == QEvent.ToolTip and obj is self.tree.viewport():
+            item = self.tree.itemAt(event.pos())
+            check = item.data(0, ROLE_CHECK) if item is not None else None
+            if check is not None:
+                QToolTip.showText(event.globalPos(), self.trace_text(check), self.tree.viewport())
+                return True
+        return super().eventFilter(obj, event)
 
     def _show_detail(self, item, _previous=None) -> None:
         check = item.data(0, ROLE_CHECK) if item is not None else None

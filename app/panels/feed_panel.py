@@ -11,6 +11,7 @@ import re
 from typing import Optional
 
 from pydantic import ValidationError
+from PySide6.QtCore import Qt
 from PySide6.QtGui import QGuiApplication
 from PySide6.QtWidgets import (
     QAbstractItemView,
@@ -33,9 +34,22 @@ from PySide6.QtWidgets import (
 )
 
 from app import commands, units
-from app.panels.editing import EditorPanel, error_hint, hint, push_edit, refusal_text, section
+from app.panels.editing import EditorPanel, error_hint, hint, push_edit, refusal_text, section, set_combo_data
 from app.widgets.quantity_edit import ERROR_COLOUR, QuantityEdit
 from solver.properties import PURE_FLUIDS, SOLUTIONS
+
+#: Feed.inlet_flow -> (combo text, what it means); the combo's tooltip and the hint say why it matters
+INLET_FLOW_CHOICES: dict[str, tuple[str, str]] = {
+    "developing": ("Develops from the inlet",
+                   "The line starts at a vessel, header or tee: the flow develops along the first "
+                   "diameters, where the inside film coefficient is higher."),
+    "developed": ("Arrives fully developed",
+                  "A long straight pipe runs upstream: the flow is fully developed at the inlet, with no "
+                  "entrance gain in the inside film coefficient."),
+}
+INLET_FLOW_HINT = ("Develops: fed from a vessel or header; the inside film coefficient is higher over the "
+                   "first few diameters. Fully developed: long straight pipe upstream, no such gain. "
+                   "A short first segment feels the difference most.")
 
 # columns of a user-defined fluid table: model key, heading, quantity
 TABLE_COLUMNS = [
@@ -290,6 +304,17 @@ class FeedPanel(EditorPanel):
         fs.addWidget(self.mass_edit)
         fs.addWidget(self.volume_edit)
         form.addRow(self.flow_label, flow_stack)
+        self.inlet_flow_combo = QComboBox()
+        for key, (text, meaning) in INLET_FLOW_CHOICES.items():
+            self.inlet_flow_combo.addItem(text, key)
+            self.inlet_flow_combo.setItemData(self.inlet_flow_combo.count() - 1, meaning, Qt.ToolTipRole)
+        self.inlet_flow_combo.setToolTip("\n\n".join(f"{text}: {meaning}" for text, meaning in INLET_FLOW_CHOICES.values()))
+        self.inlet_flow_combo.activated.connect(self._on_inlet_flow)
+        form.addRow("Flow at inlet", self.inlet_flow_combo)
+        self.inlet_flow_hint = hint(INLET_FLOW_HINT)
+        form.addRow("", self.inlet_flow_hint)
+        self.inlet_error = error_hint()
+        form.addRow(self.inlet_error)
         col.addWidget(box)
 
         box, form = section("Limits (empty = none)")
@@ -410,6 +435,8 @@ class FeedPanel(EditorPanel):
         self.flow_label.setText("Mass flow" if by_mass else "Volume flow")
         self.mass_edit.set_value(feed.mass_flow_kg_per_s)
         self.volume_edit.set_value(feed.volume_flow_m3_per_s)
+        set_combo_data(self.inlet_flow_combo, feed.inlet_flow)
+        self.inlet_error.hide()
 
     def _show_limits(self, alt) -> None:
         self.max_wall_edit.set_value(alt.limits.max_inner_wall_temperature_K)
@@ -472,6 +499,12 @@ class FeedPanel(EditorPanel):
     def _apply_table(self, dlg: FluidTableDialog) -> None:
         if dlg.result_fluid is not None:
             self.set_fields({"fluid": dlg.result_fluid}, text=f"Set user-defined fluid '{dlg.result_fluid.name}'")
+
+    def _on_inlet_flow(self, _index: int) -> None:
+        key = self.inlet_flow_combo.currentData()
+        text = INLET_FLOW_CHOICES[key][0].lower()
+        if not self.set_fields({"feed.inlet_flow": key}, text=f"Flow at inlet: {text}", error_label=self.inlet_error):
+            set_combo_data(self.inlet_flow_combo, self.doc.current_alternative.feed.inlet_flow)  # the model's choice
 
     def _on_flow_kind(self, button_id: int) -> None:
         if self.loading:

@@ -4,12 +4,13 @@ The rows are the one list of key figures, :data:`solver.results.KEY_FIGURES`, gr
 groups them, with its labels, so this panel, Side-by-Side, the CLI and the report say the same
 thing. Above the table, the at-a-glance design verdict (targets and checks judged together).
 Values come straight from the Result (SI) through ``app.units``; nothing is computed here beyond
-picking and formatting.
+picking and formatting. Beside each value, once the Document has them, its ± from the methods'
+published accuracy (:mod:`solver.uncertainty`), as a difference in the value's unit.
 """
 
 from __future__ import annotations
 
-from PySide6.QtCore import Qt, QTimer
+from PySide6.QtCore import QEvent, Qt, QTimer
 from PySide6.QtGui import QBrush, QFont
 from PySide6.QtWidgets import (
     QAbstractItemView,
@@ -18,16 +19,19 @@ from PySide6.QtWidgets import (
     QStyle,
     QTableWidget,
     QTableWidgetItem,
+    QToolTip,
     QVBoxLayout,
     QWidget,
 )
 
-from app import style
+from app import style, trace
 from app.comparison import design_verdict
-from app.texts import key_figure_parts
-from solver.results import KEY_FIGURES, KeyFigure
+from app.texts import key_figure_parts, plus_minus_text
+from app.units import format_value
+from solver.results import KEY_FIGURES, KeyFigure, key_figure
 
-COLUMNS = ("Figure", "Value", "Note")
+COLUMNS = ("Figure", "Value", "Note", "±")
+PM_COLUMN = 3  # shown beside the value (moved there on screen; the columns keep their indices)
 
 #: Two figures shown together as "min – max" by :meth:`KeyFiguresPanel.value_text`.
 RANGES: dict[str, tuple[str, str]] = {
@@ -103,8 +107,16 @@ class KeyFiguresPanel(QWidget):
         h.setSectionResizeMode(0, QHeaderView.Stretch)
         h.setSectionResizeMode(1, QHeaderView.ResizeToContents)
         h.setSectionResizeMode(2, QHeaderView.ResizeToContents)
+        # the ± column only widens (see _fit_pm_column): between an edit's result and its bands it is
+        # empty, and a column that shrank and grew back would re-lay out the table twice per edit
+        h.setSectionResizeMode(PM_COLUMN, QHeaderView.Fixed)
+        h.moveSection(PM_COLUMN, 2)
+        self._pm_width = 0
+        self.table.horizontalHeaderItem(PM_COLUMN).setToolTip(
+            "± from the methods' published accuracy (uncertainty bands); not input errors nor the model's assumptions")
         h.setDefaultAlignment(Qt.AlignLeft | Qt.AlignVCenter)
         h.sectionResized.connect(self._label_column_resized)
+        self.table.viewport().installEventFilter(self)  # pointing at a figure shows how it was computed
         self.table.verticalHeader().setDefaultSectionSize(22)
         # row heights follow the label column's width, refitted once after a burst of resizes
         self._fit_timer = QTimer(self)
@@ -121,6 +133,7 @@ class KeyFiguresPanel(QWidget):
 
         # the document holds the result and whether it is stale; this view only redraws
         doc.result_ready.connect(lambda _r: self.refresh())
+        doc.bands_ready.connect(self._on_bands)
         doc.solve_failed.connect(lambda _m: self.refresh())
         doc.units_changed.connect(lambda _s: self.refresh())
         doc.project_replaced.connect(self.refresh)
@@ -200,6 +213,7 @@ class KeyFiguresPanel(QWidget):
         was_blocked = model.blockSignals(True)
         try:
             labels_changed = self._fill(rows)
+            self._fill_pm()
         finally:
             model.blockSignals(was_blocked)
         if not was_blocked and rows:
@@ -237,24 +251,107 @@ class KeyFiguresPanel(QWidget):
         heading_font = QFont(self.table.font())
         heading_font.setBold(True)
         for i, (key, label, _value, _note, _method) in enumerate(rows):
-            a, b, c = QTableWidgetItem(label), QTableWidgetItem(""), QTableWidgetItem("")
+            a, b, c, d = QTableWidgetItem(label), QTableWidgetItem(""), QTableWidgetItem(""), QTableWidgetItem("")
             if not key:
                 a.setFont(heading_font)
                 a.setForeground(QBrush(style.qcolor(style.SELECTION)))
-                for it in (a, b, c):
+                for it in (a, b, c, d):
                     it.setBackground(QBrush(style.qcolor(style.CANVAS_BG)))
             else:
                 self._row_of[key] = i
                 b.setTextAlignment(Qt.AlignRight | Qt.AlignVCenter)
                 c.setForeground(QBrush(style.qcolor(style.INK_MUTED)))
+                d.setForeground(QBrush(style.qcolor(style.INK_MUTED)))
             self.table.setItem(i, 0, a)
             self.table.setItem(i, 1, b)
             self.table.setItem(i, 2, c)
+            self.table.setItem(i, PM_COLUMN, d)
             if not key:
                 self.table.setSpan(i, 0, 1, len(COLUMNS))  # a heading never shares its row
         self._layout = [row[0] for row in rows]
         self._label_width = -1
         self._fit_timer.start()
+
+    # ------------------------------------------------------------------ ± from the uncertainty bands
+
+    def _on_bands(self, _name: str, bands) -> None:
+        if self.doc.result is None or bands.base is not self.doc.result or not self._row_of:
+            return
+        model = self.table.model()
+        was_blocked = model.blockSignals(True)
+        try:
+            self._fill_pm()
+        finally:
+            model.blockSignals(was_blocked)
+        if not was_blocked:
+            n = self.table.rowCount()
+            model.dataChanged.emit(model.index(0, PM_COLUMN), model.index(n - 1, PM_COLUMN), [])
+
+    def _fill_pm(self) -> None:
+        """Write each figure's ± (empty until the bands of the result on screen are in)."""
+        bands = self.doc.bands_for_result(self.doc.result)
+        system = self.doc.unit_system
+        widest = 0
+        fm = self.table.fontMetrics()
+        for key, row in self._row_of.items():
+            item = self.table.item(row, PM_COLUMN)
+            text, tip = self.pm_parts(key, bands, system)
+            if item.text() != text:
+                item.setText(text)
+            if tip and item.toolTip() != tip:
+                item.setToolTip(tip)
+            if text:
+                widest = max(widest, fm.horizontalAdvance(text))
+        self._fit_pm_column(widest)
+
+    def _fit_pm_column(self, text_width: int) -> None:
+        """Widen the ± column to its widest text (never narrower than its header); it does not shrink."""
+        header = self.table.horizontalHeader()
+        hm = header.style().pixelMetric(QStyle.PM_HeaderMargin, None, header)
+        need = max(text_width + 2 * self._text_margin() + 4,
+                   header.fontMetrics().horizontalAdvance(COLUMNS[PM_COLUMN]) + 2 * hm + 4)
+        if need > self._pm_width:
+            self._pm_width = need
+            header.resizeSection(PM_COLUMN, need)
+
+    @staticmethod
+    def pm_parts(key: str, bands, system: str) -> tuple[str, str]:
+        """``('± 0.8 K', tooltip)`` of one figure; ``('', '')`` without bands or without a ±."""
+        spec = key_figure(key)
+        text = plus_minus_text(bands.key_figure_pm.get(key) if bands is not None else None, spec, system)
+        if not text:
+            return "", ""
+        ranked = sorted(((c.key_figure_pm.get(key, 0.0), c) for c in bands.contributions), key=lambda e: -e[0])
+        parts = [f"{c.label} ({c.accuracy_text}): ± {format_value(v, spec.difference_quantity, system, digits=2)}"
+                 for v, c in ranked[:3] if v > 0]
+        tip = (f"{spec.label.strip()} {text}: the methods' published accuracy, combined by root-sum-square. "
+               "Largest: " + "; ".join(parts) + ". Not input errors nor the model's assumptions.")
+        return text, tip
+
+    def pm_text(self, key: str) -> str:
+        """The displayed ± of a figure, e.g. ``'± 0.8 K'`` ("" until the bands are in)."""
+        return self.table.item(self._row_of[key], PM_COLUMN).text()
+
+    def trace_text(self, key: str) -> str:
+        """How figure ``key`` of the result on show was computed (:func:`app.trace.key_figure_trace`):
+        method, published sources, and the segment and inputs behind it; '' without a result."""
+        res = self.doc.result
+        if res is None or not key:
+            return ""
+        return trace.key_figure_trace(key, res, self.doc.current_alternative, self.doc.unit_system)
+
+    def eventFilter(self, obj, event) -> bool:
+        # built when pointed at, not with every result: all figures' texts together take several ms
+        if event.type() == QEvent.ToolTip and obj is self.table.viewport():
+            item = self.table.itemAt(event.pos())
+            if item is not None and item.column() == PM_COLUMN:
+                return super().eventFilter(obj, event)  # the ± column says where its ± comes from
+            key = self._layout[item.row()] if item is not None and item.row() < len(self._layout) else ""
+            text = self.trace_text(key)
+            if text:
+                QToolTip.showText(event.globalPos(), text, self.table.viewport())
+                return True
+        return super().eventFilter(obj, event)
 
     def _label_column_resized(self, index: int, _old: int, new: int) -> None:
         if index == 0 and new != self._label_width:

@@ -64,10 +64,14 @@ CAPTION_CACHE_SIZE = 400
 
 
 def segment_key(seg) -> tuple:
-    """Everything of a segment that its block shows (name, length, elevation, wall, fittings)."""
+    """Everything of a segment that its block shows (name, length, elevation, wall, tracer, fittings).
+
+    Plain values only: a model object is not a safe cache key (it is mutable and validated on assignment).
+    """
     return (seg.name, seg.length_m, seg.elevation_change_m, seg.heat_input_W_per_m,
             tuple(layer.thickness_m for layer in seg.insulation), tuple(f.count for f in seg.fittings),
-            tuple(seg.surroundings.__dict__.items()))
+            tuple(seg.surroundings.__dict__.items()),
+            tuple(seg.steam_tracer.__dict__.items()) if seg.steam_tracer is not None else None)
 
 
 def _bytes(pix: QPixmap) -> int:
@@ -363,6 +367,7 @@ class StripCanvas(QWidget):
             model=wall_model(seg),
             insulation_px=insulation_band_px(sum(layer.thickness_m for layer in seg.insulation)),
             heat_input=seg.heat_input_W_per_m > 0,
+            steam_tracer=seg.steam_tracer is not None,
         )
         if severity:
             style.paint_severity_mark(p, QRectF(r.right() - 20, r.top() + 5, 14, 14), style.severity_style(severity))

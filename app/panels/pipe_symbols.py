@@ -1,7 +1,7 @@
 """The Line Strip's drawings: the pipe with its wall model, the symbols and their legend.
 
-Calorun's own symbols (``SYMBOLS``): a zig-zag on the wall for heat input, a hatched band
-for insulation (thicker band, thicker insulation), a shell band for a jacket, a solid shell for
+Calorun's own symbols (``SYMBOLS``): a zig-zag on the wall for heat input, a small tube along
+the underside of the pipe for a steam tracer, a hatched band for insulation (thicker band, thicker insulation), a shell band for a jacket, a solid shell for
 a wall held at a temperature, soil hatching for a buried run, streamlines for wind, a double
 outline for adiabatic, a diamond for fittings and an arrow for elevation. Painting only: the
 canvas that places the blocks and handles the mouse is :mod:`app.panels.line_strip`.
@@ -22,6 +22,7 @@ from app.units import format_value
 # Symbol legend: key -> (title, explanation). The legend row and tooltips use it.
 SYMBOLS: dict[str, tuple[str, str]] = {
     "heat_input": ("Heat input", "zig-zag on the pipe wall: tracing, W per metre"),
+    "steam_tracer": ("Steam tracer", "small tube along the underside of the pipe: steam tube tracer(s)"),
     "insulation": ("Insulation", "hatched band; thicker band = thicker insulation"),
     "jacket": ("Jacket", "outer shell band: a jacket or bath medium at its own temperature"),
     "fixed_wall": ("Fixed wall T", "solid shell on the pipe: wall held at a temperature (e.g. steam)"),
@@ -34,6 +35,8 @@ SYMBOLS: dict[str, tuple[str, str]] = {
 }
 
 BORE_HALF = 8  # half height of the drawn bore
+TRACER_PX = 6.0  # room a drawn steam tracer takes below the pipe wall (the insulation wraps it too)
+STEAM_TRACER = style.OKABE_ITO["reddish_purple"]  # not the tracing zig-zag's colour: another heat source
 
 
 def font_px(base: QFont, px: int, bold: bool = False) -> QFont:
@@ -80,6 +83,13 @@ def wall_summary_parts(segment, system: str, compact: bool = False) -> list[str]
     traced, ins = ("", "") if compact else ("traced ", "ins ")
     if segment.heat_input_W_per_m > 0:
         parts.append(traced + format_value(segment.heat_input_W_per_m, "power_per_length", system, digits=3))
+    tracer = getattr(segment, "steam_tracer", None)
+    if tracer is not None:
+        pressure = format_value(tracer.steam_pressure_Pa, "pressure", system, digits=3)
+        if compact:
+            parts.append(("tracer " if tracer.count == 1 else f"{tracer.count} tracers ") + pressure)
+        else:
+            parts.append(("steam tracer " if tracer.count == 1 else f"{tracer.count} steam tracers ") + pressure)
     total_ins = sum(layer.thickness_m for layer in segment.insulation)
     if total_ins > 0 and s.kind != "fixed_wall":
         parts.append(ins + format_value(total_ins, "thickness", system, digits=3))
@@ -219,15 +229,18 @@ def paint_pipe(
     heat_input: bool,
     bore_half: float = BORE_HALF,
     compact: bool = False,
+    steam_tracer: bool = False,
 ) -> float:
     """Paint one run of pipe with its wall model between rect.left and rect.right.
 
-    Returns the half height of the outer extent (so callers can place things below it).
+    ``steam_tracer`` draws a steam tube tracer along the underside of the pipe, inside the
+    insulation. Returns the half height of the outer extent (so callers can place things below it).
     """
     x0, x1 = rect.left(), rect.right()
     painter.save()
     painter.setRenderHint(QPainter.Antialiasing, True)
-    ext, insulation_px, shell, outer = _layers(model, insulation_px, bore_half)
+    ext, insulation_px, shell, outer = _layers(model, insulation_px, bore_half, steam_tracer, compact)
+    tracer_px = _tracer_px(model, steam_tracer, compact)
 
     if model == "buried":
         # soil around the pipe and a ground surface above it, hatched
@@ -265,7 +278,7 @@ def paint_pipe(
         painter.drawRect(band)
 
     if insulation_px > 0:
-        ins_half = ext + insulation_px
+        ins_half = ext + tracer_px + insulation_px
         ins = QRectF(x0, yc - ins_half, x1 - x0, 2 * ins_half)
         painter.setPen(QPen(style.qcolor(style.INSULATION_HATCH), 1.0))
         painter.setBrush(style.qcolor(style.INSULATION_FILL))
@@ -288,8 +301,12 @@ def paint_pipe(
         painter.setPen(pen)
         painter.setBrush(Qt.NoBrush)
         off, amp, period = (2.0, 1.6, 6.0) if compact else (3.0, 2.6, 8.0)
-        for y in (yc - ext - off, yc + ext + off):
+        # with a steam tracer below, the zig-zag keeps to the top so the two stay apart
+        for y in (yc - ext - off,) + (() if tracer_px else (yc + ext + off,)):
             _zigzag(painter, x0 + 2, x1 - 2, y, amp, period)
+
+    if tracer_px:
+        _steam_tube(painter, x0 + 2, x1 - 2, yc + ext + 0.5, tracer_px - 1.0)
 
     if model == "adiabatic":
         painter.setPen(QPen(style.qcolor(style.INK), 1.2))
@@ -316,20 +333,46 @@ def paint_pipe(
 _MARKS_OUTSIDE = {"adiabatic": 6.0, "wind": 10.0}
 
 
-def _layers(model: str, insulation_px: float, bore_half: float) -> tuple[float, float, float, float]:
+def _tracer_px(model: str, steam_tracer: bool, compact: bool = False) -> float:
+    """Room the drawn steam tracer takes below the wall [px]; none where the model refuses a tracer."""
+    if not steam_tracer or model in ("jacket", "fixed_wall"):
+        return 0.0
+    return TRACER_PX * (0.6 if compact else 1.0)
+
+
+def _layers(model: str, insulation_px: float, bore_half: float,
+            steam_tracer: bool = False, compact: bool = False) -> tuple[float, float, float, float]:
     """(pipe outer surface, insulation band, shell band, outermost layer): half heights [px]."""
     ext = bore_half + 2
     if model == "fixed_wall":
         insulation_px = 0.0  # insulation plays no part with a fixed wall
     shell = {"fixed_wall": 6.0, "jacket": 7.0}.get(model, 0.0)
-    return ext, insulation_px, shell, ext + insulation_px + shell
+    return ext, insulation_px, shell, ext + _tracer_px(model, steam_tracer, compact) + insulation_px + shell
 
 
 def pipe_extent(segment, bore_half: float = BORE_HALF) -> float:
     """Half height of the pipe :func:`paint_pipe` draws for ``segment`` (what goes below it starts there)."""
     model = wall_model(segment)
     ins = insulation_band_px(sum(layer.thickness_m for layer in segment.insulation))
-    return _layers(model, ins, bore_half)[3] + _MARKS_OUTSIDE.get(model, 0.0)
+    tracer = getattr(segment, "steam_tracer", None) is not None
+    return _layers(model, ins, bore_half, tracer)[3] + _MARKS_OUTSIDE.get(model, 0.0)
+
+
+def _steam_tube(painter: QPainter, x0: float, x1: float, top: float, height: float) -> None:
+    """A steam tube tracer: a small round-ended tube with a dashed core (the steam) from x0 to x1."""
+    if x1 - x0 < 4 or height <= 0:
+        return
+    colour = style.qcolor(STEAM_TRACER)
+    tube = QRectF(x0, top, x1 - x0, height)
+    painter.setPen(QPen(colour.darker(160), 1.2))
+    painter.setBrush(colour)
+    painter.drawRoundedRect(tube, height / 2, height / 2)
+    if height >= 4:
+        core = QPen(style.qcolor("#FFFFFF"), 1.2, Qt.DashLine)  # the steam inside the tube
+        core.setDashPattern([2.0, 2.0])
+        painter.setPen(core)
+        y = top + height / 2
+        painter.drawLine(QPointF(x0 + height / 2 + 1, y), QPointF(x1 - height / 2 - 1, y))
 
 
 # --------------------------------------------------------------------------- legend
@@ -338,7 +381,7 @@ def pipe_extent(segment, bore_half: float = BORE_HALF) -> float:
 class SymbolLegend(QWidget):
     """A row of the Line Strip's symbols with short names; the tooltip explains each."""
 
-    ORDER = ("heat_input", "insulation", "jacket", "fixed_wall", "buried", "wind", "adiabatic", "fittings", "elevation")
+    ORDER = ("heat_input", "steam_tracer", "insulation", "jacket", "fixed_wall", "buried", "wind", "adiabatic", "fittings", "elevation")
 
     def __init__(self, parent=None):
         super().__init__(parent)
@@ -380,6 +423,7 @@ class SymbolLegend(QWidget):
                     heat_input=key == "heat_input",
                     bore_half=3.0 if key != "buried" else 2.0,
                     compact=True,
+                    steam_tracer=key == "steam_tracer",
                 )
                 if key == "wind":
                     p.setPen(QPen(style.qcolor(style.WIND).darker(115), 1.2))

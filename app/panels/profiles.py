@@ -9,6 +9,11 @@ does not blow round-off up into a slope) and tick labels never use exponents. Cu
 once and updated with ``setData``; arrays are converted to the display unit system on the way in.
 When a solve fails the last curves stay and a note says they are stale.
 
+Uncertainty bands (the methods' published accuracy, :mod:`solver.uncertainty`) arrive from the
+Document after the result; bulk, inner-wall and outer-surface temperature are then shaded around
+their curves in a light tint of the curve's colour, behind the curves, with a legend entry.
+A new result hides the shading until its own bands come.
+
 Cheap to update after an edit (an edit is followed by its result, so only the result redraws):
 the axis ranges are computed here from the result, rounded to nice values and kept while the new
 curves still fill them (the axes then keep their pictures); segment names and boundaries change
@@ -23,7 +28,7 @@ import math
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QLineF, QPointF, QRectF, QSize, Qt
-from PySide6.QtGui import QBrush, QColor, QFont, QFontMetrics, QPainter, QPen
+from PySide6.QtGui import QBrush, QColor, QFont, QFontMetrics, QPainter, QPainterPath, QPen, QPolygonF
 from PySide6.QtWidgets import QGraphicsSimpleTextItem, QLabel, QSizePolicy, QVBoxLayout, QWidget
 
 from app import style
@@ -37,6 +42,16 @@ TEMPERATURE_CURVES: dict[str, tuple[str, str, str, float]] = {
     "outer_surface": ("Outer surface", "outer_surface_temperature_K", "dot", 2.0),
     "saturation": ("Saturation", "saturation_temperature_K", "dash", 1.6),
 }
+
+
+#: Shaded uncertainty bands: curve key -> Bands key (solver.uncertainty.BAND_QUANTITIES).
+BAND_CURVES: dict[str, str] = {
+    "bulk": "bulk_temperature_K",
+    "inner_wall": "inner_wall_temperature_K",
+    "outer_surface": "outer_surface_temperature_K",
+}
+BAND_LEGEND = "shaded: uncertainty (methods' published accuracy)"
+BAND_ALPHA = 46  # of 255: light enough that overlapping bands and the grid still read
 
 
 #: Limit lines: key -> (short name shown in the margin, full name for the tooltip, curve colour key).
@@ -107,6 +122,43 @@ class _BoundaryLines(_AcrossView):
             p.setRenderHint(p.RenderHint.Antialiasing, False)
             p.setPen(self.pen)
             p.drawLines(lines)
+
+
+class _BandFill(pg.GraphicsObject):
+    """A shaded band between a lower and an upper curve (display units), one filled path, no outline.
+
+    Built once per set of bands (not per edit); broken where a value is missing (no surface in air).
+    """
+
+    def __init__(self, colour: str):
+        super().__init__()
+        self.setAcceptedMouseButtons(Qt.NoButton)
+        self.setAcceptHoverEvents(False)
+        self.setZValue(-50)  # above the grid and the boundaries (the view box lifts those to -99), behind the curves
+        self.brush = QBrush(style.qcolor(colour, BAND_ALPHA))
+        self.path = QPainterPath()
+
+    def set_band(self, x, lower, upper) -> None:
+        self.prepareGeometryChange()
+        path = QPainterPath()
+        ok = np.isfinite(x) & np.isfinite(lower) & np.isfinite(upper)
+        edges = np.flatnonzero(np.diff(np.concatenate(([0], ok.astype(np.int8), [0]))))
+        for start, stop in zip(edges[::2], edges[1::2]):
+            xs = x[start:stop]
+            pts = [QPointF(a, b) for a, b in zip(xs.tolist(), upper[start:stop].tolist())]
+            pts += [QPointF(a, b) for a, b in zip(xs[::-1].tolist(), lower[start:stop][::-1].tolist())]
+            path.addPolygon(QPolygonF(pts))
+            path.closeSubpath()
+        self.path = path
+        self.update()
+
+    def boundingRect(self) -> QRectF:
+        return self.path.boundingRect()
+
+    def paint(self, p, *_args) -> None:
+        if not self.path.isEmpty():
+            p.setRenderHint(p.RenderHint.Antialiasing, False)
+            p.fillPath(self.path, self.brush)
 
 
 class _GridLines(_AcrossView):
@@ -347,6 +399,17 @@ class ProfilesPanel(QWidget):
             [], [], pen=style.curve_pen("pressure", 2.2), name="Pressure", antialias=False
         )
         self.legend.set_entries([(c.name(), c.opts["pen"]) for c in self.curves.values()])
+        self.bands = None  # the uncertainty bands shaded (solver.uncertainty.Bands), or None
+        self._hidden_from_legend = None  # a curve with nothing to draw (no saturation)
+        self._band_legend = False  # the shading's legend entry is shown (from the first bands on)
+        self.band_fills: dict[str, _BandFill] = {}
+        for key in BAND_CURVES:
+            fill = _BandFill(style.CURVE_COLOURS[key])
+            fill.hide()
+            self.temperature_plot.addItem(fill, ignoreBounds=True)
+            self.band_fills[key] = fill
+        self._band_pen = QPen(style.qcolor(style.CURVE_COLOURS["bulk"], 2 * BAND_ALPHA))
+        self._band_pen.setWidthF(9.0)
         boundary_pen = pg.mkPen(style.CURVE_COLOURS["boundary"], width=1)
         self.boundary_lines = [_BoundaryLines(plot, boundary_pen) for plot in (self.temperature_plot, self.pressure_plot)]
         for plot, lines in zip((self.temperature_plot, self.pressure_plot), self.boundary_lines):
@@ -423,6 +486,7 @@ class ProfilesPanel(QWidget):
         self.temperature_plot.vb.sigXRangeChanged.connect(self._draw_curves)
         self.temperature_plot.vb.sigResized.connect(self._draw_curves)
         doc.result_ready.connect(self._on_result)
+        doc.bands_ready.connect(self._on_bands)
         doc.solve_failed.connect(self._on_failed)
         doc.units_changed.connect(lambda _s: self.refresh())
         doc.project_replaced.connect(self._on_replaced)
@@ -430,14 +494,37 @@ class ProfilesPanel(QWidget):
         doc.position_marked.connect(self.mark_position)
         self._marked_x_m = math.nan
         self._result = getattr(doc, "result", None)
+        self.bands = doc.bands_for_result(self._result)
         self.refresh()
 
     # ------------------------------------------------------------------ updates
 
     def _on_result(self, result) -> None:
         self._result = result
+        self.bands = self.doc.bands_for_result(result)  # held already (e.g. an undo), else on their way
         self.stale_note.hide()
         self.refresh()
+
+    def _on_bands(self, _name: str, bands) -> None:
+        if bands is not self.bands and self._result is not None and bands.base is self._result:
+            self.bands = bands
+            self._show_bands()
+
+    def _show_bands(self) -> None:
+        """Shade the bands of the result on screen (hide the shading when there are none)."""
+        bands = self.bands if self._result is not None else None  # always those of the result on screen
+        system = self.doc.unit_system
+        shown = bands is not None and bands.width_K > 0
+        for key, fill in self.band_fills.items():
+            if not shown:
+                if fill.isVisible():
+                    fill.hide()
+                continue
+            q = BAND_CURVES[key]
+            fill.set_band(_display(bands.x_m, "length", system), _display(bands.lower[q], "temperature", system),
+                          _display(bands.upper[q], "temperature", system))
+            fill.setVisible(self.curves[key].isVisible())
+        self._update_legend()
 
     def _on_failed(self, message: str) -> None:
         if self._result is None:
@@ -451,6 +538,7 @@ class ProfilesPanel(QWidget):
 
     def _on_replaced(self) -> None:
         self._result = getattr(self.doc, "result", None)
+        self.bands = self.doc.bands_for_result(self._result)
         self.stale_note.hide()
         self.mark_position(math.nan)
         self._follow_x = True  # another line: its own view
@@ -467,7 +555,17 @@ class ProfilesPanel(QWidget):
 
     def _show_in_legend(self, curve, show: bool) -> None:
         """A curve with nothing to draw (no saturation for this fluid) leaves the legend."""
-        entries = [(c.name(), c.opts["pen"]) for c in self.curves.values() if c is not curve or show]
+        self._hidden_from_legend = None if show else curve
+        self._update_legend()
+
+    def _update_legend(self) -> None:
+        hidden = self._hidden_from_legend
+        entries = [(c.name(), c.opts["pen"]) for c in self.curves.values() if c is not hidden]
+        # once shaded, the entry stays (the shading goes from an edit's result until its bands come; a
+        # legend that lost and regained a row would re-lay out the plots twice per edit)
+        self._band_legend = self._band_legend or any(fill.isVisible() for fill in self.band_fills.values())
+        if self._band_legend:
+            entries.append((BAND_LEGEND, self._band_pen))
         self.legend.set_entries(entries)
 
     def refresh(self) -> None:
@@ -506,6 +604,7 @@ class ProfilesPanel(QWidget):
                     )
             self._update_limits()
             self._set_ranges()
+            self._show_bands()
         finally:
             self._refreshing = False
         self._drawn_key = ()  # new data: draw whatever the view

@@ -39,14 +39,18 @@ from app.panels.editing import (
     section,
     set_combo_data,
 )
+from app.panels.fouling_field import FoulingField
 from app.panels.layer_fitting_tables import FittingsBox, InsulationLayersBox
+from app.panels.resistance_bar import HeatPathBox
+from app.panels.steam_tracer_box import SteamTracerBox
 from app.panels.surroundings_box import SurroundingsBox
 from app.widgets.elided import ElidedComboBox, ElidedLabel
 from app.widgets.quantity_edit import QuantityEdit
 from solver import catalogue
 from solver.errors import CalorunError
 
-HEAT_HINT = "Enters at the pipe's outer wall, under the insulation. 0 = none."
+HEAT_HINT = "Electric tracing: enters at the pipe's outer wall, under the insulation. 0 = none."
+INSIDE_FOULING_HINT = "Deposit on the bore, per m² of inside surface; 0 = clean. ▾ lists published typical values."
 
 
 def _set_combo_text(combo: QComboBox, text: str) -> None:
@@ -93,8 +97,11 @@ class SegmentCard(EditorPanel):
         self.layers = InsulationLayersBox(self)
         self.fittings = FittingsBox(self)
         self.surroundings = SurroundingsBox(self)
-        for box in (self._build_segment_section(), self._build_pipe_section(), self._build_heat_section(),
-                    self.layers, self.fittings, self.surroundings):
+        self.tracer = SteamTracerBox(self)
+        # the solved segment's resistances (reads the result), first: why it loses what it loses, at a glance
+        self.heat_path = HeatPathBox(doc, self)
+        for box in (self.heat_path, self._build_segment_section(), self._build_pipe_section(),
+                    self._build_heat_section(), self.tracer, self.layers, self.fittings, self.surroundings):
             col.addWidget(box)
         self.card_error = error_hint()
         self.panel_error = self.card_error
@@ -173,6 +180,9 @@ class SegmentCard(EditorPanel):
         self.kwall_edit = self.quantity_edit("conductivity", "Wall conductivity", "pipe.wall_conductivity_W_per_mK",
                                              allow_empty=True, empty_text="material default")
         form.addRow("Wall conductivity", self.kwall_edit)
+        self.fouling = FoulingField(self, "Inside fouling", "inside_fouling_m2K_per_W", "inside")
+        form.addRow("Inside fouling", self.fouling)
+        form.addRow("", hint(INSIDE_FOULING_HINT))
         return box
 
     def _build_heat_section(self) -> QGroupBox:
@@ -269,13 +279,14 @@ class SegmentCard(EditorPanel):
             self._show_segment_fields(seg)
             if seg is not prev:
                 fixed_changed = seg.surroundings.kind != prev.surroundings.kind
-                if seg.pipe != prev.pipe:
+                if seg.pipe != prev.pipe or seg.inside_fouling_m2K_per_W != prev.inside_fouling_m2K_per_W:
                     self._show_pipe(seg)
                 if fixed_changed or seg.heat_input_W_per_m != prev.heat_input_W_per_m:
                     self._show_heat(seg)
                 for box, same in ((self.layers, seg.insulation == prev.insulation and not fixed_changed),
                                   (self.fittings, seg.fittings == prev.fittings),
-                                  (self.surroundings, seg.surroundings == prev.surroundings)):
+                                  (self.surroundings, seg.surroundings == prev.surroundings),
+                                  (self.tracer, seg.steam_tracer == prev.steam_tracer and not fixed_changed)):
                     if not same:
                         box.show_segment(seg)
                     elif getattr(box, "error", None) is not None:
@@ -291,6 +302,7 @@ class SegmentCard(EditorPanel):
         self.layers.show_segment(seg)
         self.fittings.show_segment(seg)
         self.surroundings.show_segment(seg)
+        self.tracer.show_segment(seg)
         self.card_error.hide()
 
     def _show_segment_fields(self, seg) -> None:
@@ -320,6 +332,8 @@ class SegmentCard(EditorPanel):
         self._show_material_defaults(pipe.material)
         self.roughness_edit.set_value(pipe.roughness_m)
         self.kwall_edit.set_value(pipe.wall_conductivity_W_per_mK)
+        self.fouling.edit.set_value(seg.inside_fouling_m2K_per_W)
+        self.fouling.set_unit_system(self.doc.unit_system)
         self._show_dimensions(seg)
 
     def _show_heat(self, seg) -> None:

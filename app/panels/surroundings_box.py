@@ -3,7 +3,13 @@
 One page of fields per kind (still air, wind, buried, jacket, fixed wall, adiabatic). Switching
 the kind carries the temperature over, remembers what the segment had under the kind it left
 (switching back restores it), and is one undo step; a fixed wall takes no tracing, so switching
-to it sets the heat input to 0 in the same step and switching away gives the tracing back.
+to it sets the heat input to 0 in the same step and switching away gives the tracing back. A
+jacket or a fixed wall takes no steam tracer either: switching to one removes the tracer in the same
+step, and switching on to surroundings that take one gives it back.
+
+The fixed wall is given either as a temperature (an idealisation: the wall is held exactly there)
+or as the pressure of saturated steam condensing on the pipe, which heats the wall through the
+condensate film and any steam-side fouling.
 """
 
 from __future__ import annotations
@@ -20,6 +26,7 @@ from PySide6.QtWidgets import (
 )
 
 from app.panels.editing import EditorPanel, hint, section_form, set_combo_data
+from app.panels.fouling_field import FoulingField
 from app.widgets.elided import ElidedComboBox
 from app.widgets.quantity_edit import QuantityEdit
 
@@ -32,6 +39,17 @@ SURROUNDINGS_KINDS: dict[str, str] = {
     "fixed_wall": "Fixed wall temperature / steam",
     "adiabatic": "Adiabatic (no exchange)",
 }
+
+#: what each way of giving the fixed wall means (the page's note follows the choice)
+FIXED_TEMPERATURE_HINT = ("The pipe's outer wall is held exactly at this temperature: an idealisation "
+                          "(no film, no fouling between the heat source and the wall). "
+                          "Insulation and heat input play no part.")
+FIXED_STEAM_HINT = ("Steam condenses on the pipe and heats the wall through the condensate film and any "
+                    "fouling: the wall runs below the steam's saturation temperature. "
+                    "Insulation and heat input play no part.")
+
+#: surroundings that take no steam tracer (the model refuses one with them)
+_NO_TRACER = ("jacket", "fixed_wall")
 
 # the temperature key of each surroundings kind (carried over when the kind changes)
 _TEMPERATURE_KEY = {
@@ -125,8 +143,12 @@ class SurroundingsBox(QGroupBox):
                                                           "surroundings.steam_pressure_Pa")
         f.addRow(self.fixed_by_temp, self.fixed_temp_edit)
         f.addRow(self.fixed_by_steam, self.fixed_steam_edit)
-        f.addRow(hint("The pipe's outer wall is held at this temperature (e.g. condensing steam); "
-                      "insulation and heat input play no part."))
+        self.steam_fouling = FoulingField(self.editor, "Steam-side fouling",
+                                          "surroundings.steam_side_fouling_m2K_per_W", "steam")
+        f.addRow("Steam-side fouling", self.steam_fouling)
+        self.fixed_form = f
+        self.fixed_hint = hint(FIXED_TEMPERATURE_HINT)
+        f.addRow(self.fixed_hint)
         self._add_page("fixed_wall", fw)
 
     # ------------------------------------------------------------------ model -> widgets
@@ -147,6 +169,10 @@ class SurroundingsBox(QGroupBox):
             self.fixed_steam_edit.set_value(s.steam_pressure_Pa)
             self.fixed_temp_edit.setEnabled(not by_steam)
             self.fixed_steam_edit.setEnabled(by_steam)
+            self.fixed_form.setRowVisible(self.steam_fouling, by_steam)  # a held temperature has no steam side
+            self.steam_fouling.edit.set_value(s.steam_side_fouling_m2K_per_W)
+            self.steam_fouling.set_unit_system(self.editor.doc.unit_system)
+            self.fixed_hint.setText(FIXED_STEAM_HINT if by_steam else FIXED_TEMPERATURE_HINT)
 
     # ------------------------------------------------------------------ widgets -> commands
 
@@ -174,7 +200,17 @@ class SurroundingsBox(QGroupBox):
             changes["heat_input_W_per_m"] = 0.0  # a held wall takes no tracing; one undo step restores both
         elif seg.surroundings.kind == "fixed_wall" and seg.heat_input_W_per_m == 0 and "heat_input_W_per_m" in remembered:
             changes["heat_input_W_per_m"] = remembered["heat_input_W_per_m"]  # the tracing it had before
-        self.editor.set_fields(changes, text=f"Set surroundings of '{seg.name}' to {SURROUNDINGS_KINDS[kind].split(' (')[0]}")
+        text = f"Set surroundings of '{seg.name}' to {SURROUNDINGS_KINDS[kind].split(' (')[0]}"
+        if kind in _NO_TRACER and seg.surroundings.kind not in _NO_TRACER:
+            # the steam tracer goes in the same undo step; remembered (or None), so leaving gives it back
+            remembered["steam_tracer"] = seg.steam_tracer.model_dump() if seg.steam_tracer is not None else None
+            if seg.steam_tracer is not None:
+                changes["steam_tracer"] = None
+                text += " (steam tracer removed)"
+        elif seg.surroundings.kind in _NO_TRACER and kind not in _NO_TRACER and seg.steam_tracer is None \
+                and remembered.get("steam_tracer"):
+            changes["steam_tracer"] = remembered["steam_tracer"]  # the tracer it had before
+        self.editor.set_fields(changes, text=text)
 
     def on_fixed_source(self, button_id: int) -> None:
         seg = self.editor.doc.selected

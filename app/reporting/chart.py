@@ -16,7 +16,7 @@ from typing import Optional, Sequence
 
 import numpy as np
 from PySide6.QtCore import QPointF, QRectF, Qt
-from PySide6.QtGui import QColor, QFont, QFontMetricsF, QPainterPath, QPen
+from PySide6.QtGui import QColor, QFont, QFontMetricsF, QPainterPath, QPen, QPolygonF
 
 from app import units
 from app.axes import minimum_span
@@ -25,6 +25,9 @@ from app.texts import fmt, ulabel
 from solver.results import Result
 
 LIMIT_STYLE = "dashdot"
+BAND_STYLE = "band"  # legend style of a shaded uncertainty band
+BAND_ALPHA = 56  # of 255: the tint of a band, the curve's own colour
+BAND_LEGEND = "shaded: uncertainty (methods' published accuracy)"
 
 
 @dataclass
@@ -47,11 +50,22 @@ class HLine:
 
 
 @dataclass
+class Band:
+    """A shaded band between ``lower`` and ``upper`` (display units), behind the curves."""
+
+    x: np.ndarray
+    lower: np.ndarray
+    upper: np.ndarray
+    colour: str
+
+
+@dataclass
 class Panel:
     y_label: str
     series: list[Series]
     hlines: list[HLine] = field(default_factory=list)
     min_span: float = 0.0  # smallest y span in display units
+    bands: list[Band] = field(default_factory=list)
 
 
 @dataclass
@@ -104,7 +118,7 @@ def tick_text(v: float, step: float) -> str:
 def data_range(panel: Panel) -> tuple[float, float]:
     """The y range of a panel: its data and lines, at least ``min_span`` wide, padded 6 %."""
     lo, hi = math.inf, -math.inf
-    for s in panel.series:
+    for s in list(panel.series) + [Series("", b.x, np.concatenate([b.lower, b.upper]), b.colour) for b in panel.bands]:
         y = np.asarray(s.y, dtype=float)
         y = y[np.isfinite(y)]
         if y.size:
@@ -139,6 +153,7 @@ class PanelGeometry:
     boundary_xs: list[float]  # device x of each boundary line drawn in this panel
     limit_ys: list[tuple[HLine, float]]  # each limit line and its device y
     label_boxes: list[tuple[HLine, QRectF, str]]  # the line's label box (right margin) and its text
+    band_polygons: list[tuple[Band, list[np.ndarray]]] = field(default_factory=list)  # per band: closed polygons
 
 
 @dataclass
@@ -273,6 +288,17 @@ def layout_chart(chart: Chart, rect: QRectF, pt: float, device) -> ChartGeometry
 
         curves = [(sr, _polylines(np.asarray(sr.x, dtype=float), np.asarray(sr.y, dtype=float), X, Y))
                   for sr in panel.series]
+        bands = []
+        for band in panel.bands:
+            bx, lo_, hi_ = (np.asarray(v, dtype=float) for v in (band.x, band.lower, band.upper))
+            polys = []
+            ok = np.isfinite(bx) & np.isfinite(lo_) & np.isfinite(hi_)
+            edges = np.flatnonzero(np.diff(np.concatenate(([0], ok.astype(np.int8), [0]))))
+            for a, b in zip(edges[::2], edges[1::2]):  # each run of values: the upper edge, then the lower back
+                xs = X(bx[a:b])
+                polys.append(np.vstack([np.column_stack([xs, Y(hi_[a:b])]),
+                                        np.column_stack([xs[::-1], Y(lo_[a:b][::-1])])]))
+            bands.append((band, polys))
         bxs = [float(X(b)) for b in chart.boundaries if plot_left < float(X(b)) < plot_right]
         limits = sorted(((hl, float(Y(hl.y))) for hl in panel.hlines if math.isfinite(hl.y)), key=lambda e: e[1])
         centres = _spread([yy for _, yy in limits], small_h, area.top(), area.bottom())
@@ -280,7 +306,7 @@ def layout_chart(chart: Chart, rect: QRectF, pt: float, device) -> ChartGeometry
         for (hl, _), cy in zip(limits, centres):
             text = fms.elidedText(hl.label, Qt.ElideRight, right_margin - leader - 3 * pt)
             boxes.append((hl, QRectF(plot_right + leader, cy - small_h / 2, fms.horizontalAdvance(text) + 1 * pt, small_h), text))
-        panels.append(PanelGeometry(panel, area, (y_lo, y_hi), t, s, curves, bxs, limits, boxes))
+        panels.append(PanelGeometry(panel, area, (y_lo, y_hi), t, s, curves, bxs, limits, boxes, bands))
         y_top += h + panel_gap
 
     return ChartGeometry(rect, title_rect, name_boxes, panels, (x_lo, x_hi), x_ticks,
@@ -318,7 +344,12 @@ def draw_chart(painter, rect: QRectF, chart: Chart, pt: float) -> ChartGeometry:
     painter.setFont(fonts["small"])
     for corner, label, colour, style in g.legend:
         cy = corner.y() + fms.height() * 0.62
-        painter.setPen(pen(colour, 1.6 * pt, style))
+        if style == BAND_STYLE:
+            tint = QColor(colour)
+            tint.setAlpha(2 * BAND_ALPHA)
+            painter.setPen(QPen(tint, 5 * pt))
+        else:
+            painter.setPen(pen(colour, 1.6 * pt, style))
         painter.drawLine(QPointF(corner.x(), cy), QPointF(corner.x() + 14 * pt, cy))
         painter.setPen(ink)
         painter.drawText(QPointF(corner.x() + 17 * pt, corner.y() + fms.ascent()), label)
@@ -361,6 +392,13 @@ def draw_chart(painter, rect: QRectF, chart: Chart, pt: float) -> ChartGeometry:
         for hl, yy in pg.limit_ys:
             painter.setPen(pen(hl.colour, 0.8 * pt, LIMIT_STYLE))
             painter.drawLine(QPointF(area.left(), yy), QPointF(area.right(), yy))
+        painter.setPen(Qt.NoPen)
+        for band, polys in pg.band_polygons:
+            tint = QColor(band.colour)
+            tint.setAlpha(BAND_ALPHA)
+            painter.setBrush(tint)
+            for poly in polys:
+                painter.drawPolygon(QPolygonF([QPointF(px, py) for px, py in poly]))
         for series, lines in pg.curves:
             path = QPainterPath()
             for line in lines:
@@ -430,10 +468,18 @@ def _legend_limits(hlines) -> list[tuple[str, str, str]]:
     return [("target or limit", CURVE_COLOURS["limit"], LIMIT_STYLE)] if hlines else []
 
 
-def alternative_chart(result: Result, system: str, targets=None, limits=None) -> Chart:
-    """Temperatures and pressure along the line of one alternative."""
+def alternative_chart(result: Result, system: str, targets=None, limits=None, bands=None) -> Chart:
+    """Temperatures and pressure along the line of one alternative; with ``bands``
+    (:class:`solver.uncertainty.Bands` of this result) bulk, inner wall and outer surface are shaded."""
     p = result.profile
     x = _display(p.x_m, "length", system)
+    shaded = []
+    if bands is not None and bands.width_K > 0:
+        bx = _display(bands.x_m, "length", system)
+        shaded = [Band(bx, _display(bands.lower[q], "temperature", system), _display(bands.upper[q], "temperature", system),
+                       CURVE_COLOURS[key])
+                  for key, q in (("outer_surface", "outer_surface_temperature_K"),
+                                 ("inner_wall", "inner_wall_temperature_K"), ("bulk", "bulk_temperature_K"))]
     temps = [
         Series("Bulk", x, _display(p.bulk_temperature_K, "temperature", system), CURVE_COLOURS["bulk"], "solid", 1.6),
         Series("Inner wall", x, _display(p.inner_wall_temperature_K, "temperature", system), CURVE_COLOURS["inner_wall"], "dash", 1.3),
@@ -458,13 +504,14 @@ def alternative_chart(result: Result, system: str, targets=None, limits=None) ->
         title=f"Profiles along the line — {result.name}",
         x_label=f"Position from inlet [{ulabel('length', system)}]",
         panels=[
-            Panel(f"Temperature [{ulabel('temperature', system)}]", temps, hlines, minimum_span("temperature", system)),
+            Panel(f"Temperature [{ulabel('temperature', system)}]", temps, hlines, minimum_span("temperature", system),
+                  bands=shaded),
             Panel(f"Pressure [{ulabel('pressure', system)}]", [Series("Pressure", x, press, CURVE_COLOURS["pressure"], "solid", 1.5)],
                   min_span=minimum_span("pressure", system, press)),
         ],
         segments=_spans(result, system),
         boundaries=[x1 for _, x1, _ in _spans(result, system)[:-1]],
-        legend_extra=_legend_limits(hlines),
+        legend_extra=_legend_limits(hlines) + ([(BAND_LEGEND, CURVE_COLOURS["bulk"], BAND_STYLE)] if shaded else []),
     )
 
 

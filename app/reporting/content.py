@@ -13,7 +13,7 @@ import math
 from dataclasses import dataclass
 from typing import Optional, Sequence
 
-from app import comparison, units
+from app import comparison, heat_path, heat_path_style, units
 from app.reporting.chart import alternative_chart, overlay_chart
 from app.reporting.pdf import Body
 from app.style import (
@@ -40,11 +40,13 @@ from app.texts import (
     method_entries,
     num,
     pipe_text,
+    plus_minus_text,
     surroundings_text,
     ulabel,
 )
 from solver.model import Alternative, Project
 from solver.results import ASSUMPTIONS, CAUTIONS, CAUTIONS_BANNER, KEY_FIGURES, Result, check_sort_key, key_figure
+from solver.uncertainty import BANDS_CAUTION, Bands, line_bands
 
 CSS = f"""
 body {{ color: {INK}; }}
@@ -70,11 +72,27 @@ _NBSP3 = "\u00a0" * 3  # indent that survives HTML white-space collapsing
 
 @dataclass
 class Outcome:
-    """One alternative in the report: its result, or why it could not be solved."""
+    """One alternative in the report: its result, or why it could not be solved; its uncertainty
+    bands (:class:`solver.uncertainty.Bands`; computed by :func:`build_html` when not given)."""
 
     alternative: Alternative
     result: Optional[Result]
     error: Optional[str]
+    bands: Optional[Bands] = None
+    bands_error: str = ""
+
+
+def add_bands(outcomes: Sequence[Outcome]) -> None:
+    """Give each solved outcome without bands its bands (perturb and re-solve; a fraction of a second
+    per alternative). A perturbed solve the solver refuses is named in the Bands; a bug leaves the
+    outcome without bands and says why."""
+    for o in outcomes:
+        if o.result is None or o.bands is not None:
+            continue
+        try:
+            o.bands = line_bands(o.alternative, o.result)
+        except (ArithmeticError, ValueError, RuntimeError, TypeError, AssertionError) as exc:  # a solver bug
+            o.bands_error = f"unexpected {type(exc).__name__}: {exc}"
 
 
 def verdict_html(verdict: comparison.DesignVerdict, detail: bool = True) -> str:
@@ -110,6 +128,7 @@ def _job_sentence(project: Project, outcomes: Sequence[Outcome], system: str) ->
 def build_html(project: Project, outcomes: Sequence[Outcome], system: str, date_text: str) -> Body:
     """The whole report body: title, verdicts, comparison, one section per alternative, methods."""
     doc = Body(CSS)
+    add_bands(outcomes)
     solved = [o.result for o in outcomes if o.result is not None]
     baseline_name = project.baseline_alternative().name
 
@@ -236,9 +255,11 @@ def _alternative_section(doc: Body, project: Project, o: Outcome, system: str, b
     if r is None:
         doc.box(f"<b>This alternative could not be solved.</b><br>{esc(o.error)}", MISSED_COLOUR, "#FCEDE5")
         return
-    _key_figures(doc, r, system)
+    _key_figures(doc, r, system, o.bands)
     _per_segment(doc, r, system)
-    doc.figure(alternative_chart(r, system, project.targets, alt.limits))
+    _heat_path(doc, r, system)
+    doc.figure(alternative_chart(r, system, project.targets, alt.limits, o.bands))
+    _uncertainty(doc, o, system)
     _checks(doc, alt, r, system)
     verdicts = comparison.target_verdicts(project.targets, r)
     if verdicts:
@@ -293,21 +314,68 @@ def _feed_and_segments(doc: Body, alt: Alternative, r: Optional[Result], system:
     )
 
 
-def _key_figures(doc: Body, r: Result, system: str) -> None:
-    """The one list of Key Figures in two column pairs, split between groups near the middle."""
+def _key_figures(doc: Body, r: Result, system: str, bands: Optional[Bands] = None) -> None:
+    """The one list of Key Figures in two column pairs, split between groups near the middle; under
+    each value its ± from the uncertainty bands, where it has one."""
     doc.heading(3, "Key Figures")
     figures = r.key_figures()
-    entries = [(spec, *key_figure_label_and_value(spec, figures, system, _NBSP3)) for spec in KEY_FIGURES]
+    pm = bands.key_figure_pm if bands is not None else {}
+
+    def value(spec) -> tuple[str, str]:  # (label, value cell HTML)
+        label, text = key_figure_label_and_value(spec, figures, system, _NBSP3)
+        extra = plus_minus_text(pm.get(spec.key), spec, system)
+        return label, esc(text) + (f'<br><span class="diff">{esc(extra)}</span>' if extra else "")
+
+    entries = [(spec, *value(spec)) for spec in KEY_FIGURES]
     starts = [i for i in range(1, len(entries)) if entries[i][0].group != entries[i - 1][0].group]
     cut = min(starts, key=lambda i: abs(2 * i - len(entries))) if starts else (len(entries) + 1) // 2
     left, right = entries[:cut], entries[cut:]
     blank = (None, "", "")
     left += [blank] * (len(right) - len(left))
     right += [blank] * (len(left) - len(right))
-    rows = [[esc(la), esc(va), esc(lb), esc(vb)] for (_, la, va), (_, lb, vb) in zip(left, right)]
+    rows = [[esc(la), va, esc(lb), vb] for (_, la, va), (_, lb, vb) in zip(left, right)]
     doc.table(["Key figure", "Value", "Key figure", "Value"], rows, num_cols=(1, 3), widths=[25, 21, 30, 24])
     doc.add(f'<p class="small muted">The energy balance residual (heat input − heat loss − heat to fluid, against the '
-            f'change of enthalpy) is round-off when the march has closed; {esc(comparison.plural(r.cells, "cell"))}.</p>')
+            f'change of enthalpy) is round-off when the march has closed; {esc(comparison.plural(r.cells, "cell"))}.'
+            + (" Under a value, its ± from the methods' published accuracy (see “Uncertainty”)." if pm else "") + '</p>')
+
+
+def _uncertainty(doc: Body, o: Outcome, system: str) -> None:
+    """What the bands say, which methods drive them, and what they do not cover."""
+    doc.heading(3, "Uncertainty")
+    bands, r = o.bands, o.result
+    if bands is None:
+        doc.add(f'<p class="muted">No uncertainty bands: {esc(o.bands_error or "not computed")}.</p>')
+        return
+    keys = ("outlet_temperature_K", "max_inner_wall_temperature_K", "duty_W", "pressure_drop_Pa")
+    figures = r.key_figures()
+    said = []
+    for k in keys:
+        extra = plus_minus_text(bands.key_figure_pm.get(k), key_figure(k), system)
+        if extra:
+            said.append(f"{key_figure(k).label.lower()} {fmt(figures[k], key_figure(k).quantity, system)} {extra}")
+    spec = key_figure("outlet_temperature_K")
+    ranked = [(c, plus_minus_text(v, spec, system)) for c, v in bands.ranked("outlet_temperature_K")]
+    ranked = [(c, t) for c, t in ranked if t]
+    text = ("Within the methods' published accuracy: " + "; ".join(said) + "." if said
+            else "The results hardly move within the methods' published accuracy.")
+    if ranked:
+        text += " Largest contributors to the outlet temperature: " + ", ".join(
+            f"{c.label.lower()} ({t})" for c, t in ranked[:3]) + "."
+    doc.add(f"<p>{esc(text)} The profile chart shades the bands of bulk, inner-wall and outer-surface temperature. "
+            f"<b>Caution.</b> {esc(BANDS_CAUTION)}</p>")
+    rows = []
+    for c in bands.contributions:
+        cells = [esc(c.label), esc(c.accuracy_text)]
+        for k in ("outlet_temperature_K", "duty_W"):
+            cells.append(esc(plus_minus_text(c.key_figure_pm.get(k), key_figure(k), system) or "—"))
+        cells.append(esc(c.source) + (f'<br><span class="missed">{esc(c.failed)}</span>' if c.failed else ""))
+        rows.append(cells)
+    if rows:
+        doc.table(["Method", "Accuracy", f"± {esc(key_figure('outlet_temperature_K').label.lower())}",
+                   f"± {esc(key_figure('duty_W').label.lower())}", "Basis"],
+                  rows, num_cols=(2, 3), widths=[18, 12, 12, 11, 47], font_pt=7.0)
+    doc.add('<p class="small muted">' + " ".join(esc(line) for line in bands.basis if line != BANDS_CAUTION) + '</p>')
 
 
 def _per_segment(doc: Body, r: Result, system: str) -> None:
@@ -338,6 +406,45 @@ def _per_segment(doc: Body, r: Result, system: str) -> None:
     )
     doc.add('<p class="small muted">Outer Ø is over the insulation. Heat to fluid is negative where the fluid cools; '
             'heat loss is negative where the surroundings heat the line.</p>')
+
+
+def _heat_path(doc: Body, r: Result, system: str) -> None:
+    """Per segment, the resistances from the fluid outwards with their shares, and the heat per metre."""
+    if not r.resistances:
+        return
+    doc.heading(3, "Heat path per segment")
+    q = units.display_unit_for([v for s in r.resistances for v in (s.heat_loss_W_per_m, s.heat_to_fluid_W_per_m)],
+                               "power_per_length", system)
+    rows = []
+    for s in r.resistances:
+        table = heat_path.table_rows(s, system, with_unit=False)
+        for j, (key, label, value, share) in enumerate(table):
+            mark = f'<span style="color: {heat_path_style.part_colour(key)};">\u25a0</span> ' if key != "tracer" else ""
+            text = (_NBSP3 if label.startswith("\u2225") else "") + mark + esc(label)
+            first = j == 0
+            rows.append([
+                str(s.index + 1) if first else "",
+                (f"{esc(s.name)}<br><span class=\"diff\">total {esc(heat_path.resistance_text(s.total_K_m_per_W, system))}"
+                 "</span>" if first else ""),
+                text, esc(value), esc(share),
+                esc(units.format_value(s.heat_loss_W_per_m, "power_per_length", system, 3, with_unit=False,
+                                       display_unit=q)) if first else "",
+                esc(units.format_value(s.heat_to_fluid_W_per_m, "power_per_length", system, 3, with_unit=False,
+                                       display_unit=q)) if first else "",
+            ])
+    def unit(text: str) -> str:  # the unit on a line of its own, so it is not broken at its slash
+        return f"<br>[{esc(text)}]"
+
+    R = ulabel(heat_path.RESISTANCE, system)
+    doc.table(["#", "Segment", "Part, from the fluid outwards", f"R\u2032{unit(R)}", "Share",
+               f"Heat loss{unit(q.label)}", f"Heat to fluid{unit(q.label)}"],
+              rows, num_cols=(0, 3, 4, 5, 6), widths=[3, 17, 29, 14, 11, 12, 14], font_pt=7.5)
+    doc.add('<p class="small muted">Resistances per metre of pipe, length-averaged over the segment, in series from the '
+            'fluid to the surroundings; each share is of the total, i.e. of the temperature drop from the fluid to the '
+            'surroundings. Convection and radiation (\u2225) act in parallel as the outer air film; beside each, the share '
+            'of the film\u2019s heat it carries. A steam tracer is a separate path from the steam to the pipe wall. '
+            'Heat loss is to the ambient air or soil (negative where the surroundings heat the line); with a jacket or '
+            'steam on the pipe the path ends at the heating medium, whose heat is heat input, not loss.</p>')
 
 
 def _checks(doc: Body, alt: Alternative, r: Result, system: str) -> None:
