@@ -98,24 +98,37 @@ projects["glycol_return"] = Project(
     targets=Targets(outlet_temperature_max_K=C(8.0), max_pressure_drop_Pa=bar(1.5)),
 )
 
-projects["steam_jacketed_heater"] = Project(
-    name="Fernbrook Works — jacketed heating run for wash water",
-    description="Invented demo scenario: process wash water heated in a steam-jacketed run (jacket steam at "
-                "3.5 bar(a) condensing on the pipe wall), then carried through an insulated run to the washers.",
-    prepared_by="Process engineering (demo)", revision="A",
-    alternatives=[Alternative(name="Jacket 14 m, NPS 2", fluid=PureFluid(name="Water"),
+def jacket_alt(name, desc, inside_fouling=0.0, steam_fouling=0.0):
+    return Alternative(name=name, description=desc, fluid=PureFluid(name="Water"),
         feed=Feed(inlet_temperature_K=C(15), inlet_pressure_Pa=bar(6.0), mass_flow_kg_per_s=2.2),
         segments=[
             Segment(name="Feed from header", length_m=6, pipe=Pipe(nps="2", schedule="40"), insulation=[wool(40)],
                     fittings=[Fitting(kind="gate_valve_full"), elbows(1)], surroundings=StillAir(temperature_K=C(20))),
             Segment(name="Steam jacket", length_m=14, pipe=Pipe(nps="2", schedule="40", material="stainless steel"),
-                    surroundings=FixedWall(wall_temperature_K=None, steam_pressure_Pa=bar(3.5)),
+                    inside_fouling_m2K_per_W=inside_fouling,
+                    surroundings=FixedWall(wall_temperature_K=None, steam_pressure_Pa=bar(3.5),
+                                           steam_side_fouling_m2K_per_W=steam_fouling),
                     fittings=[Fitting(kind="elbow_180_return", count=3)]),
             Segment(name="Run to washers", length_m=40, pipe=Pipe(nps="2", schedule="40"), insulation=[wool(50)],
                     fittings=[elbows(5), Fitting(kind="globe_valve")], elevation_change_m=4.0,
                     surroundings=StillAir(temperature_K=C(20))),
         ],
-        limits=Limits(max_inner_wall_temperature_K=C(140)))],
+        limits=Limits(max_inner_wall_temperature_K=C(140)))
+
+
+projects["steam_jacketed_heater"] = Project(
+    name="Fernbrook Works — jacketed heating run for wash water",
+    description="Invented demo scenario: process wash water heated in a steam-jacketed run (jacket steam at "
+                "3.5 bar(a) condensing on the pipe wall through its condensate film), then carried through an "
+                "insulated run to the washers. The second alternative carries a fouling allowance on both sides "
+                "of the jacketed pipe (typical design values).",
+    prepared_by="Process engineering (demo)", revision="A",
+    alternatives=[
+        jacket_alt("Jacket 14 m, NPS 2", "Clean pipe: the condensate film and the pipe wall only."),
+        jacket_alt("Jacket 14 m, fouled", "Design fouling allowance: treated water inside (0.00018 m²K/W) and "
+                   "steam outside (0.00009 m²K/W), typical TEMA-style values (from memory).",
+                   inside_fouling=1.8e-4, steam_fouling=9e-5),
+    ],
     targets=Targets(outlet_temperature_min_K=C(65), outlet_temperature_max_K=C(90)),
 )
 
