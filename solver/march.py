@@ -251,8 +251,7 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
         # outer surface temperature for the film coefficient: the surface balance closed per cell
         surface_step = 0.0
         if air is not None:
-            t_surf_new = _surface_temperature(air, line, film_mask, T_heated[film_mask], T_surface[film_mask],
-                                              r_ins_film, d_film, vertical_kw, factors)
+            t_surf_new = _surface_temperature(T_heated[film_mask], t_inf[film_mask], r_ins_film, d_film, h_conv + h_rad)
             surface_step = float(np.max(np.abs(t_surf_new - T_surface[film_mask])))
             T_surface[film_mask] = t_surf_new
         last_step = max(float(np.max(np.abs(T_new - T))), float(np.max(np.abs(p_new - p))) * 1e-5,
@@ -324,24 +323,17 @@ def _wall_property_factor(fluid, Re, Pr, mu, T_nodes, T_wall, p_nodes, t_lo, t_h
     return correlations.wall_property_factor(Re, Pr, pr_wall, mu, pw.mu, T_bulk, T_wall, False), groups
 
 
-def _surface_temperature(air, line: LineGrid, film_mask, t_heated, t_surface, r_ins, d_out, vertical_kw, factors,
-                         passes: int = 1):
+def _surface_temperature(t_heated, t_inf, r_ins, d_out, h_film):
     """Outer surface temperature in air, with the surface balance closed at the pass's heated-wall temperature.
 
     At the surface, heat conducted through the insulation equals the heat the air film carries away:
-    (T_h − T_s)/R_ins = h(T_s)·π·D·(T_s − T∞). Solved by a few fixed-point steps on T_s from the
-    last value (h depends weakly on T_s, so each step cuts the error several-fold; one step per pass
-    is enough, the march's own passes repeat it until nothing moves).
+    (T_h − T_s)/R_ins = h·π·D·(T_s − T∞), with h the film coefficient at the last surface temperature
+    (the pass's own, so no film is evaluated twice). h depends weakly on T_s, so each such step cuts
+    the error several-fold; the march's passes repeat it until nothing moves.
     """
-    t_inf = line.t_inf[film_mask]
-    area = math.pi * d_out
-    for _ in range(passes):
-        h_conv, h_rad = air_film_parts(air, t_surface, t_inf, d_out, line.wind_speed[film_mask],
-                                       line.emissivity[film_mask], factors, **vertical_kw)
-        g_film = (h_conv + h_rad) * area
-        # series: heated node -> insulation -> surface -> film -> air
-        t_surface = (t_heated + r_ins * g_film * t_inf) / (1.0 + r_ins * g_film)
-    return t_surface
+    g_film = h_film * (math.pi * d_out)
+    # series: heated node -> insulation -> surface -> film -> air
+    return (t_heated + r_ins * g_film * t_inf) / (1.0 + r_ins * g_film)
 
 
 def _heat_pass(line: LineGrid, r_a, r_out_total, mcp, e_corr, t_in: float, t_inf_eff, g_tracer):
