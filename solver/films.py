@@ -86,13 +86,6 @@ class AirAtOneAtmosphere:
         return np.interp(t, tk, self.nu), np.interp(t, tk, self.alpha), np.interp(t, tk, self.k)
 
 
-def air_film(air, t_surface, t_air, d_outer, wind_speed, emissivity, factors=None, vertical_length=None):
-    """Outer film coefficient in air [W/m²K]: convection plus radiation (see :func:`air_film_parts`)."""
-    h_conv, h_rad = air_film_parts(air, t_surface, t_air, d_outer, wind_speed, emissivity, factors,
-                                   vertical_length=vertical_length)
-    return h_conv + h_rad
-
-
 def _free_convection(air, t_surface, t_air, length):
     """Rayleigh number on ``length`` and air properties at the film temperature: (Ra, Pr, ν, α, k)."""
     t_film = 0.5 * (t_surface + t_air)

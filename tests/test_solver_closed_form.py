@@ -311,3 +311,57 @@ def test_traced_insulated_line_approaches_its_holding_temperature():
     # the heat lost per metre at the outlet is what crosses R_o from the heated node (closed form)
     t_heated = tm[-1] + r.profile.heat_to_fluid_W_per_m[-1] * r_a
     assert float(r.profile.heat_loss_W_per_m[-1]) == pytest.approx((t_heated - t_air) / r_o, rel=1e-3)
+
+
+def test_thermal_entry_restarts_where_the_wall_condition_changes():
+    """A very viscous liquid (Pr = 1e5, laminar) runs 0.5 m unheated, then meets a wall held at
+    360 K: a new thermal boundary layer starts there, so the local Nusselt number in the heated
+    segment follows the thermal-entry solution at x' measured from the segment's start — Shah &
+    London (1978), uniform wall temperature, hydrodynamically developed: Nu_x = 1.077 x*^(−1/3) − 0.7
+    for x* = x'/(D Re Pr) <= 0.01 (equation quoted from memory, so 6 % is asked) — and matches a
+    line that starts with the heated segment."""
+    fl = constant_fluid(rho=1000.0, cp=4000.0, mu=5.0, k=0.2)  # Pr = 1e5
+    d, m = 0.05, 0.02  # Re ≈ 0.1, Re Pr ≈ 1e4
+    feed = Feed(inlet_temperature_K=300.0, inlet_pressure_Pa=5e5, mass_flow_kg_per_s=m)
+    heated = Segment(name="Held wall", length_m=0.7, pipe=bore(d), surroundings=FixedWall(wall_temperature_K=360.0))
+    lead_in = Segment(name="Lead-in", length_m=0.5, pipe=bore(d), surroundings=Adiabatic())
+    r = solve(Alternative(name="Restart", fluid=fl, feed=feed, segments=[lead_in, heated]), cells_per_segment=200)
+    fresh = solve(Alternative(name="Fresh", fluid=fl, feed=feed, segments=[heated]), cells_per_segment=200)
+    s = r.segments[1]
+    x = r.profile.x_m[s.node_start:s.node_end + 1] - 0.5
+    nu = r.profile.inside_coefficient_W_per_m2K[s.node_start:s.node_end + 1] * d / 0.2
+    re, pr = 4 * m / (math.pi * d * 5.0), 4000.0 * 5.0 / 0.2
+    xs = x / (d * re * pr)
+    sel = (xs >= 2e-4) & (xs <= 1.4e-3)
+    assert sel.sum() > 10
+    nu_sl = 1.077 * xs[sel] ** (-1.0 / 3.0) - 0.7  # Shah & London (1978), from memory
+    assert np.all(np.abs(nu[sel] / nu_sl - 1.0) < 0.06), (nu[sel] / nu_sl).min()
+    # the same wall from the inlet: equal to 1 % (node values are cell means, and a line's first
+    # segment has its cells packed towards the inlet, a later segment evenly spaced ones)
+    nu_fresh = np.interp(x[sel], fresh.profile.x_m, fresh.profile.inside_coefficient_W_per_m2K) * d / 0.2
+    assert nu[sel] == pytest.approx(nu_fresh, rel=0.01)
+    # and the liquid warms as the restarted entry says: (Tw − Tm)/(Tw − Tm,0) = exp(−4 Nu_m x*) with the
+    # mean Nu_m = 1.615 x*^(−1/3) − 0.7 (Shah & London 1978, uniform wall temperature, x* <= 0.005;
+    # from memory) — the heating fraction within 6 %
+    tm = r.profile.bulk_temperature_K[s.node_start:s.node_end + 1]
+    theta = (360.0 - tm) / (360.0 - tm[0])
+    nu_m = 1.615 * xs[sel] ** (-1.0 / 3.0) - 0.7
+    assert np.all(np.abs((1.0 - theta[sel]) / (1.0 - np.exp(-4.0 * nu_m * xs[sel])) - 1.0) < 0.06)
+
+
+def test_very_long_held_wall_line_reaches_the_wall_temperature():
+    """A slow laminar flow along 400 m of wall held at 360 K: the number of transfer units
+    π D h L/(m cp) is about 700, so by the closed form (Ts − Tm)/(Ts − Tin) = exp(−NTU) the liquid
+    leaves at the wall temperature to round-off and never passes it (second law). This is the
+    range where the march's recurrence can no longer use its cumulative-product form."""
+    seg = Segment(name="Long held run", length_m=400.0, pipe=bore(D), surroundings=FixedWall(wall_temperature_K=T_WALL))
+    alt = Alternative(name="Saturates", fluid=constant_fluid(W_RHO, W_CP, W_MU, W_K),
+                      feed=Feed(inlet_temperature_K=T_IN, inlet_pressure_Pa=3e5, mass_flow_kg_per_s=0.001),
+                      segments=[seg])
+    r = solve(alt)
+    tm = r.profile.bulk_temperature_K
+    assert r.outlet_temperature_K == pytest.approx(T_WALL, abs=1e-6)
+    assert np.all(np.diff(tm) >= -1e-9) and np.all(tm <= T_WALL + 1e-6)
+    # NTU over the first metre with the fully developed 3.657 (Shah & London 1978) is about 1.7: warm quickly
+    i1 = int(np.searchsorted(r.profile.x_m, 5.0))
+    assert T_WALL - tm[i1] < 1e-2 * (T_WALL - T_IN)

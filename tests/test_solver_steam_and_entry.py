@@ -201,3 +201,29 @@ def test_thermal_entry_restarts_where_the_wall_condition_changes_and_not_between
     two.segments = [Segment(name="J1", length_m=7.0, pipe=NPS2, surroundings=jacket),
                     Segment(name="J2", length_m=13.0, pipe=NPS2, surroundings=jacket)]
     assert solve(two).outlet_temperature_K == pytest.approx(solve(one).outlet_temperature_K, abs=0.002)
+
+
+def test_inside_coefficient_at_nodes_carries_the_property_correction_of_the_node_itself():
+    # the steam-jacketed sample (invented demo): water heated turbulently in the jacket. At a node the
+    # reported coefficient must be Gnielinski (ht) × the VDI local entrance factor 1 + ⅓(D/x)^(2/3), x from
+    # where the jacket's thermal entry starts, × (Pr_b/Pr_w)^0.11 (Gnielinski; VDI Heat Atlas G1) with
+    # CoolProp properties at the node's own bulk and inner-wall temperatures — also at the segment's ends
+    from pathlib import Path
+    from solver import catalogue
+    from solver.project_io import load_project
+    alt = load_project(Path(__file__).resolve().parent.parent / "sample_projects" / "steam_jacketed_heater.json").alternatives[0]
+    r = solve(alt)
+    span = r.segments[1]
+    rp = catalogue.resolve_pipe(alt.segments[1].pipe)
+    d = rp.inner_diameter_m
+    for i in (span.node_start + 3, (span.node_start + span.node_end) // 2, span.node_end):
+        t, p = float(r.profile.bulk_temperature_K[i]), float(r.profile.pressure_Pa[i])
+        t_w = float(r.profile.inner_wall_temperature_K[i])
+        b, w = _water(t, p), _water(t_w, p)
+        pr, pr_w = b["C"] * b["V"] / b["L"], w["C"] * w["V"] / w["L"]
+        re = 4 * alt.feed.mass_flow_kg_per_s / (math.pi * d * b["V"])
+        fd = fluids.friction.friction_factor(Re=re, eD=rp.roughness_m / d)
+        x = float(r.profile.x_m[i]) - span.x_start_m
+        h = (ht.conv_internal.turbulent_Gnielinski(Re=re, Pr=pr, fd=fd) * b["L"] / d
+             * (1 + (d / x) ** (2 / 3) / 3) * (pr / pr_w) ** 0.11)
+        assert r.profile.inside_coefficient_W_per_m2K[i] == pytest.approx(h, rel=2e-3), i

@@ -17,7 +17,7 @@ from ht.conv_external import Nu_cylinder_Churchill_Bernstein
 from ht.conv_free_immersed import Nu_horizontal_cylinder_Churchill_Chu, Nu_vertical_plate_Churchill
 
 from solver import correlations
-from solver.films import AirAtOneAtmosphere, air_film, air_film_parts, free_convection_groups
+from solver.films import AirAtOneAtmosphere, air_film_parts, free_convection_groups
 
 G = 9.80665
 
@@ -78,14 +78,6 @@ def test_wind_across_a_riser_combines_with_its_vertical_free_convection():
     h_conv, _ = air_film_parts(AirAtOneAtmosphere.get(), np.array([t_s]), np.array([t_a]), np.array([d]),
                                np.array([wind]), np.array([0.9]), vertical_length=np.array([height]))
     assert h_conv[0] == pytest.approx(expected, rel=5e-3)
-
-
-def test_air_film_passes_the_height_on():
-    air = AirAtOneAtmosphere.get()
-    args = (air, np.array([320.0]), np.array([290.0]), np.array([0.2]), np.array([0.0]), np.array([0.9]))
-    h_conv, h_rad = air_film_parts(*args, vertical_length=np.array([8.0]))
-    assert air_film(*args, vertical_length=np.array([8.0]))[0] == pytest.approx(h_conv[0] + h_rad[0], rel=1e-12)
-    assert air_film(*args)[0] != pytest.approx(air_film(*args, vertical_length=np.array([8.0]))[0], rel=0.02)
 
 
 def test_thin_cylinder_criterion_and_rayleigh_groups():
