@@ -155,6 +155,15 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
     wall_groups = None
     g_tracer = g_tracer_pass = line.g_tracer
     first_pass = True
+    if air is not None:
+        # a first surface temperature from the surface balance with the wall at the inlet temperature:
+        # a halfway guess leaves the surface tens of kelvin out and costs two more passes
+        t_in_film = np.full(d_film.shape, t_in)
+        for _ in range(3):
+            h_conv, h_rad = air_film_parts(air, T_surface[film_mask], t_inf[film_mask], d_film,
+                                           line.wind_speed[film_mask], line.emissivity[film_mask], factors,
+                                           **vertical_kw)
+            T_surface[film_mask] = _surface_temperature(t_in_film, t_inf[film_mask], r_ins_film, d_film, h_conv + h_rad)
     for _ in range(max_iterations):
         # properties at the nodes; cell values are the means of their two nodes (second order)
         T_eval = _clip(T, t_lo, t_hi)
