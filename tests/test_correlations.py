@@ -81,6 +81,22 @@ def test_friction_transition_follows_churchill_1977(eD):
     assert np.all(np.diff(between) > 0)  # rising onto Churchill's curve, as the flow leaves the laminar state
 
 
+def test_friction_transition_on_a_line_of_mixed_roughness():
+    # A line whose segments differ in roughness, its cells in the transition band: each cell on the curve of its own
+    # roughness. References: Hagen–Poiseuille 64/Re at 2300, fluids' Colebrook at 4000, fluids' Churchill_1977 in
+    # between; the fades are linear in the scale on Churchill (friction_factor's docstring), so at 2400 the scale is
+    # the mean of 1 and (64/2300)/Churchill(2300), at 3250 the mean of 1 and Colebrook(4000)/Churchill(4000).
+    rough = [1e-4, 1e-2]
+    eD = np.array(rough * 4)
+    Re = np.repeat([np.nextafter(2300.0, 3000.0), 2400.0, 3250.0, np.nextafter(4000.0, 0.0)], 2)
+    expected = [64 / 2300] * 2
+    expected += [Churchill_1977(2400.0, e) * (1 + 0.5 * ((64 / 2300) / Churchill_1977(2300.0, e) - 1)) for e in rough]
+    expected += [Churchill_1977(3250.0, e) * (1 + 0.5 * (Colebrook(4000.0, e) / Churchill_1977(4000.0, e) - 1))
+                 for e in rough]
+    expected += [Colebrook(4000.0, e) for e in rough]
+    np.testing.assert_allclose(corr.friction_factor(Re, eD), expected, rtol=1e-6)
+
+
 def test_friction_factor_rejects_non_positive_reynolds():
     with pytest.raises(ValueError, match="Re"):
         corr.friction_factor(np.array([1000.0, 0.0]), 0.0)
@@ -165,6 +181,10 @@ def test_gnielinski_matches_ht():
     np.testing.assert_allclose(corr.nusselt_gnielinski(Re, Pr, fd), reference, rtol=1e-10)
     # ht documentation example: turbulent_Gnielinski(Re=1E5, Pr=1.2, fd=0.0185) = 254.62682749359632.
     assert corr.nusselt_gnielinski(1e5, 1.2, 0.0185) == pytest.approx(254.62682749359632, rel=1e-12)
+    # 10 bores from the inlet: ht's value times the local entrance factor 1 + ⅓(D/x)^(2/3) (VDI G1's mean factor
+    # 1 + (D/x)^(2/3) differentiated).
+    local = corr.nusselt_gnielinski(1e5, 1.2, 0.0185, np.array([10.0, 1e3]))
+    np.testing.assert_allclose(local, 254.62682749359632 * (1 + np.array([10.0, 1e3]) ** (-2 / 3) / 3), rtol=1e-12)
 
 
 @pytest.mark.parametrize("boundary, laminar", [("T", 3.657), ("q", 48 / 11)])
@@ -194,6 +214,34 @@ def test_nusselt_inside_turbulent_uses_given_friction_and_broadcasts():
     grid = corr.nusselt_inside(np.array([[500.0], [5e3], [5e4]]), np.array([1.0, 10.0]), 0.02, 50.0, "T")
     assert grid.shape == (3, 2)
     assert np.all(np.isfinite(grid))
+
+
+def test_a_line_spanning_transition_and_turbulence():
+    # One call for a line whose cells run from the transition band into turbulent flow (a heated oil thinning along
+    # the line): each cell as in its own regime. Turbulent cells: ht's Gnielinski with the friction given (fluids'
+    # Colebrook) and ht's (Pr_b/Pr_w)^0.11; the transition cell: Gnielinski's (1995) blend, γ = 0.5 at Re = 6150,
+    # of Shah & London's 4.364 and ht's Gnielinski at 1e4 with Colebrook(1e4).
+    eD, Pr = 1e-4, 5.0
+    Re = np.array([6150.0, 5e4, 2e5])
+    fd = np.array([Colebrook(r, eD) for r in Re])
+    nu = corr.nusselt_inside_mean(Re, Pr, fd, np.inf, np.inf, "q", eD)
+    expected = [0.5 * 48 / 11 + 0.5 * turbulent_Gnielinski(1e4, Pr, Colebrook(1e4, eD))]
+    expected += [turbulent_Gnielinski(r, Pr, f) for r, f in zip(Re[1:], fd[1:])]
+    np.testing.assert_allclose(nu, expected, rtol=2e-4)
+    factor = corr.wall_property_factor(Re[1:], np.array([5.0, 5.0]), np.array([2.5, 2.5]), 1e-3, 1e-3, None, None, False)
+    turbulent = wall_factor(Pr=5.0, Pr_wall=2.5, property_option="Prandtl", Pr_heating_coeff=0.11, Pr_cooling_coeff=0.11)
+    mixed = corr.wall_property_factor(np.array([6150.0, 5e4]), 5.0, 2.5, 1e-3, 1e-3, None, None, False)
+    np.testing.assert_allclose(factor, turbulent, rtol=1e-12)
+    assert mixed[1] == pytest.approx(turbulent, rel=1e-12)
+
+
+def test_fully_developed_laminar_cells_on_their_own():
+    # Cells that are all fully developed (x0 = x1 = inf, no finite zero-length cell among them): Shah & London's
+    # (1978) 3.657 (uniform wall temperature) and 48/11 (uniform heat flux), not NaN from inf − inf.
+    for boundary, limit in (("T", 3.657), ("q", 48 / 11)):
+        assert corr.nusselt_inside_mean(1000.0, 5.0, 0.064, np.inf, np.inf, boundary) == pytest.approx(limit, rel=1e-12)
+        np.testing.assert_allclose(corr.nusselt_inside_mean(1000.0, 5.0, 0.064, np.full(3, np.inf), np.full(3, np.inf),
+                                                            boundary), limit, rtol=1e-12)
 
 
 # ----------------------------------------------------------------------------- property-ratio correction
