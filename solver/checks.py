@@ -107,6 +107,13 @@ def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> lis
         """Per segment, its cells (line indices) where ``mask`` holds."""
         return _where_in_each(mask, cell_start, cell_stop)
 
+    def per_cells(mask, severity, code, message_fn):
+        """One check per segment with cells where ``mask`` holds, at the first of them;
+        ``message_fn(segment, its cells)`` writes the message."""
+        for s, sel in zip(setups, cells_where(mask)):
+            if sel.size:
+                out.append(Check(severity, code, message_fn(s, sel), segment=s.index, x_m=float(x_mid[sel[0]])))
+
     c = _T  # temperatures in messages are tokens, shown in the user's units (see results.render_message)
 
     # boiling / flashing, or condensation for a gas
@@ -157,12 +164,10 @@ def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> lis
 
     # flow regime (cells -> segments)
     regime = correlations.flow_regime(Re)
-    for s, trans in zip(setups, cells_where(regime == 1)):
-        if trans.size:
-            out.append(Check("warning", "TRANSITIONAL_FLOW",
-                             f"Transitional flow (Re {_n(Re[trans].min())} to {_n(Re[trans].max())}): heat transfer and "
-                             "friction are uncertain by tens of percent between Re 2,300 and 10,000.",
-                             segment=s.index, x_m=float(x_mid[trans[0]])))
+    per_cells(regime == 1, "warning", "TRANSITIONAL_FLOW",
+              lambda s, trans: (
+                  f"Transitional flow (Re {_n(Re[trans].min())} to {_n(Re[trans].max())}): heat transfer and "
+                  "friction are uncertain by tens of percent between Re 2,300 and 10,000."))
 
     # velocity (common practice ranges)
     # per-segment extremes in one pass (max and min are exact, so the same numbers as per slice)
@@ -230,51 +235,41 @@ def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> lis
     bad_cb = (Re >= correlations.RE_COLEBROOK_MIN) & correlations.out_of_range(
         "colebrook", Re=Re, relative_roughness=line.rel_rough)
     for mask, name in ((bad_g, "Gnielinski"), (bad_l, "laminar entry")):
-        for s, sel in zip(setups, cells_where(mask)):
-            if sel.size:
-                out.append(Check("warning", "CORRELATION_RANGE",
-                                 f"The {name} correlation is used outside its published range here "
-                                 f"(Re {_n(Re[sel].min())}–{_n(Re[sel].max())}, Pr {_n(Pr[sel].min())}–{_n(Pr[sel].max())}).",
-                                 segment=s.index, x_m=float(x_mid[sel[0]])))
+        per_cells(mask, "warning", "CORRELATION_RANGE",
+                  lambda s, sel: (
+                      f"The {name} correlation is used outside its published range here "
+                      f"(Re {_n(Re[sel].min())}–{_n(Re[sel].max())}, Pr {_n(Pr[sel].min())}–{_n(Pr[sel].max())})."))
     lo_ed, hi_ed = correlations.VALIDITY["colebrook"]["relative_roughness"]
-    for s, sel in zip(setups, cells_where(bad_cb)):
-        if sel.size:
-            out.append(Check("warning", "CORRELATION_RANGE",
-                             f"The Colebrook friction factor is used outside its published range here (relative "
-                             f"roughness ε/D {_n(line.rel_rough[sel].max())}, Re {_n(Re[sel].min())}–{_n(Re[sel].max())}; "
-                             f"published for ε/D up to {_n(hi_ed)}): the pressure drop is uncertain.",
-                             segment=s.index, x_m=float(x_mid[sel[0]])))
+    per_cells(bad_cb, "warning", "CORRELATION_RANGE",
+              lambda s, sel: (
+                  f"The Colebrook friction factor is used outside its published range here (relative "
+                  f"roughness ε/D {_n(line.rel_rough[sel].max())}, Re {_n(Re[sel].min())}–{_n(Re[sel].max())}; "
+                  f"published for ε/D up to {_n(hi_ed)}): the pressure drop is uncertain."))
     if state.wall_groups is not None:
-        for s, sel in zip(setups, cells_where(_property_ratio_out_of_range(state, regime))):
-            if sel.size:
-                out.append(Check("warning", "CORRELATION_RANGE",
-                                 "The bulk-to-wall property correction is used outside its published range here "
-                                 "(the wall is far hotter or colder than the bulk; the factor is held at its value at "
-                                 "the range's edge): the inside coefficient is uncertain.",
-                                 segment=s.index, x_m=float(x_mid[sel[0]])))
+        per_cells(_property_ratio_out_of_range(state, regime), "warning", "CORRELATION_RANGE",
+                  lambda s, sel: (
+                      "The bulk-to-wall property correction is used outside its published range here "
+                      "(the wall is far hotter or colder than the bulk; the factor is held at its value at "
+                      "the range's edge): the inside coefficient is uncertain."))
     film_mask, air = line.film_mask, state.air
     if air is not None and film_mask.any():
-        out += _air_film_range_checks(line, state, setups, x_mid, cells_where)
+        _air_film_range_checks(line, state, per_cells)
     if line.cond_mask.any():
         # Nusselt's film theory holds for a laminar condensate film
         cm = line.cond_mask
         re_film = np.zeros(line.n)
         re_film[cm] = steam.condensate_film_reynolds(line.steam_pressure[cm], state.T_heated[cm], line.d_pipe_outer[cm])
         hi = correlations.VALIDITY["film_condensation"]["Re_film"][1]
-        for s, sel in zip(setups, cells_where(cm & correlations.out_of_range("film_condensation", Re_film=re_film))):
-            if sel.size:
-                out.append(Check("warning", "CORRELATION_RANGE",
-                                 f"The condensate film is no longer laminar here (film Reynolds number up to "
-                                 f"{_n(re_film[sel].max())}; Nusselt's theory holds below about {_n(hi)}).",
-                                 segment=s.index, x_m=float(x_mid[sel[0]])))
+        per_cells(cm & correlations.out_of_range("film_condensation", Re_film=re_film), "warning", "CORRELATION_RANGE",
+                  lambda s, sel: (
+                      f"The condensate film is no longer laminar here (film Reynolds number up to "
+                      f"{_n(re_film[sel].max())}; Nusselt's theory holds below about {_n(hi)})."))
     if line.any_tracer:
         idle = (line.g_tracer > 0) & (state.g_tracer == 0)
-        for s, sel in zip(setups, cells_where(idle)):
-            if sel.size:
-                out.append(Check("info", "TRACER_IDLE",
-                                 f"The pipe is at or above the tracer's steam temperature ({_T(s.tracer_temperature_K)}) "
-                                 "here: the steam tracer gives no heat. A higher steam pressure would.",
-                                 segment=s.index, x_m=float(x_mid[sel[0]])))
+        per_cells(idle, "info", "TRACER_IDLE",
+                  lambda s, sel: (
+                      f"The pipe is at or above the tracer's steam temperature ({_T(s.tracer_temperature_K)}) "
+                      "here: the steam tracer gives no heat. A higher steam pressure would."))
     return out
 
 
@@ -290,10 +285,9 @@ def _property_ratio_out_of_range(state: MarchState, regime: np.ndarray) -> np.nd
     return bad_mu | bad_pr
 
 
-def _air_film_range_checks(line: LineGrid, state: MarchState, setups, x_mid, cells_where) -> list[Check]:
+def _air_film_range_checks(line: LineGrid, state: MarchState, per_cells) -> None:
     """Churchill–Chu (lower and upper Ra; on risers the vertical form and its thin-cylinder limit) and
     Churchill–Bernstein (Re·Pr) ranges, where the outer film in air is computed."""
-    out = []
     film_mask, air = line.film_mask, state.air
     fm = film_mask
     vertical_f, ra_f, thin_f = films.free_convection_groups(
@@ -308,33 +302,26 @@ def _air_film_range_checks(line: LineGrid, state: MarchState, setups, x_mid, cel
     for mask, what, name in ((bad_h, "horizontal cylinder", "churchill_chu"),
                              (bad_v, "vertical surface", "churchill_chu_vertical")):
         lo, hi = correlations.VALIDITY[name]["Ra"]
-        for s, sel in zip(setups, cells_where(mask)):
-            if sel.size:
-                out.append(Check("warning", "CORRELATION_RANGE",
-                                 f"Natural convection ({what}) outside the Churchill–Chu range "
-                                 f"(Ra {_n(ra[sel].min())}–{_n(ra[sel].max())}; published {_n(lo)}–{_n(hi)}).",
-                                 segment=s.index, x_m=float(x_mid[sel[0]])))
+        per_cells(mask, "warning", "CORRELATION_RANGE",
+                  lambda s, sel: (
+                      f"Natural convection ({what}) outside the Churchill–Chu range "
+                      f"(Ra {_n(ra[sel].min())}–{_n(ra[sel].max())}; published {_n(lo)}–{_n(hi)})."))
     bad_thin = fm & vertical & correlations.out_of_range("churchill_chu_vertical", D_Gr_quarter_over_L=thin)
-    for s, sel in zip(setups, cells_where(bad_thin)):
-        if sel.size:
-            out.append(Check("info", "CORRELATION_RANGE",
-                             "This riser is slender for its height: the vertical-plate correlation used for its "
-                             "natural convection understates a thin vertical cylinder's loss somewhat "
-                             "(the plate form holds when D/L ≥ 35/Gr_L^¼; Incropera & DeWitt §9.6).",
-                             segment=s.index, x_m=float(x_mid[sel[0]])))
+    per_cells(bad_thin, "info", "CORRELATION_RANGE",
+              lambda s, sel: (
+                  "This riser is slender for its height: the vertical-plate correlation used for its "
+                  "natural convection understates a thin vertical cylinder's loss somewhat "
+                  "(the plate form holds when D/L ≥ 35/Gr_L^¼; Incropera & DeWitt §9.6)."))
     windy = fm & (line.wind_speed > 0)
     if windy.any():
         t_film = 0.5 * (state.T_surface + np.nan_to_num(line.t_inf, nan=293.15))
         _, alpha, _ = air.at(t_film)
         re_pr = line.wind_speed * line.d_outer / alpha  # Re·Pr = V·D/ν · ν/α
         bad_w = windy & correlations.out_of_range("churchill_bernstein", RePr=re_pr)
-        for s, sel in zip(setups, cells_where(bad_w)):
-            if sel.size:
-                out.append(Check("warning", "CORRELATION_RANGE",
-                                 f"Wind convection outside the Churchill–Bernstein range (Re·Pr {_n(re_pr[sel].min())}; "
-                                 "published from 0.2): the outer film is uncertain.",
-                                 segment=s.index, x_m=float(x_mid[sel[0]])))
-    return out
+        per_cells(bad_w, "warning", "CORRELATION_RANGE",
+                  lambda s, sel: (
+                      f"Wind convection outside the Churchill–Bernstein range (Re·Pr {_n(re_pr[sel].min())}; "
+                      "published from 0.2): the outer film is uncertain."))
 
 
 def _no_flow_checks(alt, fluid, line: LineGrid, state: MarchState) -> list[Check]:
