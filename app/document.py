@@ -44,12 +44,14 @@ announced by :attr:`bands_ready`; :meth:`bands_for_result` gives the bands of a 
 
 from __future__ import annotations
 
+import atexit
 import dataclasses
 import hashlib
 import logging
 import math
 import pathlib
 import time
+import weakref
 from collections import OrderedDict
 from contextlib import contextmanager
 from typing import Optional, Union
@@ -60,6 +62,19 @@ from PySide6.QtGui import QUndoCommand, QUndoStack
 from solver.model import Alternative, Project, Segment
 
 log = logging.getLogger(__name__)
+
+# documents alive in this process: at interpreter exit each one's worker is stopped and waited for, so
+# no solve thread is still running Python while the interpreter and Qt tear down
+_LIVE_DOCUMENTS: "weakref.WeakSet[Document]" = weakref.WeakSet()
+
+
+@atexit.register
+def _shut_down_live_documents() -> None:
+    for doc in list(_LIVE_DOCUMENTS):
+        try:
+            doc.shutdown()
+        except RuntimeError:
+            pass  # its Qt side is already gone, and with it its pool
 
 #: debounce interval of a burst of edits [ms]
 SOLVE_DEBOUNCE_MS = 30
@@ -271,8 +286,11 @@ class Document(QObject):
 
         self._pool = QThreadPool(self)
         self._pool.setMaxThreadCount(1)  # one solve at a time; newer requests coalesce
+        # every ticket handed to the worker stays referenced here until its queued signal has arrived:
+        # the signal carries a bare pointer whose owner (the job) is deleted when it ends
+        self._emitted: set = set()
         self._sink = _SolveSink(self)
-        self._sink.finished.connect(self._on_solved)
+        self._sink.finished.connect(self._arrived_solved)
         self._timer = QTimer(self)
         self._timer.setSingleShot(True)
         self._timer.timeout.connect(self._start_solve)
@@ -282,13 +300,14 @@ class Document(QObject):
         self._bands_cache: OrderedDict[str, tuple] = OrderedDict()  # key -> (Bands | None, error)
         self._bands_job: Optional[_BandsTicket] = None
         self._bands_sink = _SolveSink(self)
-        self._bands_sink.finished.connect(self._on_bands)
+        self._bands_sink.finished.connect(self._arrived_bands)
         self._bands_timer = QTimer(self)
         self._bands_timer.setSingleShot(True)
         self._bands_timer.setInterval(BANDS_DELAY_MS)
         self._bands_timer.timeout.connect(self._start_bands)
 
         self.undo_stack.cleanChanged.connect(self._on_clean_changed)
+        _LIVE_DOCUMENTS.add(self)
 
     # ------------------------------------------------------------------ state
 
@@ -519,7 +538,16 @@ class Document(QObject):
     def _submit(self, ticket: _Ticket, priority: int) -> None:
         self._in_flight[ticket.key] = ticket
         self._jobs_out += 1
+        self._emitted.add(ticket)
         self._pool.start(_SolveJob(ticket, self._sink), priority)
+
+    def _arrived_solved(self, ticket: _Ticket) -> None:  # GUI thread: the worker's signal came in
+        self._emitted.discard(ticket)
+        self._on_solved(ticket)
+
+    def _arrived_bands(self, ticket: _BandsTicket) -> None:  # GUI thread
+        self._emitted.discard(ticket)
+        self._on_bands(ticket)
 
     def _on_solved(self, ticket: _Ticket) -> None:  # GUI thread
         if ticket.handled:
@@ -712,6 +740,7 @@ class Document(QObject):
             return  # already on its way
         ticket = _BandsTicket(key, alt, result)
         self._bands_job = ticket
+        self._emitted.add(ticket)
         self._pool.start(_BandsJob(ticket, self._bands_sink), _PRIORITY_BANDS)
 
     def _on_bands(self, ticket: _BandsTicket) -> None:  # GUI thread
@@ -778,10 +807,14 @@ class Document(QObject):
             bands = ticket.bands
         return bands
 
-    def shutdown(self, timeout_ms: int = 5000) -> None:
-        """Stop the timer, cancel background solves and wait for a running solve (call before the application quits)."""
+    def shutdown(self) -> None:
+        """Stop the timers, cancel background solves and wait for the running one (call before the application quits).
+
+        The wait has no time limit: a job still running when the document is gone would signal into a
+        deleted object and take the process down. Cancelled work stops after its current solve.
+        """
         self._timer.stop()
         self._hold_bands()
         for t in self._in_flight.values():
             t.cancelled = True
-        self._pool.waitForDone(timeout_ms)
+        self._pool.waitForDone()

@@ -26,3 +26,17 @@ def isolated_settings(tmp_path, monkeypatch):
     """No test reads or writes the user's settings, Recent files or autosave file."""
     monkeypatch.setenv("CALORUN_SETTINGS_DIR", str(tmp_path / "settings"))
     monkeypatch.setenv("CALORUN_RECOVERY_DIR", str(tmp_path / "recovery"))
+
+
+@pytest.fixture(autouse=True)
+def collect_on_main_thread():
+    """As in the app (app.gui_gc): garbage collection runs on the GUI thread, never on a solve worker
+    thread, where freeing a test's leftover windows would destroy Qt objects off their thread."""
+    import gc
+
+    from app.gui_gc import collect_due
+
+    thresholds = gc.get_threshold()
+    gc.disable()
+    yield
+    collect_due(thresholds)
