@@ -498,3 +498,29 @@ def _resolve_cached(
         wall_conductivity_W_per_mK=float(conductivity),
         description=description,
     )
+
+
+# --------------------------------------------------------------------------- aqueous solutions
+
+#: Aqueous solutions offered in the GUI:
+#: CoolProp INCOMP code -> (label, fraction basis 'mass'|'volume', min fraction, max fraction).
+#: All listed codes are mass-based in CoolProp 6.8 (set_volu_fractions is refused
+#: for them, set_mass_fractions accepted); the ranges are CoolProp's
+#: ``fraction_min``/``fraction_max``. tests/test_properties.py re-checks both.
+#: The model holds a solution's concentration to its range (SolutionFluid).
+SOLUTIONS: dict[str, tuple[str, str, float, float]] = {
+    "MEG": ("Ethylene glycol", "mass", 0.0, 0.6),
+    "MPG": ("Propylene glycol", "mass", 0.0, 0.6),
+    "MEA": ("Ethanol", "mass", 0.0, 0.6),
+    "MMA": ("Methanol", "mass", 0.0, 0.6),
+    "MGL": ("Glycerol", "mass", 0.0, 0.6),
+    "MAM": ("Ammonia (aqueous)", "mass", 0.0, 0.3),
+    "MCA": ("Calcium chloride", "mass", 0.0, 0.3),
+    "MKA": ("Potassium acetate", "mass", 0.0, 0.45),
+    "MKC": ("Potassium carbonate", "mass", 0.0, 0.4),
+    "MKF": ("Potassium formate", "mass", 0.0, 0.48),
+    "MLI": ("Lithium chloride", "mass", 0.0, 0.24),
+    "MMG": ("Magnesium chloride", "mass", 0.0, 0.3),
+    "MNA": ("Sodium chloride", "mass", 0.0, 0.23),
+    "MITSW": ("Seawater", "mass", 0.0, 0.12),
+}

@@ -7,31 +7,201 @@ absolute pascal. The JSON file is exactly ``Project.model_dump(mode="json")``.
 The model only describes the design. Catalogue look-ups (pipe schedules,
 materials, fittings) and all physics live in other solver modules, so the model
 stays small and the file stays stable.
+
+Every number is bounded to what the physics and the methods support. Each bound is written
+once, below, as ``Field(ge=..., le=...)`` metadata on a named type, so the loader, the editors'
+refusals (``app.messages`` reads the pydantic error) and the fuzz strategies all use the same
+numbers. To read them: ``Segment.model_fields["length_m"].metadata`` -> ``[Gt(gt=0.0),
+Le(le=100000.0), AfterValidator(...), Ge(ge=0.001)]`` (the tightest bound of each side counts);
+for an ``Optional`` field they sit on the ``Annotated`` argument of ``.annotation``. Text fields
+carry their longest length as ``json_schema_extra["maxLength"]``; keys a file must give are
+``required_in_file`` (and ``missing_in_file``) on each model.
 """
 
 from __future__ import annotations
 
-from typing import Annotated, Literal, Optional, Union
+from typing import Annotated, ClassVar, Literal, Optional, Union
 
 from pydantic import (
+    AfterValidator,
     BaseModel,
     ConfigDict,
     Field,
-    PositiveFloat,
     ValidationInfo,
     field_validator,
     model_validator,
 )
 
-from solver.catalogue import normalise_nps, pipe_dimensions
+from solver.catalogue import SOLUTIONS, normalise_nps, pipe_dimensions
 from solver.errors import InputError
 
 FORMAT_TAG = "calorun-project"
 SCHEMA_VERSION = 1
 
-NonNegativeFloat = Annotated[float, Field(ge=0.0)]
-Temperature = Annotated[float, Field(gt=0.0, le=2000.0, description="kelvin")]
+# --------------------------------------------------------------------------- bounds (the one place)
+
+
+def _minimum_in_schema(schema: dict) -> None:
+    # a minimum applied after a validator appears as "ge" in the JSON Schema; the schema word is "minimum"
+    if "ge" in schema:
+        schema["minimum"] = schema.pop("ge")
+
+
+_THEN = AfterValidator(lambda value: value)
+
+
+def _positive(minimum: float, maximum: float, **field):
+    """A positive quantity with a plausible smallest value.
+
+    Zero or a negative entry is refused as "must be more than 0" (what is wrong with it), a tiny
+    positive one as "must be at least <minimum>": the no-op validator between the two keeps pydantic
+    from checking the minimum first. Introspection sees ``Gt(0)``, ``Le(maximum)`` and ``Ge(minimum)``.
+    """
+    return Annotated[float, Field(gt=0.0, le=maximum, **field), _THEN,
+                     Field(ge=minimum, json_schema_extra=_minimum_in_schema)]
+
+
+# Temperatures [K].
+# Process media (the fluid, its table, jacket media, held walls, limits and targets): 50 K is below
+# the triple point of every fluid offered (oxygen 54.4 K is the lowest), 1000 K is where the
+# pure-fluid property tables stop (solver.properties._T_CAP) and above any hot-oil or salt service.
+ProcessTemperature = _positive(50.0, 1000.0, description="kelvin")
+# Air around the pipe: −100 °C (below the coldest air recorded on Earth, −89 °C) to +200 °C (hot
+# process enclosures); film temperatures then stay inside the shipped air table (150–900 K,
+# solver.films.AirAtOneAtmosphere) for every process temperature above.
+AirTemperature = _positive(173.15, 473.15, description="kelvin")
+# Soil at pipe depth: −50 °C (permafrost is warmer) to +100 °C (moist soil cannot be hotter for long).
+SoilTemperature = _positive(223.15, 373.15, description="kelvin")
 Emissivity = Annotated[float, Field(ge=0.0, le=1.0)]
+Fraction = Annotated[float, Field(ge=0.0, le=1.0)]
+
+# Pressures [Pa, absolute].
+# Line pressure: the pure-fluid property tables cover 1 kPa to 100 MPa (solver.properties._LOGP0/1).
+LinePressure = _positive(1e3, 1e8, description="absolute")
+# Steam: 1 kPa (saturation 7 °C; no use as a heating medium below) to 20 MPa, inside the shipped
+# saturated-water table (611.7 Pa to 20.3 MPa, solver.steam).
+SteamPressure = _positive(1e3, 2e7, description="absolute")
+
+# Lengths [m].
+# Segment: 1 mm (a fitting's worth of pipe) to 100 km (a long transfer line; split longer runs).
+SegmentLength = _positive(1e-3, 1e5)
+# Elevation change: bounded by the length (a model rule below); the same span here for introspection.
+ElevationChange = Annotated[float, Field(ge=-1e5, le=1e5)]
+# Bore: 1 mm (capillary tubing) to 3 m (the largest penstocks and ducts; ASME B36.10M stops at NPS 80, 2 m).
+InnerDiameter = _positive(1e-3, 3.0)
+# Pipe wall: 0 (thin wall) to 0.1 m (the thickest B36.10M wall, NPS 24 XXS/Sch 160, is under 60 mm).
+WallThickness = Annotated[float, Field(ge=0.0, le=0.1)]
+# Absolute roughness: 0 to 10 mm (riveted steel, the roughest entry of the Moody chart, 0.9–9 mm).
+Roughness = Annotated[float, Field(ge=0.0, le=0.01)]
+# Insulation or cladding layer: 0.1 mm (a sheet of cladding) to 1 m (no process insulation is
+# thicker; common practice tops out near 0.3 m even on cryogenic lines).
+LayerThickness = _positive(1e-4, 1.0)
+# Burial depth to centreline: 1 cm to 100 m (deeper is a tunnel, not a buried pipe). The depth must
+# also exceed the pipe's outer radius: the solver refuses that with the segment named (solver.line).
+BurialDepth = _positive(0.01, 100.0)
+# Steam tracer tube: 3 mm to 60 mm outside diameter (tracers are 3/8 to 1 in tube, common practice).
+TracerTubeDiameter = _positive(3e-3, 0.06)
+
+# Conductivities [W/(m·K)].
+# Pipe wall: 0.05 (foamed plastic) to 500 (copper 400, the best pipe conductor).
+WallConductivity = _positive(0.05, 500.0)
+# Insulation and cladding: 0.001 (below vacuum panels, 0.004) to 500 (metal cladding).
+LayerConductivity = _positive(1e-3, 500.0)
+# Soil: 0.05 (dry peat) to 10 (no rock conducts better; quartzite is about 6).
+SoilConductivity = _positive(0.05, 10.0)
+
+# Flows.
+# Mass flow: 1 mg/s (3.6 g/h: below that the line has no flow to speak of) to 100 t/s (a 3 m bore of
+# water at 14 m/s).
+MassFlow = _positive(1e-6, 1e5)
+# Volume flow: 1 µL/s (1e-9 m³/s, the same order as the smallest mass flow) to 100 m³/s (the same
+# 3 m bore at 14 m/s).
+VolumeFlow = _positive(1e-9, 100.0)
+
+# Heat and films.
+# Heat input (tracing): 0 to 10 kW/m, some thirty times the strongest electric tracing cable (about
+# 300 W/m, common practice), so heating strips and induction heating still fit.
+HeatInputPerLength = Annotated[float, Field(ge=0.0, le=1e4)]
+# Fouling resistance: 0 to 0.01 m²·K/W, five times the highest TEMA design value (0.002, heavy fuel oil).
+FoulingResistance = Annotated[float, Field(ge=0.0, le=0.01)]
+# Air film entered directly (convection + radiation): 0.5 to 1000 W/(m²·K); still air gives about
+# 5–10, a gale about 100 (common practice).
+AirFilmCoefficient = _positive(0.5, 1e3)
+# Jacket or bath film: 1 W/(m²·K) (stagnant gas) to 100 kW/(m²·K) (dropwise condensation).
+JacketFilmCoefficient = _positive(1.0, 1e5)
+# Wind: 0.1 m/s (slower is still air: choose Still air) to 100 m/s (above the strongest recorded gusts
+# at ground level bar one, 113 m/s).
+WindSpeed = _positive(0.1, 100.0)
+# Loss coefficient K per fitting: 0 to 1000 (a globe valve is about 6–10, a throttled valve some
+# hundreds, common practice).
+LossCoefficient = Annotated[float, Field(ge=0.0, le=1e3)]
+
+# A user's property table (a liquid).
+# Density: 1 kg/m³ to 25 000 kg/m³ (mercury 13 534; osmium, the densest element, 22 590).
+TableDensity = _positive(1.0, 2.5e4)
+# Specific heat: 50 J/(kg·K) (liquid metals ~140) to 50 000 (liquid hydrogen ~10 000).
+TableSpecificHeat = _positive(50.0, 5e4)
+# Viscosity: 1 µPa·s (below any liquid's) to 100 kPa·s (bitumen at room temperature).
+TableViscosity = _positive(1e-6, 1e5)
+# Conductivity: 0.01 to 200 W/(m·K) (liquid sodium 85, the best liquid conductor in service).
+TableConductivity = _positive(0.01, 200.0)
+
+# Targets.
+# Pressure drop: up to 100 MPa, the highest line pressure above.
+PressureDropTarget = Annotated[float, Field(gt=0.0, le=1e8)]
+# Heat input for the whole line: up to 1 GW (100 km at the largest heat input per metre).
+HeatInputTarget = Annotated[float, Field(gt=0.0, le=1e9)]
+
+# Counts of things in a file. Generous for a real line, small enough that a hostile file is
+# refused at once instead of filling the memory: a 10 000-segment alternative loads in about 1 s and
+# writes a 12 MB file (measured), so 20 000 is twice the largest the report is meant to handle;
+# 200 alternatives is far beyond what a Side-by-Side can show.
+MAX_ALTERNATIVES = 200
+MAX_SEGMENTS = 20_000
+MAX_FITTINGS = 100  # entries per segment (each with its own count)
+MAX_LAYERS = 10  # insulation and cladding layers
+MAX_TABLE_ROWS = 1_000
+
+
+# --------------------------------------------------------------------------- text
+
+# Names are shown in the Line Strip, headings and the report: 200 characters is a long sentence,
+# more than any name needs. Descriptions are free notes: 10 000 characters is some pages of text.
+NAME_MAX_CHARS = 200
+TEXT_MAX_CHARS = 10_000
+
+
+def _text_checker(max_chars: int):
+    """Refuse text that is too long or cannot be written as UTF-8 (a lone UTF-16 surrogate, e.g.
+    from ``"\\ud800"`` in JSON): such a name loads and solves but could never be saved.
+
+    The messages carry no ", got <value>" part: the value may be millions of characters long or
+    hold the very character that cannot be printed.
+    """
+
+    def check(text: str) -> str:
+        if len(text) > max_chars:
+            raise ValueError(f"too long: at most {max_chars:,} characters, this has {len(text):,}")
+        try:
+            text.encode("utf-8")
+        except UnicodeEncodeError as exc:
+            raise ValueError(
+                f"contains a character that cannot be saved (U+{ord(text[exc.start]):04X})"
+            ) from None
+        return text
+
+    return AfterValidator(check)
+
+
+Name = Annotated[str, _text_checker(NAME_MAX_CHARS), Field(json_schema_extra={"maxLength": NAME_MAX_CHARS})]
+Text = Annotated[str, _text_checker(TEXT_MAX_CHARS), Field(json_schema_extra={"maxLength": TEXT_MAX_CHARS})]
+
+
+def _required_in_schema(schema: dict, model: type) -> None:
+    # the JSON Schema (``calorun schema``) describes the file, so it lists the keys a file must give
+    required = [key for key in getattr(model, "required_in_file", ()) if key not in schema.get("required", [])]
+    if required:
+        schema["required"] = [*schema.get("required", []), *required]
 
 
 class _Model(BaseModel):
@@ -42,7 +212,18 @@ class _Model(BaseModel):
         extra="forbid",
         allow_inf_nan=False,
         populate_by_name=True,
+        json_schema_extra=_required_in_schema,
     )
+
+    #: Keys a project file must give: they define the line, so the loader takes no default for them
+    #: (the defaults are for code and for the app's "new segment"). See ``missing_in_file``.
+    required_in_file: ClassVar[tuple[str, ...]] = ()
+
+    @classmethod
+    def missing_in_file(cls, raw: dict) -> list[Union[str, ValueError]]:
+        """The required keys ``raw`` (this object as a file holds it) lacks; a ``ValueError`` for a
+        rule about several keys (one of two flows)."""
+        return [key for key in cls.required_in_file if key not in raw]
 
 
 # --------------------------------------------------------------------------- fluids
@@ -52,25 +233,41 @@ class PureFluid(_Model):
     """A pure substance evaluated with CoolProp's reference equations of state."""
 
     kind: Literal["pure"] = "pure"
-    name: str = Field("Water", description="generic CoolProp fluid name, e.g. Water, Air, Nitrogen")
+    name: Name = Field("Water", description="generic CoolProp fluid name, e.g. Water, Air, Nitrogen")
+
+    required_in_file: ClassVar[tuple[str, ...]] = ("name",)
 
 
 class SolutionFluid(_Model):
     """An aqueous solution (glycol, brine) evaluated with CoolProp's incompressible library."""
 
     kind: Literal["solution"] = "solution"
-    solute: str = Field("MEG", description="CoolProp incompressible solution code, e.g. MEG, MPG, MNA")
-    concentration: float = Field(
-        0.3, ge=0.0, le=1.0, description="fraction of solute (mass or volume, as the solute defines)"
+    solute: Name = Field("MEG", description="CoolProp incompressible solution code, e.g. MEG, MPG, MNA")
+    concentration: Fraction = Field(
+        0.3, description="fraction of solute (mass or volume, as the solute defines)"
     )
+
+    required_in_file: ClassVar[tuple[str, ...]] = ("solute", "concentration")
+
+    @model_validator(mode="after")
+    def _within_solute_range(self) -> "SolutionFluid":
+        # each solute's fraction range is CoolProp's fit range (solver.catalogue.SOLUTIONS); refused here, on
+        # the field, so a file or an edit beyond it never reaches the solver
+        if self.solute not in SOLUTIONS:
+            raise ValueError(f"solute: unknown solution code; offered: {', '.join(SOLUTIONS)}, got {self.solute!r}")
+        label, basis, low, high = SOLUTIONS[self.solute]
+        if not (low <= self.concentration <= high):
+            raise ValueError(f"concentration: {label} is defined for {low:g} to {high:g} ({basis} fraction), "
+                             f"got {self.concentration:g}")
+        return self
 
 
 class TableRow(_Model):
-    temperature_K: Temperature
-    density_kg_per_m3: PositiveFloat
-    specific_heat_J_per_kgK: PositiveFloat
-    viscosity_Pa_s: PositiveFloat
-    conductivity_W_per_mK: PositiveFloat
+    temperature_K: ProcessTemperature
+    density_kg_per_m3: TableDensity
+    specific_heat_J_per_kgK: TableSpecificHeat
+    viscosity_Pa_s: TableViscosity
+    conductivity_W_per_mK: TableConductivity
 
 
 class TableFluid(_Model):
@@ -81,10 +278,10 @@ class TableFluid(_Model):
     """
 
     kind: Literal["table"] = "table"
-    name: str = "Product"
-    rows: list[TableRow] = Field(min_length=2)
-    freezing_point_K: Optional[Temperature] = None
-    boiling_point_K: Optional[Temperature] = Field(
+    name: Name = "Product"
+    rows: list[TableRow] = Field(min_length=2, max_length=MAX_TABLE_ROWS)
+    freezing_point_K: Optional[ProcessTemperature] = None
+    boiling_point_K: Optional[ProcessTemperature] = Field(
         None, description="boiling point at the line pressure, if known (checked as a fixed value)"
     )
 
@@ -107,6 +304,14 @@ Fluid = Annotated[Union[PureFluid, SolutionFluid, TableFluid], Field(discriminat
 # --------------------------------------------------------------------------- feed and limits
 
 
+def _flow_rule(mass, volume) -> str:
+    """The one wording of "give exactly one flow" (the model's rule and the loader's missing flow)."""
+    return (
+        "give exactly one of mass_flow_kg_per_s or volume_flow_m3_per_s, "
+        f"got mass_flow_kg_per_s={mass}, volume_flow_m3_per_s={volume}"
+    )
+
+
 class Feed(_Model):
     """What enters the line. Give exactly one of mass flow or volume flow.
 
@@ -114,33 +319,44 @@ class Feed(_Model):
     temperature and pressure.
     """
 
-    inlet_temperature_K: Temperature = 293.15
-    inlet_pressure_Pa: PositiveFloat = Field(300_000.0, description="absolute")
-    mass_flow_kg_per_s: Optional[PositiveFloat] = 1.0
-    volume_flow_m3_per_s: Optional[PositiveFloat] = None
+    inlet_temperature_K: ProcessTemperature = 293.15
+    inlet_pressure_Pa: LinePressure = 300_000.0
+    mass_flow_kg_per_s: Optional[MassFlow] = 1.0
+    volume_flow_m3_per_s: Optional[VolumeFlow] = None
     inlet_flow: Literal["developing", "developed"] = Field(
         "developing",
         description="developing: the flow enters from a vessel or header and develops from the inlet; "
                     "developed: it arrives fully developed from long upstream piping",
     )
+    phase: Optional[Literal["liquid", "gas"]] = Field(
+        None,
+        description="the phase the feed is meant to enter in (gas includes vapour); the solver refuses an inlet "
+                    "temperature and pressure that give the other phase. None: taken from the inlet state",
+    )
+
+    required_in_file: ClassVar[tuple[str, ...]] = ("inlet_temperature_K",)
+
+    @classmethod
+    def missing_in_file(cls, raw: dict) -> list[Union[str, ValueError]]:
+        missing = super().missing_in_file(raw)
+        if "mass_flow_kg_per_s" not in raw and "volume_flow_m3_per_s" not in raw:
+            # without this, the default mass flow (1 kg/s) would stand in for a flow the file never gave
+            missing.append(ValueError(_flow_rule(None, None)))
+        return missing
 
     @model_validator(mode="after")
     def _one_flow(self) -> "Feed":
         given = (self.mass_flow_kg_per_s is not None) + (self.volume_flow_m3_per_s is not None)
         if given != 1:
-            raise ValueError(
-                "give exactly one of mass_flow_kg_per_s or volume_flow_m3_per_s, "
-                f"got mass_flow_kg_per_s={self.mass_flow_kg_per_s}, "
-                f"volume_flow_m3_per_s={self.volume_flow_m3_per_s}"
-            )
+            raise ValueError(_flow_rule(self.mass_flow_kg_per_s, self.volume_flow_m3_per_s))
         return self
 
 
 class Limits(_Model):
     """Alternative-level limits that the Checks compare against."""
 
-    max_inner_wall_temperature_K: Optional[Temperature] = None
-    min_bulk_temperature_K: Optional[Temperature] = None
+    max_inner_wall_temperature_K: Optional[ProcessTemperature] = None
+    min_bulk_temperature_K: Optional[ProcessTemperature] = None
 
 
 # --------------------------------------------------------------------------- segment parts
@@ -156,13 +372,21 @@ class Pipe(_Model):
     """
 
     bore: Literal["nps", "diameter"] = "nps"
-    nps: Optional[str] = Field("2", description='nominal pipe size, e.g. "2", "1-1/2", "3/4"')
-    schedule: Optional[str] = Field("40", description='e.g. "40", "80", "STD", "XS", "10S"')
-    inner_diameter_m: Optional[PositiveFloat] = None
-    wall_thickness_m: Optional[NonNegativeFloat] = None
-    material: str = Field("carbon steel", description="key of the pipe material catalogue")
-    roughness_m: Optional[NonNegativeFloat] = Field(None, description="absolute roughness; None = material default")
-    wall_conductivity_W_per_mK: Optional[PositiveFloat] = Field(None, description="None = material default")
+    nps: Optional[Name] = Field("2", description='nominal pipe size, e.g. "2", "1-1/2", "3/4"')
+    schedule: Optional[Name] = Field("40", description='e.g. "40", "80", "STD", "XS", "10S"')
+    inner_diameter_m: Optional[InnerDiameter] = None
+    wall_thickness_m: Optional[WallThickness] = None
+    material: Name = Field("carbon steel", description="key of the pipe material catalogue")
+    roughness_m: Optional[Roughness] = Field(None, description="absolute roughness; None = material default")
+    wall_conductivity_W_per_mK: Optional[WallConductivity] = Field(None, description="None = material default")
+
+    @classmethod
+    def missing_in_file(cls, raw: dict) -> list[Union[str, ValueError]]:
+        # The bore is what the file gives for it: NPS and schedule, or the diameter and wall (those
+        # have no default, so the model's own rule refuses them missing).
+        if raw.get("bore", "nps") == "nps":
+            return [key for key in ("nps", "schedule") if key not in raw]
+        return []
 
     # An NPS or schedule that ASME B36.10M/B36.19M does not list is refused on entry, on the field
     # itself, so a file or an edit with one never reaches the solver.
@@ -205,9 +429,9 @@ def _catalogue_check(look_up) -> None:
 class Layer(_Model):
     """One insulation (or cladding) layer around the pipe, innermost first."""
 
-    material: str = "mineral wool"
-    thickness_m: PositiveFloat
-    conductivity_W_per_mK: PositiveFloat
+    material: Name = "mineral wool"
+    thickness_m: LayerThickness
+    conductivity_W_per_mK: LayerConductivity
 
 
 class Fitting(_Model):
@@ -217,10 +441,10 @@ class Fitting(_Model):
     (see ``solver.fittings``); with ``kind == "custom"`` give ``K`` directly.
     """
 
-    kind: str = "elbow_90_standard"
+    kind: Name = "elbow_90_standard"
     count: int = Field(1, ge=1, le=10_000)
-    K: Optional[NonNegativeFloat] = Field(None, description="loss coefficient per fitting, for kind 'custom'")
-    label: str = ""
+    K: Optional[LossCoefficient] = Field(None, description="loss coefficient per fitting, for kind 'custom'")
+    label: Name = ""
 
     @model_validator(mode="after")
     def _custom_needs_k(self) -> "Fitting":
@@ -236,12 +460,12 @@ class StillAir(_Model):
     """Ambient air without wind: natural convection plus radiation."""
 
     kind: Literal["still_air"] = "still_air"
-    temperature_K: Temperature = 293.15
+    temperature_K: AirTemperature = 293.15
     emissivity: Emissivity = 0.9
-    relative_humidity: Optional[float] = Field(
-        None, ge=0.0, le=1.0, description="0–1; when given, cold surfaces are checked against the dew point"
+    relative_humidity: Optional[Fraction] = Field(
+        None, description="0–1; when given, cold surfaces are checked against the dew point"
     )
-    film_coefficient_W_per_m2K: Optional[PositiveFloat] = Field(
+    film_coefficient_W_per_m2K: Optional[AirFilmCoefficient] = Field(
         None, description="outer film coefficient entered directly (convection + radiation); None = computed"
     )
 
@@ -250,30 +474,41 @@ class Wind(_Model):
     """Ambient air with wind in cross-flow, plus radiation."""
 
     kind: Literal["wind"] = "wind"
-    temperature_K: Temperature = 283.15
-    wind_speed_m_per_s: PositiveFloat = 5.0
+    temperature_K: AirTemperature = 283.15
+    wind_speed_m_per_s: WindSpeed = 5.0
     emissivity: Emissivity = 0.9
-    relative_humidity: Optional[float] = Field(
-        None, ge=0.0, le=1.0, description="0–1; when given, cold surfaces are checked against the dew point"
+    relative_humidity: Optional[Fraction] = Field(
+        None, description="0–1; when given, cold surfaces are checked against the dew point"
     )
-    film_coefficient_W_per_m2K: Optional[PositiveFloat] = None
+    film_coefficient_W_per_m2K: Optional[AirFilmCoefficient] = None
 
 
 class Buried(_Model):
     """Pipe buried in soil: conduction shape factor of a cylinder below an isothermal surface."""
 
     kind: Literal["buried"] = "buried"
-    soil_temperature_K: Temperature = 283.15
-    depth_m: PositiveFloat = Field(1.0, description="from ground surface to pipe centreline")
-    soil_conductivity_W_per_mK: PositiveFloat = 1.2
+    soil_temperature_K: SoilTemperature = 283.15
+    depth_m: BurialDepth = Field(1.0, description="from ground surface to pipe centreline")
+    soil_conductivity_W_per_mK: SoilConductivity = 1.2
 
 
 class Jacket(_Model):
     """A jacket or bath medium at a known temperature with a known film coefficient."""
 
     kind: Literal["jacket"] = "jacket"
-    medium_temperature_K: Temperature = 353.15
-    film_coefficient_W_per_m2K: PositiveFloat = 1000.0
+    medium_temperature_K: ProcessTemperature = 353.15
+    film_coefficient_W_per_m2K: JacketFilmCoefficient = 1000.0
+
+    # a heating or cooling medium: its default would heat or cool the line unasked
+    required_in_file: ClassVar[tuple[str, ...]] = ("medium_temperature_K", "film_coefficient_W_per_m2K")
+
+
+def _wall_source_rule(wall_temperature, steam_pressure) -> str:
+    """The one wording of "give exactly one of wall temperature or steam pressure"."""
+    return (
+        "give exactly one of wall_temperature_K or steam_pressure_Pa, "
+        f"got wall_temperature_K={wall_temperature}, steam_pressure_Pa={steam_pressure}"
+    )
 
 
 class FixedWall(_Model):
@@ -286,20 +521,24 @@ class FixedWall(_Model):
     """
 
     kind: Literal["fixed_wall"] = "fixed_wall"
-    wall_temperature_K: Optional[Temperature] = 423.15
-    steam_pressure_Pa: Optional[PositiveFloat] = None
-    steam_side_fouling_m2K_per_W: NonNegativeFloat = Field(
+    wall_temperature_K: Optional[ProcessTemperature] = 423.15
+    steam_pressure_Pa: Optional[SteamPressure] = None
+    steam_side_fouling_m2K_per_W: FoulingResistance = Field(
         0.0, description="fouling resistance on the steam side (with steam pressure only), per m² of pipe outside"
     )
+
+    @classmethod
+    def missing_in_file(cls, raw: dict) -> list[Union[str, ValueError]]:
+        if "wall_temperature_K" not in raw and "steam_pressure_Pa" not in raw:
+            # without this, the default wall at 150 °C would heat the line unasked
+            return [ValueError(_wall_source_rule(None, None))]
+        return []
 
     @model_validator(mode="after")
     def _one_source(self) -> "FixedWall":
         given = (self.wall_temperature_K is not None) + (self.steam_pressure_Pa is not None)
         if given != 1:
-            raise ValueError(
-                "give exactly one of wall_temperature_K or steam_pressure_Pa, "
-                f"got wall_temperature_K={self.wall_temperature_K}, steam_pressure_Pa={self.steam_pressure_Pa}"
-            )
+            raise ValueError(_wall_source_rule(self.wall_temperature_K, self.steam_pressure_Pa))
         return self
 
 
@@ -323,9 +562,9 @@ class SteamTracer(_Model):
     tracer gives then depends on the pipe temperature; see ``solver.steam``.
     """
 
-    steam_pressure_Pa: PositiveFloat = Field(450_000.0, description="absolute")
+    steam_pressure_Pa: SteamPressure = 450_000.0
     count: int = Field(1, ge=1, le=12)
-    tube_outer_diameter_m: PositiveFloat = Field(0.0127, description="tube outside diameter (1/2 in by default)")
+    tube_outer_diameter_m: TracerTubeDiameter = Field(0.0127, description="tube outside diameter (1/2 in by default)")
     contact: Literal["bare", "cement"] = "bare"
 
 
@@ -340,18 +579,20 @@ class Segment(_Model):
     and outer film, to the surroundings.
     """
 
-    name: str = "Segment"
-    length_m: PositiveFloat = 10.0
+    name: Name = "Segment"
+    length_m: SegmentLength = 10.0
     pipe: Pipe = Field(default_factory=Pipe)
-    elevation_change_m: float = Field(0.0, description="outlet elevation minus inlet elevation")
-    fittings: list[Fitting] = Field(default_factory=list)
-    heat_input_W_per_m: NonNegativeFloat = 0.0
+    elevation_change_m: ElevationChange = Field(0.0, description="outlet elevation minus inlet elevation")
+    fittings: list[Fitting] = Field(default_factory=list, max_length=MAX_FITTINGS)
+    heat_input_W_per_m: HeatInputPerLength = 0.0
     steam_tracer: Optional[SteamTracer] = None
-    inside_fouling_m2K_per_W: NonNegativeFloat = Field(
+    inside_fouling_m2K_per_W: FoulingResistance = Field(
         0.0, description="fouling resistance on the fluid side, per m² of bore surface"
     )
-    insulation: list[Layer] = Field(default_factory=list)
+    insulation: list[Layer] = Field(default_factory=list, max_length=MAX_LAYERS)
     surroundings: Surroundings = Field(default_factory=StillAir)
+
+    required_in_file: ClassVar[tuple[str, ...]] = ("length_m", "pipe")
 
     @model_validator(mode="after")
     def _consistent(self) -> "Segment":
@@ -376,22 +617,24 @@ class Segment(_Model):
 class Alternative(_Model):
     """One complete design of the line: fluid, feed, segments in flow order, limits."""
 
-    name: str = "Base case"
-    description: str = ""
+    name: Name = "Base case"
+    description: Text = ""
     fluid: Fluid = Field(default_factory=PureFluid)
     feed: Feed = Field(default_factory=Feed)
-    segments: list[Segment] = Field(min_length=1)
+    segments: list[Segment] = Field(min_length=1, max_length=MAX_SEGMENTS)
     limits: Limits = Field(default_factory=Limits)
+
+    required_in_file: ClassVar[tuple[str, ...]] = ("fluid", "feed")
 
 
 class Targets(_Model):
     """Design targets set on the project, judged for each alternative."""
 
-    outlet_temperature_min_K: Optional[Temperature] = None
-    outlet_temperature_max_K: Optional[Temperature] = None
-    max_inner_wall_temperature_K: Optional[Temperature] = None
-    max_pressure_drop_Pa: Optional[PositiveFloat] = None
-    max_heat_input_W: Optional[PositiveFloat] = None
+    outlet_temperature_min_K: Optional[ProcessTemperature] = None
+    outlet_temperature_max_K: Optional[ProcessTemperature] = None
+    max_inner_wall_temperature_K: Optional[ProcessTemperature] = None
+    max_pressure_drop_Pa: Optional[PressureDropTarget] = None
+    max_heat_input_W: Optional[HeatInputTarget] = None
 
 
 class Project(_Model):
@@ -399,12 +642,12 @@ class Project(_Model):
 
     format: Literal["calorun-project"] = FORMAT_TAG
     schema_version: Literal[1] = SCHEMA_VERSION
-    name: str = "Untitled line"
-    description: str = ""
-    prepared_by: str = ""
-    revision: str = ""
-    alternatives: list[Alternative] = Field(min_length=1)
-    baseline: Optional[str] = Field(None, description="name of the baseline alternative; None = the first")
+    name: Name = "Untitled line"
+    description: Text = ""
+    prepared_by: Name = ""
+    revision: Name = ""
+    alternatives: list[Alternative] = Field(min_length=1, max_length=MAX_ALTERNATIVES)
+    baseline: Optional[Name] = Field(None, description="name of the baseline alternative; None = the first")
     targets: Targets = Field(default_factory=Targets)
 
     @model_validator(mode="after")

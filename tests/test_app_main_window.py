@@ -21,7 +21,7 @@ from PySide6.QtGui import QImage  # noqa: E402
 from app import commands as C  # noqa: E402
 from app import settings  # noqa: E402
 from app.main_window import MainWindow, run  # noqa: E402
-from app.recovery import recovery_path  # noqa: E402
+from app.recovery import recovery_dir  # noqa: E402
 from solver.results import CAUTIONS, CAUTIONS_BANNER  # noqa: E402
 from solver.model import Alternative, Layer, Project, Segment  # noqa: E402
 from solver.project_io import dump_project, load_project  # noqa: E402
@@ -258,11 +258,13 @@ def test_recovery_offered_after_simulated_crash(qtbot, tmp_path):
     crashed = MainWindow(interactive=False)
     crashed.doc.set_project(small_project())
     crashed.doc.push(C.SetSegmentField(crashed.doc, 0, 0, "length_m", 42.0))
-    assert crashed.write_recovery() == recovery_path()
-    # as if the process died: no closeEvent, no more autosaves, the file stays
+    crashed_file = crashed.recovery_file
+    assert crashed.write_recovery() == crashed_file and crashed_file.exists()
+    # as if the process died: no closeEvent, no more autosaves, the file stays and its lock is gone
     crashed._autosave_timer.stop()
     crashed._edit_autosave.stop()
     crashed.doc.shutdown()
+    crashed.recovery_slot.release(remove_files=False)
     crashed.deleteLater()
 
     offers = []
@@ -274,21 +276,25 @@ def test_recovery_offered_after_simulated_crash(qtbot, tmp_path):
     assert w.doc.current_alternative.segments[0].length_m == 42.0
     assert w.doc.modified  # recovered work is unsaved until saved
     w.doc.shutdown()
+    assert not crashed_file.exists()  # taken over into w's own file
     w.close()  # a clean exit removes the recovery file
-    assert not recovery_path().exists()
+    assert not list(recovery_dir().iterdir())
 
 
-def test_declined_recovery_removes_file_and_edits_autosave(win, qtbot):
+def test_edits_autosave_and_a_second_window_leaves_the_live_file_alone(win, qtbot):
     win.doc.push(C.SetSegmentField(win.doc, 0, 0, "length_m", 44.0))
-    qtbot.waitUntil(lambda: recovery_path().exists(), timeout=10000)  # autosave after an edit
-    saved = json.loads(recovery_path().read_text(encoding="utf-8"))
+    qtbot.waitUntil(lambda: win.recovery_file.exists(), timeout=10000)  # autosave after an edit
+    saved = json.loads(win.recovery_file.read_text(encoding="utf-8"))
     assert saved["project"]["alternatives"][0]["segments"][0]["length_m"] == 44.0
     other = MainWindow(interactive=False)
     qtbot.addWidget(other)
-    other.ask_recover = lambda info: False
+    offers = []
+    other.ask_recover = lambda info: offers.append(info) or False
     assert not other.check_recovery()
-    assert not recovery_path().exists()
+    assert offers == []  # the first window is running: its work is not "recovered" from under it
     other.doc.shutdown()
+    other.close()
+    assert json.loads(win.recovery_file.read_text(encoding="utf-8")) == saved
 
 
 def test_unit_switch_changes_display_not_file(win, tmp_path):
@@ -317,7 +323,7 @@ def test_unit_switch_changes_display_not_file(win, tmp_path):
 
 
 def test_fluid_picker_and_flow_switch(win):
-    from solver.properties import SOLUTIONS
+    from solver.catalogue import SOLUTIONS
 
     feed = win.feed_panel
     i = feed.fluid_combo.findData("solution:MPG")
@@ -396,8 +402,9 @@ def test_screenshot_leaves_settings_recent_files_and_recovery_alone(tmp_path, qt
     settings.add_recent_file(tmp_path / "earlier.json")
     ini = Path(os.environ["CALORUN_SETTINGS_DIR"]) / "calorun.ini"
     remembered = ini.read_bytes()
-    recovery_path().parent.mkdir(parents=True, exist_ok=True)
-    recovery_path().write_text('{"kept": "for the user"}', encoding="utf-8")
+    crashed_file = recovery_dir() / "recovery-1-1.json"  # no lock held: its session is gone
+    crashed_file.parent.mkdir(parents=True, exist_ok=True)
+    crashed_file.write_text('{"kept": "for the user"}', encoding="utf-8")
 
     assert cli.main(["--screenshot", str(tmp_path / "si.png"), str(project)]) == 0
     assert windows[-1].doc.unit_system == "SI"  # the option's default, not the remembered US
@@ -406,7 +413,8 @@ def test_screenshot_leaves_settings_recent_files_and_recovery_alone(tmp_path, qt
     assert windows[-1].doc.unit_system == "US"
     assert ini.read_bytes() == remembered  # ...but nothing was written: no units, no Recent files entry
     assert settings.recent_files() == [str((tmp_path / "earlier.json").resolve())]
-    assert recovery_path().read_text(encoding="utf-8") == '{"kept": "for the user"}'
+    assert crashed_file.read_text(encoding="utf-8") == '{"kept": "for the user"}'
+    assert sorted(p.name for p in recovery_dir().iterdir()) == ["recovery-1-1.json"]  # and no file of its own
     assert QImage(str(tmp_path / "us.png")).width() == 1600
 
 

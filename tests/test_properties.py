@@ -5,7 +5,8 @@ import pytest
 
 from solver.errors import PropertyRangeError
 from solver.model import PureFluid, SolutionFluid, TableFluid, TableRow
-from solver.properties import PURE_FLUIDS, SOLUTIONS, fluid_model
+from solver.catalogue import SOLUTIONS
+from solver.properties import PURE_FLUIDS, fluid_model
 
 CP = pytest.importorskip("CoolProp.CoolProp")
 
@@ -171,3 +172,44 @@ def test_random_states_vs_coolprop():
 def test_out_of_range_pure():
     with pytest.raises(PropertyRangeError, match="Water"):
         water().props(np.array([250.0]), np.array([1e5]))
+
+
+def _steep_table(rho_hot):
+    from solver.model import TableFluid, TableRow
+
+    rows = [TableRow(temperature_K=280.0 + 10.0 * i, density_kg_per_m3=1000.0 + (rho_hot - 1000.0) * i / 10,
+                     specific_heat_J_per_kgK=2000.0, viscosity_Pa_s=1e-3, conductivity_W_per_mK=0.15)
+            for i in range(11)]
+    return TableFluid(name="steep", rows=rows)
+
+
+def test_table_inversion_holds_where_the_fixed_point_diverges():
+    # at 100 MPa a density falling 1000 -> 300 kg/m³ over 100 K makes d(p/rho)/dT = p·7/rho² ≈ 4,400 J/(kg·K)
+    # near the hot end, above cp = 2,000: the plain fixed point T = u⁻¹(h − p/rho(T)) diverges there, while
+    # h = u + p/rho still rises with T (closed form: dh/dT = cp − p·rho'/rho² > 0), so exactly one T holds
+    import numpy as np
+
+    from solver.properties import fluid_model
+
+    model = fluid_model(_steep_table(300.0))
+    T = np.linspace(281.0, 379.0, 60)
+    p = np.full(T.shape, 1e8)
+    assert np.all(np.diff(model.enthalpy(T, p)) > 0)
+    assert np.max(np.abs(model.temperature(model.enthalpy(T, p), p) - T)) < 1e-6
+
+
+def test_table_whose_enthalpy_falls_at_the_feed_pressure_is_refused():
+    # density rising with temperature (1000 -> 4000 kg/m³ over 100 K, rho' = 30 kg/(m³·K)): at 100 MPa and the
+    # cold end p/rho falls by p·rho'/rho² = 3,000 J/(kg·K) against cp = 2,000, so h(T) falls there and no heat
+    # balance can be closed (closed form); at 3 bar it rises and the line solves
+    import pytest
+
+    from solver import solve
+    from solver.errors import SolverError
+    from solver.model import Alternative, Feed, Segment
+
+    alt = Alternative(fluid=_steep_table(4000.0), feed=Feed(inlet_temperature_K=300.0, inlet_pressure_Pa=1e8),
+                      segments=[Segment(length_m=10.0)])
+    with pytest.raises(SolverError, match="would fall with temperature"):
+        solve(alt)
+    solve(alt.model_copy(update={"feed": Feed(inlet_temperature_K=300.0, inlet_pressure_Pa=3e5)}))

@@ -36,7 +36,8 @@ from PySide6.QtWidgets import (
 from app import commands, units
 from app.panels.editing import EditorPanel, error_hint, hint, push_edit, refusal_text, section, set_combo_data
 from app.widgets.quantity_edit import ERROR_COLOUR, QuantityEdit
-from solver.properties import PURE_FLUIDS, SOLUTIONS
+from solver.catalogue import SOLUTIONS
+from solver.properties import PURE_FLUIDS
 
 #: Feed.inlet_flow -> (combo text, what it means); the combo's tooltip and the hint say why it matters
 INLET_FLOW_CHOICES: dict[str, tuple[str, str]] = {
