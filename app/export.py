@@ -22,7 +22,7 @@ from typing import Iterable, Mapping, Sequence
 import numpy as np
 
 from app import units
-from solver.project_io import atomic_write_text
+from solver.safe_write import atomic_write_text
 from solver.results import PROFILE_COLUMNS, Result
 
 # Profile column -> quantity in app.units. Every PROFILE_COLUMNS key must be here.

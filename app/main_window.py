@@ -8,7 +8,7 @@ every job to the module that owns it: the Document (the project, undo, the solve
 ``--screenshot`` mode, which leaves the remembered settings alone).
 
 Dialogs go through small hooks (``error_dialog``, ``ask_recover``, ``ask_save_changes``,
-``choose_open_path``, ``choose_save_path``) so tests can answer them; when the window is not
+``ask_save_elsewhere``, ``choose_open_path``, ``choose_save_path``) so tests can answer them; when the window is not
 interactive (offscreen platform) the hooks never block: they record the message in
 ``self.messages`` and take the safe default.
 """
@@ -46,7 +46,7 @@ from PySide6.QtWidgets import (  # noqa: E402
     QWidget,
 )
 
-from app import recovery, settings  # noqa: E402
+from app import gui_gc, recovery, settings  # noqa: E402
 from app.document import Document, SolveFailure, default_project  # noqa: E402
 from solver.results import CAUTIONS, CAUTIONS_BANNER  # noqa: E402
 
@@ -98,7 +98,16 @@ class MainWindow(QMainWindow):
             doc = Document(unit_system=unit_system or settings.unit_system(), parent=self)
         self.doc = doc
         self.first_result_time: Optional[float] = None
-        self.recovery_file = recovery.recovery_path()  # fixed for this window's life
+        # this window's own autosave file, locked for its life so no other instance offers or removes
+        # it; none for a window that remembers nothing (or when the recovery folder cannot be written)
+        self.recovery_slot: Optional[recovery.InstanceSlot] = None
+        self._autosave_off: Optional[str] = None
+        if remember:
+            try:
+                self.recovery_slot = recovery.InstanceSlot()
+            except OSError as exc:
+                self._autosave_off = exc.strerror or str(exc)
+        self.recovery_file: Optional[Path] = self.recovery_slot.path if self.recovery_slot else None
         self._docks_before_comparison: Optional[list] = None
         self._showing_demo = False
         self.setObjectName("CalorunMainWindow")
@@ -160,6 +169,18 @@ class MainWindow(QMainWindow):
             f"Calorun did not close normally last time. {info}\n\nRecover it now?",
             QMessageBox.Yes | QMessageBox.No, QMessageBox.Yes)
         return answer == QMessageBox.Yes
+
+    def ask_save_elsewhere(self, text: str) -> bool:
+        """A save was refused (read-only, not an ordinary file...): offer Save As. True to choose another file."""
+        self.messages.append(("Project not saved", text))
+        if not self.interactive:
+            print(f"Project not saved: {text}", file=sys.stderr)
+            return False
+        box = QMessageBox(QMessageBox.Warning, "Project not saved", text, QMessageBox.Cancel, self)
+        save_as = box.addButton("Save As…", QMessageBox.AcceptRole)
+        box.setDefaultButton(save_as)
+        box.exec()
+        return box.clickedButton() is save_as
 
     def ask_save_changes(self) -> str:
         """'save', 'discard' or 'cancel'."""
@@ -576,12 +597,16 @@ class MainWindow(QMainWindow):
         return self.save_to(path)
 
     def save_to(self, path) -> bool:
-        """Save atomically; a failure says why and leaves any existing file as it was."""
+        """Save with the one safe write; a failure says why and leaves any existing file as it was; a
+        refused file (read-only, not an ordinary file, a folder) offers Save As."""
         from solver.project_io import save_project
+        from solver.safe_write import WriteRefused
 
         p = Path(path)
         try:
             save_project(self.doc.project, p)
+        except WriteRefused as exc:
+            return self._save_refused(exc)
         except OSError as exc:
             reason = exc.strerror or str(exc)
             self.error_dialog("Project not saved",
@@ -593,6 +618,22 @@ class MainWindow(QMainWindow):
         self.remove_recovery()
         self.statusBar().showMessage(f"Saved {p}", 4000)
         return True
+
+    def _save_refused(self, exc) -> bool:
+        """Say why a save was refused before anything was written; offer Save As where that helps."""
+        if exc.offer_save_as:
+            if self.ask_save_elsewhere(f"Could not save: {exc.strerror}. Your work is still open — "
+                                       "save it under another name?"):
+                return self.save_as()
+            return False
+        text = exc.strerror
+        if exc.field and text.startswith(exc.field):  # the file path -> the field's label and place
+            from app.fields import field_label, item_words
+
+            where = item_words(exc.field, ("alternatives", "segments", "insulation", "fittings", "rows"))
+            text = field_label(exc.field) + (f" ({where})" if where else "") + text[len(exc.field):]
+        self.error_dialog("Project not saved", f"{text}. Change it and save again; your work is still open.")
+        return False
 
     def _add_recent(self, p: Path) -> None:
         if not self.remember:
@@ -713,40 +754,64 @@ class MainWindow(QMainWindow):
     # ------------------------------------------------------------------ autosave and recovery
 
     def write_recovery(self) -> Optional[Path]:
-        """Write the open project to the recovery file if it has unsaved changes."""
-        if not self.doc.modified or not self.remember:
+        """Write the open project to this window's own recovery file if it has unsaved changes."""
+        if not self.doc.modified or self.recovery_slot is None or not self.recovery_slot.held:
+            if self._autosave_off and self.doc.modified:
+                self.statusBar().showMessage(f"Autosave is off: {self._autosave_off}", 6000)
             return None
         try:
             return recovery.write_recovery(self.recovery_file, self.doc.project, self.doc.path)
-        except OSError as exc:
+        except OSError as exc:  # nothing new is left behind; the last good copy, if any, stays
             self.statusBar().showMessage(f"Autosave failed: {exc.strerror or exc}", 6000)
             return None
 
     def remove_recovery(self) -> None:
-        if self.remember:  # a window that writes none leaves a real session's file alone
+        if self.recovery_slot is not None and self.recovery_slot.held:  # only ever this window's own file
             recovery.remove_recovery(self.recovery_file)
 
     def check_recovery(self) -> bool:
-        """If a recovery file exists (the last run did not close normally), offer to recover it."""
-        path = self.recovery_file
+        """Offer the unsaved work of Calorun instances that are gone (they did not close normally).
+
+        Files of instances still running are never offered nor removed. Several: the newest first,
+        one after another until one is taken (one window holds one project); declined ones are
+        removed, the rest stay for the next start. A window that remembers nothing takes no one's work.
+        """
+        if not self.remember:
+            return False
         try:
-            found = recovery.read_recovery(path)
+            for found in recovery.abandoned(own=self.recovery_slot):
+                if not found.claim():
+                    continue  # its instance is alive (or another one is handling it right now)
+                try:
+                    if self._offer_recovery(found):
+                        return True
+                finally:
+                    found.release()
+            return False
+        finally:
+            recovery.remove_dead_locks(own=self.recovery_slot)
+
+    def _offer_recovery(self, found: "recovery.Abandoned") -> bool:
+        try:
+            content = recovery.read_recovery(found.path)
         except recovery.RecoveryUnreadable as exc:
             self.error_dialog("Recovery file unreadable",
                               f"A recovery file was found but cannot be read ({exc}); it has been set aside.")
-            recovery.set_aside(path)
+            found.set_aside()
             return False
-        if found is None:
+        if content is None:
+            found.discard()
             return False
-        if self.ask_recover(found.describe()):
-            self._showing_demo = False
-            self.doc.set_project(found.project, path=Path(found.original_path) if found.original_path else None,
-                                 modified=True)
-            self.statusBar().showMessage("Recovered unsaved work — save it to keep it.", 8000)
-            self.write_recovery()
-            return True
-        self.remove_recovery()
-        return False
+        if not self.ask_recover(content.describe()):
+            found.discard()
+            return False
+        self._showing_demo = False
+        self.doc.set_project(content.project, path=Path(content.original_path) if content.original_path else None,
+                             modified=True)
+        self.statusBar().showMessage("Recovered unsaved work — save it to keep it.", 8000)
+        if self.write_recovery() is not None:  # now kept in this window's own file: the old one can go
+            found.discard()
+        return True
 
     def closeEvent(self, event) -> None:  # noqa: N802
         if not self.maybe_save():
@@ -755,7 +820,8 @@ class MainWindow(QMainWindow):
         self._autosave_timer.stop()
         self._edit_autosave.stop()
         self.doc.shutdown()
-        self.remove_recovery()  # a clean exit leaves no recovery file
+        if self.recovery_slot is not None:  # a clean exit leaves no recovery file and no lock
+            self.recovery_slot.release(remove_files=True)
         event.accept()
 
     # ------------------------------------------------------------------ help
@@ -827,6 +893,7 @@ def run(path: Optional[str] = None, screenshot: Optional[str] = None, unit_syste
     app.setOrganizationName(settings.ORGANISATION)
     app.setApplicationName(settings.APPLICATION)
     app.setStyle("Fusion")
+    gui_gc.install(app)  # garbage collection on the GUI thread only, never on a solve worker
     if screenshot:
         win = MainWindow(interactive=False, remember=False, unit_system=unit_system or "SI")
     else:

@@ -333,7 +333,7 @@ def test_unknown_nps_and_schedule_are_refused_on_load_with_their_paths():
 
 def test_saved_files_get_the_usual_permissions_not_the_temporary_files(tmp_path):
     # mkstemp makes 0600 files; a saved project should be readable like any other file (common practice)
-    from solver.project_io import atomic_write_text
+    from solver.safe_write import atomic_write_text
 
     umask = os.umask(0o022)
     try:
