@@ -326,6 +326,13 @@ def check_basis(code: str, system: str) -> str:
         "VELOCITY_HIGH": "Velocity above the usual upper limit for the fluid (liquid or gas; common practice, "
                          "value in the finding).",
         "VELOCITY_LOW": "Liquid velocity below the usual lower limit (common practice, value in the finding).",
+        "MACH_HIGH": f"Mach number (velocity over the speed of sound from CoolProp) above "
+                     f"{solver_checks.MACH_COMPRESSIBLE:g}, where gas flow stops being treated as incompressible "
+                     "(common practice).",
+        "NEAR_CHOKING": f"Mach number at or above {solver_checks.MACH_NEAR_CHOKING:g}: the friction length left to "
+                        "choking is fL/D ≈ 0.015 (Fanno flow, γ = 1.4; Shapiro 1953).",
+        "GAS_PHASE_FEED": "Feed above its boiling point at the inlet pressure (saturation from CoolProp) for a fluid "
+                          "that is liquid in ambient conditions, with no phase given for the feed.",
         "HOT_SURFACE": f"Outer surface in air at or above {burn}, the contact-burn threshold for metal-like "
                        "surfaces (common practice).",
         "COLD_SURFACE": f"Outer surface in air at or below {cold}, the cold-contact injury threshold "

@@ -17,11 +17,18 @@ import numpy as np
 
 from solver import correlations, films, fittings as fittings_mod, fouling, steam
 from solver.line import LineGrid
+from solver.properties import state_phase
 from solver.results import Check, Profile, check_sort_key, render_message
 from solver.state import MarchState
 
 BURN_THRESHOLD_K = 333.15  # 60 °C contact burn threshold for metal-like surfaces (common practice)
 COLD_CONTACT_K = 263.15  # −10 °C, cold-contact injury threshold (common practice)
+#: Mach number above which gas flow is no longer treated as incompressible (common practice: the density
+#: change from the flow's own speed passes about 5 %).
+MACH_COMPRESSIBLE = 0.3
+#: Mach number taken as close to choking: the friction length left to Mach 1 is fL/D ≈ 0.015 (Fanno,
+#: γ = 1.4), so small changes choke the line (our call; see the NEAR_CHOKING message).
+MACH_NEAR_CHOKING = 0.9
 #: A surface counts as made hot or cold by the line only when it differs from the air by more than this.
 SURFACE_MARGIN_K = 1.0
 
@@ -140,6 +147,18 @@ def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> lis
                         lambda s, k: f"Inner wall at {c(Tw[k])} is below the saturation temperature {c(tsat[k])}: "
                                      "condensate forms on the wall.")
 
+    # the feed's phase, when it was left to the inlet state: a vapour feed of a fluid that is liquid in
+    # ambient conditions (steam rather than hot water) may not be what was meant
+    if alt.feed.phase is None and not fluid.compressible:
+        phase, tsat_feed = state_phase(fluid, alt.feed.inlet_temperature_K, p_in)
+        if phase == "gas" and math.isfinite(tsat_feed):
+            out.append(Check("info", "GAS_PHASE_FEED",
+                             f"The feed is vapour: {fluid.label} at {c(alt.feed.inlet_temperature_K)} is above its "
+                             f"boiling point ({c(tsat_feed)} at {p_in / 1e5:.4g} bar(a)), so the line is solved as a "
+                             "gas. If it is meant to be liquid, raise the inlet pressure or lower the inlet "
+                             "temperature; setting the feed's phase to liquid makes Calorun refuse such a state.",
+                             segment=0, x_m=0.0))
+
     # freezing
     t_freeze = fluid.freezing_temperature(p_in)
     if t_freeze is not None and math.isfinite(t_freeze):
@@ -195,6 +214,34 @@ def _checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> lis
                 out.append(Check("info", "VELOCITY_LOW",
                                  f"Liquid velocity {_v(v_min)} is below about {_v(0.3)}{more} (common practice): "
                                  "settling, fouling and poor heat transfer.", segment=s.index, x_m=float(x_mid[i])))
+
+    # compressibility (gas lines): Mach number at the nodes; one check per segment, at the first node past
+    # the threshold, with the segment's highest value
+    mach = prof.mach_number
+    if mach is not None and float(mach.max()) > MACH_COMPRESSIBLE:
+        cp_nodes = fluid.props(Tm, prof.pressure_Pa).cp
+        recovery = 0.5 * prof.velocity_m_per_s ** 2 / cp_nodes  # v²/2cp: how far a wall's recovery temperature can rise
+        for s, k in zip(setups, _first_in_each(mach > MACH_COMPRESSIBLE, node_start, node_stop)):
+            if k is None:
+                continue
+            span = slice(s.nodes.start, s.nodes.stop)
+            peak = float(mach[span].max())
+            if peak >= MACH_NEAR_CHOKING:
+                k = s.nodes.start + int(np.argmax(mach[span] >= MACH_NEAR_CHOKING))
+                out.append(Check("danger", "NEAR_CHOKING",
+                                 f"Mach {peak:.2f}: the flow is close to choking (Mach 1). At Mach {MACH_NEAR_CHOKING:g} "
+                                 "the friction length left to choking is only fL/D ≈ 0.015 (Fanno, γ = 1.4), under a "
+                                 "metre of typical pipe: a little more flow or length, or a little less inlet pressure, "
+                                 "chokes the line, and the results here change steeply. Use a larger bore or a higher "
+                                 "inlet pressure.", segment=s.index, x_m=float(x[k])))
+            else:
+                out.append(Check("warning", "MACH_HIGH",
+                                 f"Mach {peak:.2f} (above about {MACH_COMPRESSIBLE:g} from here on, common practice for "
+                                 "treating gas flow as incompressible): the march includes the kinetic energy and the "
+                                 "density change, but the friction and heat-transfer correlations come from "
+                                 "incompressible flow, and the wall sees a recovery temperature up to "
+                                 f"{_dT(float(recovery[span].max()))} above the bulk (v²/2cp), which is not modelled.",
+                                 segment=s.index, x_m=float(x[k])))
 
     # surfaces people can touch: judged by the surface temperature the LINE makes. In a freezing yard
     # every surface is cold; a contact hazard is a surface the line makes hotter (or colder) than the

@@ -11,9 +11,16 @@ T∞. Per unit length, with R_a = R_in + R_wall and R_o the outside path:
 Uniform heat flux is U' = 0; a fixed wall temperature is R_o = 0; adiabatic is
 q'_in = 0 and U' = 0. Within a cell the coefficients are constant and the bulk
 temperature follows the exact exponential of ``m cp dTm/dx = q'_fluid(Tm)``, so
-coarse cells stay stable. The heat of each cell is added to the enthalpy,
-``h_{i+1} = h_i + Q_i / m``, and temperature follows from (h, p): the energy
-balance closes to round-off by construction.
+coarse cells stay stable. The heat of each cell is added to the total energy
+of the flow, ``h_{i+1} + v_{i+1}²/2 + g z_{i+1} = h_i + v_i²/2 + g z_i + Q_i / m``
+(v from the node density), and temperature follows from (h, p): the energy
+balance closes to round-off by construction, and a fast gas cools as it speeds up.
+
+A gas line whose flow reaches the speed of sound has no steady march: the solve
+stops with where it chokes and the largest flow the line passes
+(:mod:`solver.choking`). A liquid whose pressure or temperature reaches its
+boiling point stops with where and why (flashing or boiling); a feed at its
+boiling point, or in the other phase than the Feed says, is refused.
 
 Properties, film coefficients and pressure are evaluated vectorised over all
 cells at once, at cell means, and iterated to a fixed point; only the linear
@@ -32,15 +39,16 @@ import re
 
 import numpy as np
 
-from solver import correlations
+from solver import choking, correlations
 from solver._numeric import clip as _clip
 from solver.errors import CalorunError, InputError, PropertyRangeError, SolverError
 from solver.factors import NEUTRAL, MethodFactors
 from solver.films import AirAtOneAtmosphere, air_film_parts, condensate_resistance, inside_nusselt_mean
 from solver.line import GRAVITY, LineGrid, build_line
+from solver.choking import Stretch
 from solver.model import Alternative
 from solver.profiles import line_result
-from solver.properties import PureFluidModel, fluid_model
+from solver.properties import PureFluidModel, fluid_model, state_phase
 from solver.results import Result
 from solver.state import MarchState
 
@@ -67,13 +75,71 @@ def solve(
     try:
         return _solve(alternative, refine, cells_per_segment, max_iterations, tolerance_K, factors or NEUTRAL)
     except PropertyRangeError as exc:
-        raise SolverError(f"fluid property out of range: {exc}", alternative=alternative.name) from None
+        raise _property_error(alternative, None, exc, None, None) from None
+    except correlations.CorrelationInputError as exc:
+        # a correlation handed a value no physical state gives: the inputs are beyond what the methods take
+        raise SolverError(_breakdown_words(exc.field), alternative=alternative.name) from None
     except InputError as exc:
         raise _located_input_error(alternative, exc) from None
     except CalorunError:
         raise
-    except (FloatingPointError, ZeroDivisionError, OverflowError) as exc:  # defensive: never a raw traceback
-        raise SolverError(f"numerical failure ({exc})", alternative=alternative.name) from None
+    except (FloatingPointError, ZeroDivisionError, OverflowError):  # defensive: never a raw traceback
+        raise SolverError(_breakdown_words(None), alternative=alternative.name) from None
+
+
+#: What the correlations call their inputs, in words for a user.
+_QUANTITY_WORDS = {"Re": "Reynolds number", "Pr": "Prandtl number", "relative_roughness": "relative roughness",
+                   "D": "bore", "L": "length", "x": "position", "mu": "viscosity", "k": "conductivity"}
+
+
+def _breakdown_words(name: str | None) -> str:
+    what = f"the {_QUANTITY_WORDS.get(name, name)} comes out without a finite value" if name else \
+        "a value grows beyond what the computer's numbers can hold"
+    return (f"the solution breaks down numerically ({what}). This comes from inputs far outside the usual range: "
+            "check the lengths, bores, insulation thicknesses, flows, heat inputs and temperatures.")
+
+
+def _breakdown_error(alt: Alternative, line: LineGrid, name: str | None, T_nodes, p_nodes) -> SolverError:
+    """A numerical breakdown, located at the first node whose state or cell whose geometry is not a finite
+    positive number, when there is one."""
+    message = _breakdown_words(name)
+    bad_node = None
+    if T_nodes is not None and p_nodes is not None:
+        bad = ~(np.isfinite(T_nodes) & np.isfinite(p_nodes) & (p_nodes > 0.0))
+        if bad.any():
+            bad_node = int(np.argmax(bad))
+    if bad_node is None:
+        cells = ~(np.isfinite(line.dx) & np.isfinite(line.D) & (line.D > 0.0) & np.isfinite(line.r_wall))
+        if cells.any():
+            bad_node = int(np.argmax(cells))
+    if bad_node is None:
+        return SolverError(message, alternative=alt.name)
+    seg = line.segment_at(bad_node)
+    return SolverError(message, alternative=alt.name, segment=seg.name, x_m=float(line.x_node[bad_node]))
+
+
+def _property_error(alt: Alternative, line: LineGrid | None, exc: PropertyRangeError, T_nodes, p_nodes) -> SolverError:
+    """A state outside the fluid's property data, in plain words, located at the node of the march pass
+    that reached it when it is one of them."""
+    state = []
+    t, p = exc.temperature_K, exc.pressure_Pa
+    if t is not None and math.isfinite(t):
+        state.append(f"{t - 273.15:.1f} °C")
+    if p is not None and math.isfinite(p):
+        state.append(f"{p / 1e5:.4g} bar(a)")
+    reason = exc.reason.split(" (")[0] if "CoolProp" in exc.reason else exc.reason  # never the library's text
+    message = (f"the fluid reaches a state its property data do not cover"
+               f"{' (' + ', '.join(state) + ')' if state else ''}: {exc.fluid}, {reason}.")
+    err = SolverError(message, alternative=alt.name)
+    if line is not None and T_nodes is not None and p is not None and math.isfinite(p):
+        hit = np.flatnonzero(p_nodes == p)
+        if t is not None and hit.size > 1:
+            hit = hit[np.argsort(np.abs(T_nodes[hit] - t), kind="stable")]
+        if hit.size:
+            i = int(hit[0])
+            seg = line.segment_at(i)
+            err = SolverError(message, alternative=alt.name, segment=seg.name, x_m=float(line.x_node[i]))
+    return err
 
 
 def _located_input_error(alt: Alternative, exc: InputError) -> InputError:
@@ -84,9 +150,33 @@ def _located_input_error(alt: Alternative, exc: InputError) -> InputError:
         k = int(m.group(1))
         where += f", segment {k + 1} {alt.segments[k].name!r}"
     located = InputError(exc.field, exc.value, exc.reason)
-    located.args = (f"{where}: {exc}",)
+    located.args = (f"{where}: {_input_words(exc)}",)
     located.alternative = alt.name
     return located
+
+
+#: unit suffixes of the model's keys, longest first, and how a user writes the unit
+_KEY_UNITS = (("_m2K_per_W", "m²·K/W"), ("_W_per_mK", "W/(m·K)"), ("_W_per_m", "W/m"), ("_kg_per_s", "kg/s"),
+              ("_m3_per_s", "m³/s"), ("_m_per_s", "m/s"), ("_Pa", "Pa"), ("_K", "K"), ("_m", "m"))
+
+
+def _input_words(exc: InputError) -> str:
+    """An input problem in words: 'surroundings depth: <reason>, got 0.3347 m', not the file key and a raw float."""
+    parts = [p for p in re.split(r"\.|\[\d+\]", exc.field) if p and p not in ("segments", "alternatives")]
+    if not parts:
+        return str(exc)
+    name, unit = parts[-1], ""
+    for suffix, text in _KEY_UNITS:
+        if name.endswith(suffix):
+            name, unit = name[: -len(suffix)], text
+            break
+    owner = parts[-2].replace("_", " ") + " " if len(parts) > 1 else ""
+    value = exc.value
+    if isinstance(value, float):
+        value = f"{value:.4g}" + (f" {unit}" if unit else "")
+    else:
+        value = repr(value)
+    return f"{owner}{name.replace('_', ' ')}: {exc.reason}, got {value}"
 
 
 def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: int, tol: float,
@@ -96,18 +186,26 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
     t_in = feed.inlet_temperature_K
     p_in = feed.inlet_pressure_Pa
     _check_state_in_range(fluid, t_in, alt.name)
+    _check_liquid_model(fluid, p_in, alt.name)
+    _check_feed_phase(alt, fluid)
     props_in = fluid.props(np.array([t_in]), np.array([p_in]))
     if feed.mass_flow_kg_per_s is not None:
         m_dot = feed.mass_flow_kg_per_s
     else:
         m_dot = feed.volume_flow_m3_per_s * float(props_in.rho[0])
     line = build_line(alt, refine, cells_per_segment, factors)
-    state = _march(alt, fluid, line, m_dot, float(props_in.h[0]), max_iterations, tol, factors)
+    seen: dict = {}
+    try:
+        state = _march(alt, fluid, line, m_dot, float(props_in.h[0]), max_iterations, tol, factors, seen)
+    except PropertyRangeError as exc:
+        raise _property_error(alt, line, exc, seen.get("T"), seen.get("p")) from None
+    except correlations.CorrelationInputError as exc:
+        raise _breakdown_error(alt, line, exc.field, seen.get("T"), seen.get("p")) from None
     return line_result(alt, fluid, line, state)
 
 
 def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max_iterations: int,
-           tol: float, factors: MethodFactors = NEUTRAL) -> MarchState:
+           tol: float, factors: MethodFactors = NEUTRAL, seen: dict | None = None) -> MarchState:
     """Iterate properties, film coefficients, heat and pressure over all cells to a fixed point.
 
     The fixed point is reached when, between two passes, no bulk, inner-wall, outer-surface or
@@ -147,6 +245,11 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
     tsat_in = float(fluid.saturation_temperature(np.array([p_in]))[0])
     liquid_feed = bool(math.isfinite(tsat_in) and t_in < tsat_in)
     tsat_nodes = None
+    gas_feed = bool(fluid.compressible and not liquid_feed) or bool(
+        isinstance(fluid, PureFluidModel) and math.isfinite(tsat_in) and t_in > tsat_in)
+    mach_peak = 0.0
+    choke_strikes = 0
+    p_floor = float(getattr(fluid, "p_min_Pa", 0.0))  # the property data end here (CoolProp grid: 1 kPa)
     sat_possible = isinstance(fluid, PureFluidModel) and bool(
         np.isfinite(fluid.saturation_temperature(np.array([p_in, max(p_in * 0.5, 2e3)]))).any())
     h_conv = h_rad = np.zeros(0)
@@ -164,7 +267,10 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
                                            line.wind_speed[film_mask], line.emissivity[film_mask], factors,
                                            **vertical_kw)
             T_surface[film_mask] = _surface_temperature(t_in_film, t_inf[film_mask], r_ins_film, d_film, h_conv + h_rad)
+    if seen is None:
+        seen = {}
     for _ in range(max_iterations):
+        seen["T"], seen["p"] = T, p  # the pass's states, to locate a property failure
         # properties at the nodes; cell values are the means of their two nodes (second order)
         T_eval = _clip(T, t_lo, t_hi)
         if sat_possible:
@@ -224,10 +330,14 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
             r_out_total[cond_mask] = r_cond[cond_mask]
         g_tracer_pass = g_tracer
         T_new, Q_cell, tm_cell = _heat_pass(line, r_a, r_out_total, m_dot * cp, e_corr, t_in, t_inf_eff, g_tracer)
+        # energy: d(h + v²/2 + g z) = dQ / m, so a liquid running downhill does not seem to cool and a fast
+        # gas cools as it accelerates. The kinetic energy at a node is that of the cell upstream of it
+        # (the first cell at the inlet), so a change of bore takes its kinetic energy in the new segment's
+        # first cell and the sum telescopes to the outlet's v²/2 − the inlet's.
+        ke_nodes = _kinetic_energy(m_dot, area, pn.rho)
         h_nodes = np.empty(n + 1)
         h_nodes[0] = h0
-        # energy: d(h + g z) = dQ / m, so a liquid running downhill does not seem to cool
-        np.cumsum(Q_cell / m_dot - GRAVITY * dz, out=h_nodes[1:])
+        np.cumsum(Q_cell / m_dot - GRAVITY * dz - (ke_nodes[1:] - ke_nodes[:-1]), out=h_nodes[1:])
         h_nodes[1:] += h0
 
         # pressure: friction + fittings + elevation + acceleration (density from the previous iterate)
@@ -238,13 +348,23 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
         p_new[0] = p_in
         np.cumsum(dp_cell, out=p_new[1:])
         p_new[1:] = p_in - p_new[1:]
-        if p_new[-1] <= 0.0 or np.any(p_new <= 0.0):
-            i_bad = int(np.argmax(p_new <= 0.0))
-            raise SolverError(
-                "pressure falls to zero: the line cannot pass this flow at this inlet pressure "
-                f"(pressure drop exceeds {p_in / 1e5:.3g} bar before the outlet)",
-                alternative=alt.name, segment=line.segment_at(i_bad).name, x_m=float(line.x_node[i_bad]),
-            )
+        if p_new[-1] <= p_floor or np.any(p_new <= p_floor):
+            # no pressure left: a gas has choked, a liquid with a boiling point has flashed on the way
+            raise _pressure_failure(alt, fluid, line, m_dot, T_new, p_new, p_floor, liquid_feed, sat_possible)
+        if gas_feed:
+            # the speed of sound only where the flow is fast enough to matter (no offered gas is below
+            # about 200 m/s, so under 50 m/s the Mach number stays below 0.25)
+            v_nodes = np.sqrt(2.0 * ke_nodes)
+            if v_nodes.max() > 50.0:
+                sound = fluid.speed_of_sound(T_eval, p)
+                if sound is not None:
+                    mach_peak = float(np.max(v_nodes / sound))
+                    if mach_peak >= 1.0:
+                        choke_strikes += 1
+                        if choke_strikes >= 2:  # two passes in a row: the flow has choked, not a transient
+                            raise _choked(alt, fluid, line, m_dot, int(np.argmax(v_nodes / sound >= 1.0)))
+                    else:
+                        choke_strikes = 0
 
         # the wall temperatures of this pass: inner wall (fluid side) and the heated node
         q_fluid = Q_cell / dx
@@ -273,6 +393,8 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
             strikes += 1
             if strikes >= 2:
                 i_bad, message = problem
+                if message == "boiling":
+                    raise _boiling_error(alt, fluid, line, m_dot, T_new, p_new, tsat_nodes, i_bad)
                 raise SolverError(message, alternative=alt.name, segment=line.segment_at(i_bad).name,
                                   x_m=float(line.x_node[i_bad]))
         else:
@@ -283,6 +405,8 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
         h_target = h_nodes
 
     if not converged:
+        if gas_feed and mach_peak > 0.8:
+            raise _choked(alt, fluid, line, m_dot, None)
         raise SolverError(
             f"the march did not settle (last change {last_change:.2g} K after {max_iterations} passes); "
             "the flow may be near choking or the line near a phase change",
@@ -301,7 +425,7 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
         h_conv_out[film_mask], h_rad_out[film_mask] = h_conv, h_rad
     q_tracer = g_tracer_pass * (line.t_tracer - T_heated) if line.any_tracer else np.zeros(n)
     return MarchState(
-        m_dot=m_dot, h_in=h0, T=T, p=p, h_nodes=h_nodes, Q_cell=Q_cell, T_surface=T_surface,
+        m_dot=m_dot, h_in=h0, T=T, p=p, h_nodes=h_nodes, kinetic_nodes=ke_nodes, Q_cell=Q_cell, T_surface=T_surface,
         r_out_total=r_out_total, Re=Re, Pr=Pr, velocity=velocity, rho=rho,
         dp_friction=dp_friction, dp_fittings=dp_fittings, dp_elevation=dp_elevation, dp_accel=dp_accel, air=air,
         r_in=r_in, wall_factor=wall_factor, h_conv_out=h_conv_out, h_rad_out=h_rad_out, r_cond=r_cond,
@@ -411,6 +535,15 @@ def _pressure_drops(line: LineGrid, fluid, m_dot: float, T, p, rho, velocity, Re
     return dp_friction, dp_fittings, dp_elevation, dp_accel
 
 
+def _kinetic_energy(m_dot: float, area: np.ndarray, rho_nodes: np.ndarray) -> np.ndarray:
+    """v²/2 at the nodes [J/kg]: the cell upstream's bore (the first cell's at the inlet), the node's density."""
+    a_up = np.empty(rho_nodes.size)
+    a_up[0] = area[0]
+    a_up[1:] = area
+    v = m_dot / (rho_nodes * a_up)
+    return 0.5 * v * v
+
+
 def _linear_recurrence(decay: np.ndarray, gain: np.ndarray, start: float) -> np.ndarray:
     """T[0] = start, T[i+1] = decay[i] T[i] + gain[i], with 0 < decay <= 1.
 
@@ -460,9 +593,7 @@ def _phase_or_range_problem(fluid, T, p, t_lo, t_hi, liquid_feed, tsat):
         if liquid_feed:
             bad = finite & (T >= tsat)
             if bad.any():
-                i = int(np.argmax(bad))
-                return i, (f"the liquid reaches boiling ({c(tsat[i])} at {p[i] / 1e5:.3g} bar(a)): two-phase flow is "
-                           "outside Calorun's scope. Raise the pressure, or lower the heat input or wall temperature.")
+                return int(np.argmax(bad)), "boiling"
         else:
             bad = finite & (T <= tsat)
             if bad.any():
@@ -482,6 +613,166 @@ def _phase_or_range_problem(fluid, T, p, t_lo, t_hi, liquid_feed, tsat):
         i = int(np.argmax(high))
         return i, f"the bulk heats above the range of the fluid data ({c(t_hi)} for {fluid.label})."
     return None
+
+
+def _segment_words(line: LineGrid, k: int) -> str:
+    """'segment 3 'Header'': a segment by its number from 1 and its name."""
+    s = line.segments[k]
+    return f"segment {s.index + 1} {s.name!r}"
+
+
+def _stretches(line: LineGrid) -> list[Stretch]:
+    x0 = line.x_node[line.seg_first_cell].tolist()
+    return [Stretch(s.name, x0[s.index], s.length_m, s.inner_diameter_m, s.roughness_m / s.inner_diameter_m,
+                    (float(line.k_a[s.index]), float(line.k_b[s.index]))) for s in line.segments]
+
+
+def _choked(alt: Alternative, fluid, line: LineGrid, m_dot: float, i_node: int | None) -> SolverError:
+    """The flow reaches the speed of sound: where, and the largest mass flow the line can pass.
+
+    Where and how much come from the published relations for flow with friction (Fanno, and
+    isothermal for a line that holds its temperature; :mod:`solver.choking`) from the feed's state,
+    so they do not depend on how far the march got. ``i_node`` is where the march saw Mach 1, used
+    only when the adiabatic relations find no choking (a heated gas chokes earlier than Fanno flow).
+    """
+    t_in, p_in = alt.feed.inlet_temperature_K, alt.feed.inlet_pressure_Pa
+    props = fluid.props(np.array([t_in]), np.array([p_in]))
+    rho_in, mu_in = float(props.rho[0]), float(props.mu[0])
+    sound = fluid.speed_of_sound(np.array([t_in]), np.array([p_in]))
+    a_in = float(sound[0]) if sound is not None else math.sqrt(1.4 * p_in / rho_in)
+    gamma = max(a_in * a_in * rho_in / p_in, 1.01)  # ideal-gas γ that gives this speed of sound
+    stretches = _stretches(line)
+    area_in = math.pi * stretches[0].diameter_m ** 2 / 4.0
+    where = choking.choke_point(stretches, m_dot, m_dot / (rho_in * area_in * a_in), gamma, mu_in)
+    if where is not None:
+        k, x = where
+    else:
+        i = i_node if i_node is not None else line.n
+        k, x = int(line.seg_of_cell[min(i, line.n - 1)]), float(line.x_node[i])
+    m_adiabatic = choking.max_mass_flow(stretches, rho_in, a_in, gamma, mu_in)
+    m_isothermal = choking.max_mass_flow(stretches, rho_in, a_in, gamma, mu_in, isothermal=True)
+    if where is None:
+        # the march reaches Mach 1 although the adiabatic relations just pass this flow: it is at the edge
+        err = SolverError(
+            f"the flow reaches the speed of sound in {_segment_words(line, k)} at x = {x:.2f} m: the line is at the "
+            f"edge of choking. The relations for adiabatic flow put its limit at {m_adiabatic:.4g} kg/s from "
+            f"{p_in / 1e5:.3g} bar(a) inlet ({m_isothermal:.4g} kg/s isothermal), hardly above the {m_dot:.4g} kg/s "
+            "asked for; heat added to a gas brings choking earlier. Use a larger bore, a shorter line, a higher "
+            "inlet pressure or less flow.", alternative=alt.name)
+        err.segment, err.x_m = line.segments[k].name, float(x)
+        return err
+    vapour = ""
+    if isinstance(fluid, PureFluidModel) and not fluid.compressible:
+        # a fluid that is liquid in ambient conditions, fed as vapour: say so, it may not be what was meant
+        tsat_in = float(fluid.saturation_temperature(np.array([p_in]))[0])
+        if math.isfinite(tsat_in):
+            vapour = (f"the feed is vapour ({fluid.label} at {t_in - 273.15:.1f} °C is above its boiling point "
+                      f"{tsat_in - 273.15:.1f} °C at {p_in / 1e5:.4g} bar(a)), and ")
+    message = vapour + (
+        f"the flow chokes (reaches the speed of sound) in {_segment_words(line, k)} at x = {x:.2f} m: this line can "
+        f"pass at most {m_adiabatic:.4g} kg/s at {p_in / 1e5:.3g} bar(a) inlet (adiabatic choked flow, Fanno "
+        f"relations; {m_isothermal:.4g} kg/s if the gas held its inlet temperature, isothermal choked flow), and the "
+        f"feed asks for {m_dot:.4g} kg/s. Use a larger bore, a shorter line, a higher inlet pressure or less flow."
+    )
+    err = SolverError(message, alternative=alt.name)
+    err.segment, err.x_m = line.segments[k].name, float(x)
+    return err
+
+
+def _boiling_error(alt, fluid, line: LineGrid, m_dot, T, p, tsat, i: int) -> SolverError:
+    """A liquid reaching its boiling point at node ``i`` (the first at or past it): located between the
+    nodes where the bulk meets the saturation temperature, and named for its cause, flashing as the
+    pressure falls or boiling as it is heated."""
+    x = float(line.x_node[i])
+    t_at, p_at, ts_at = float(T[i]), float(p[i]), float(tsat[i])
+    k = line.segment_at(i).index
+    if i > 0:
+        g0, g1 = float(T[i - 1] - tsat[i - 1]), float(T[i] - tsat[i])
+        if g0 < 0.0 <= g1 and g1 > g0:
+            w = -g0 / (g1 - g0)
+            lerp = lambda a: float(a[i - 1] + w * (a[i] - a[i - 1]))  # noqa: E731
+            x, t_at, p_at, ts_at = lerp(line.x_node), lerp(T), lerp(p), lerp(tsat)
+            k = int(line.seg_of_cell[i - 1])
+    tsat_in = float(fluid.saturation_temperature(np.array([alt.feed.inlet_pressure_Pa]))[0])
+    where = f"{_segment_words(line, k)} at x = {x:.2f} m"
+    t_in = alt.feed.inlet_temperature_K
+    if not math.isfinite(tsat_in) or (tsat_in - ts_at) > (t_at - t_in):
+        # the boiling point fell further than the bulk warmed: the pressure loss brings it to boil
+        message = (
+            f"the liquid reaches its boiling point and flashes as its pressure falls, in {where}: the pressure is "
+            f"down to {p_at / 1e5:.3g} bar(a), where {fluid.label} boils at {ts_at - 273.15:.1f} °C (bulk "
+            f"{t_at - 273.15:.1f} °C). Calorun models single-phase flow: the line cannot pass {m_dot:.3g} kg/s from "
+            f"{alt.feed.inlet_pressure_Pa / 1e5:.3g} bar(a) inlet. Raise the inlet pressure, or use a larger bore or "
+            "less flow.")
+    else:
+        message = (
+            f"the liquid reaches its boiling point in {where}: {ts_at - 273.15:.1f} °C at {p_at / 1e5:.3g} bar(a). "
+            "Calorun models single-phase flow. Raise the pressure, or lower the heat input or wall temperature.")
+    err = SolverError(message, alternative=alt.name)
+    err.segment, err.x_m = line.segments[k].name, x
+    return err
+
+
+def _pressure_failure(alt, fluid, line: LineGrid, m_dot, T, p, p_floor, liquid_feed, sat_possible) -> SolverError:
+    """No pressure left before the outlet, said as what happens: choking, flashing, or the pump's shortfall."""
+    i_zero = int(np.argmax(p <= p_floor))
+    if not liquid_feed and fluid.compressible or (sat_possible and not liquid_feed):
+        return _choked(alt, fluid, line, m_dot, i_zero)
+    seg = line.segment_at(i_zero)
+    if liquid_feed and sat_possible:
+        # the pressure falls through the vapour pressure before it reaches zero: the liquid flashes there
+        p_eval = np.maximum(p, p_floor)
+        tsat = fluid.saturation_temperature(p_eval)
+        boils = (np.isfinite(tsat) & (T >= tsat)) | (p <= p_floor)
+        return _boiling_error(alt, fluid, line, m_dot, T, p_eval, np.where(np.isfinite(tsat), tsat, T),
+                              int(np.argmax(boils)))
+    return SolverError(
+        f"the pressure falls to zero in {_segment_words(line, seg.index)}: the line cannot pass {m_dot:.3g} kg/s from "
+        f"{alt.feed.inlet_pressure_Pa / 1e5:.3g} bar(a) inlet (the pressure drop exceeds the inlet pressure before "
+        "the outlet). Raise the inlet pressure, or use a larger bore or less flow.",
+        alternative=alt.name, segment=seg.name, x_m=float(line.x_node[i_zero]),
+    )
+
+
+_PHASE_WORDS = {"liquid": "liquid", "gas": "gas (vapour)"}
+
+
+def _check_feed_phase(alt: Alternative, fluid) -> None:
+    """Refuse a feed at its boiling point (Calorun models single-phase flow) or in the other phase than
+    the Feed says it is meant to be, naming the phase and the boiling point."""
+    t_in, p_in = alt.feed.inlet_temperature_K, alt.feed.inlet_pressure_Pa
+    phase, tsat = state_phase(fluid, t_in, p_in)
+    at = f"{t_in - 273.15:.1f} °C at {p_in / 1e5:.4g} bar(a)"
+    if phase == "saturated":
+        raise SolverError(
+            f"the feed is at its boiling point: {at} ({fluid.label} boils at {tsat - 273.15:.1f} °C at this "
+            "pressure, where liquid and vapour coexist). Calorun models single-phase flow: "
+            f"enter an inlet temperature below the boiling point (liquid) or above it (vapour), or change the "
+            "inlet pressure.", alternative=alt.name)
+    wanted = alt.feed.phase
+    if wanted is not None and wanted != phase:
+        boils = (f"; {fluid.label} boils at {tsat - 273.15:.1f} °C at this pressure" if math.isfinite(tsat)
+                 else " (above its critical point)" if phase == "gas" else "")
+        fix = ("lower the inlet temperature or raise the inlet pressure" if wanted == "liquid"
+               else "raise the inlet temperature or lower the inlet pressure")
+        raise SolverError(
+            f"the feed is meant to be {_PHASE_WORDS[wanted]}, but {fluid.label} at {at} is "
+            f"{_PHASE_WORDS[phase]}{boils}. To feed it as {wanted.replace('gas', 'gas (vapour)')}, {fix}; or set "
+            f"the feed's phase to {phase}.", alternative=alt.name)
+
+
+def _check_liquid_model(fluid, p_in: float, alt_name: str) -> None:
+    """Refuse a liquid table whose enthalpy model does not rise with temperature at the feed pressure."""
+    falls = getattr(fluid, "enthalpy_falls_at", None)
+    t_bad = falls(p_in) if falls is not None else None
+    if t_bad is not None:
+        raise SolverError(
+            f"at the feed pressure of {p_in / 1e5:.4g} bar(a) the enthalpy of {fluid.label} would fall with "
+            f"temperature above {t_bad - 273.15:.1f} °C (its density rises with temperature too steeply for "
+            "a liquid at this pressure), so no temperature can be given to a heat balance: check the density "
+            "column of the fluid table or the feed pressure",
+            alternative=alt_name,
+        )
 
 
 def _check_state_in_range(fluid, t, alt_name):

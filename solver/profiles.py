@@ -34,7 +34,9 @@ def line_result(alt: Alternative, fluid, line: LineGrid, state: MarchState) -> R
     heat_media = float(np.sum(media_cell))
     duty = float(np.sum(Q_cell))
     h_out = float(fluid.enthalpy(np.array([T[-1]]), np.array([p[-1]]))[0])
+    # duty = m·Δ(h + v²/2 + g z): potential and kinetic energy of the flow take their share
     potential = m_dot * GRAVITY * float(np.sum(line.dz))
+    potential += m_dot * float(state.kinetic_nodes[-1] - state.kinetic_nodes[0])
     residual = m_dot * (state.h_nodes[-1] - h0) + potential - duty
     # the enthalpy re-evaluated from (T, p) at the outlet checks the inversion, not just the sum
     residual = max(residual, m_dot * (h_out - h0) + potential - duty, key=abs)
@@ -115,6 +117,8 @@ def _node_profiles(line: LineGrid, state: MarchState, fluid, heat_in_cell: np.nd
     Dn = line.D[ci]
     An = line.area[ci]
     velocity = m_dot / (pr.rho * An)
+    sound = fluid.speed_of_sound(Tm, pn)  # None for solutions and user tables (liquids: Mach negligible)
+    mach = None if sound is None else velocity / sound
     Re = m_dot * Dn / (An * pr.mu)
     Pr = pr.cp * pr.mu / pr.k
     rel_rough = line.rel_rough[ci]
@@ -184,7 +188,7 @@ def _node_profiles(line: LineGrid, state: MarchState, fluid, heat_in_cell: np.nd
         outer_surface_temperature_K=t_surface, pressure_Pa=pn,
         heat_flux_W_per_m2=q_fluid / (math.pi * Dn), heat_to_fluid_W_per_m=q_fluid, heat_loss_W_per_m=q_loss,
         inside_coefficient_W_per_m2K=h_i, reynolds=Re, velocity_m_per_s=velocity, density_kg_per_m3=pr.rho,
-        saturation_temperature_K=fluid.saturation_temperature(pn),
+        saturation_temperature_K=fluid.saturation_temperature(pn), mach_number=mach,
     )
     return prof, spans
 

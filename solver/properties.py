@@ -50,6 +50,7 @@ import numpy as np
 
 from solver._numeric import clip as _clip
 
+from solver.catalogue import SOLUTIONS
 from solver.errors import InputError, PropertyRangeError
 from solver.model import PureFluid, SolutionFluid, TableFluid
 
@@ -66,27 +67,6 @@ PURE_FLUIDS: dict[str, str] = {
     "Ammonia": "Ammonia",
 }
 
-#: Aqueous solutions offered in the GUI:
-#: CoolProp INCOMP code -> (label, fraction basis 'mass'|'volume', min fraction, max fraction).
-#: All listed codes are mass-based in CoolProp 6.8 (set_volu_fractions is refused
-#: for them, set_mass_fractions accepted); the ranges are CoolProp's
-#: ``fraction_min``/``fraction_max``. tests/test_properties.py re-checks both.
-SOLUTIONS: dict[str, tuple[str, str, float, float]] = {
-    "MEG": ("Ethylene glycol", "mass", 0.0, 0.6),
-    "MPG": ("Propylene glycol", "mass", 0.0, 0.6),
-    "MEA": ("Ethanol", "mass", 0.0, 0.6),
-    "MMA": ("Methanol", "mass", 0.0, 0.6),
-    "MGL": ("Glycerol", "mass", 0.0, 0.6),
-    "MAM": ("Ammonia (aqueous)", "mass", 0.0, 0.3),
-    "MCA": ("Calcium chloride", "mass", 0.0, 0.3),
-    "MKA": ("Potassium acetate", "mass", 0.0, 0.45),
-    "MKC": ("Potassium carbonate", "mass", 0.0, 0.4),
-    "MKF": ("Potassium formate", "mass", 0.0, 0.48),
-    "MLI": ("Lithium chloride", "mass", 0.0, 0.24),
-    "MMG": ("Magnesium chloride", "mass", 0.0, 0.3),
-    "MNA": ("Sodium chloride", "mass", 0.0, 0.23),
-    "MITSW": ("Seawater", "mass", 0.0, 0.12),
-}
 
 # Pure-fluid grid (global, fixed): T knots every _DT kelvin from 0 K, p knots
 # _PPD per decade from 10**(_LOGP0) Pa.
@@ -158,6 +138,11 @@ class FluidModel:
         """True where the state is vapour or supercritical gas (always False for liquids)."""
         T, _ = _states(T, p)
         return np.zeros(T.shape, dtype=bool)
+
+    def speed_of_sound(self, T, p) -> Optional[np.ndarray]:
+        """Speed of sound [m/s] at (T, p), or None where the property source has none (CoolProp's
+        solutions, user tables: liquids, whose Mach number in a pipe is negligible)."""
+        return None
 
     def phase_is_liquid(self, T, p) -> np.ndarray:
         """True where the state is liquid: below the saturation temperature at p
@@ -271,9 +256,38 @@ class _LiquidTableModel(FluidModel):
             T = T_new
             if done:
                 break
-        T = _clip(T, self._T[0], self._T[-1]) if not out.any() else T
+        inside = ~out
+        T = np.where(inside, _clip(T, self._T[0], self._T[-1]), T)
+        # the fixed point diverges where p/rho changes faster with T than u does (high pressure, a steep
+        # density column); bisection over the table then finds the state whose enthalpy is h
+        stray = inside & (np.abs(self.enthalpy(np.where(inside, T, self._T[0]), p) - h)
+                          > 1e-9 * np.maximum(np.abs(h), 1.0))
+        if stray.any():
+            T[stray] = self._bisect(h[stray], p[stray])
         self._check(T, p)  # names the first state outside the valid range
         return T
+
+    def enthalpy_falls_at(self, p: float) -> Optional[float]:
+        """The first knot temperature [K] above which h(T, p) = u(T) + p/rho(T) does not rise, or None.
+
+        Where the density rises with temperature steeply enough, p/rho falls faster than u rises at high
+        pressure: the liquid model then has no single temperature for an enthalpy, and cannot be used.
+        """
+        T = self._T[(self._T >= self.T_min_K) & (self._T <= self.T_max_K)]  # e.g. not below a freezing point
+        h = self.enthalpy(T, np.full(T.shape, float(p)))
+        bad = np.flatnonzero(np.diff(h) <= 0.0)
+        return float(T[bad[0]]) if bad.size else None
+
+    def _bisect(self, h, p):
+        """T with enthalpy(T, p) = h by bisection over the table's range (h rising with T), to round-off."""
+        lo = np.full(h.shape, self._T[0])
+        hi = np.full(h.shape, self._T[-1])
+        for _ in range(80):
+            mid = 0.5 * (lo + hi)
+            below = self.enthalpy(mid, p) < h
+            lo = np.where(below, mid, lo)
+            hi = np.where(below, hi, mid)
+        return 0.5 * (lo + hi)
 
     def freezing_temperature(self, p=None) -> Optional[float]:
         return self._freeze
@@ -445,6 +459,7 @@ class PureFluidModel(FluidModel):
     def _fill(self, ci0, ci1, ck0, ck1):
         if self._tab is None:
             self._tab = np.zeros((self._nT, self._nP, 5))
+            self._tab_a = np.zeros((self._nT, self._nP))  # speed of sound, read only by speed_of_sound()
             self._side = np.zeros((self._nT, self._nP), dtype=np.int8)
             self._flat = self._tab.reshape(self._nT * self._nP, 5)
             self._badcell = np.zeros((self._nT, self._nP), dtype=bool)
@@ -475,8 +490,10 @@ class PureFluidModel(FluidModel):
                             if not all(math.isfinite(x) for x in v) or min(v[:4]) <= 0:
                                 raise ValueError("invalid")
                             row[:] = (math.log(v[0]), v[1], math.log(v[2]), v[3], v[4])
+                            self._tab_a[ii, kk] = st.speed_sound()
                         except ValueError:
                             row[:] = np.nan
+                            self._tab_a[ii, kk] = np.nan
                             side = 2  # invalid knot: never interpolated
                         self._side[ii, kk] = side
                 self._filled[ci, ck] = True
@@ -570,9 +587,64 @@ class PureFluidModel(FluidModel):
                 rho[j], cp[j], mu[j], k[j], h[j] = self._direct(float(T[j]), float(p[j]))
         return Props(rho.reshape(shape), cp.reshape(shape), mu.reshape(shape), k.reshape(shape), h.reshape(shape))
 
+    def speed_of_sound(self, T, p) -> np.ndarray:
+        """Speed of sound [m/s] at temperatures T [K] and pressures p [Pa abs] (CoolProp HEOS), bilinear
+        in (T, ln p) on the same fixed knots as :meth:`props`; cells next to the saturation line directly."""
+        T, p = _states(T, p)
+        shape = T.shape
+        T, p = T.ravel(), p.ravel()
+        self._check(T, p)
+        if T.size == 0:
+            return np.zeros(shape)
+        x = T * (1.0 / _DT) - self._i0
+        i = np.minimum(np.floor(x).astype(np.intp), self._nT - 2)
+        wt = x - i
+        kk, wp = self._p_index(p)
+        self._ensure(i, kk)
+        A = self._tab_a
+        a = ((A[i, kk] * (1.0 - wt) + A[i + 1, kk] * wt) * (1.0 - wp)
+             + (A[i, kk + 1] * (1.0 - wt) + A[i + 1, kk + 1] * wt) * wp)
+        bad = self._badcell[i, kk] | ~np.isfinite(a)
+        for j in np.flatnonzero(bad):
+            a[j] = self._direct_speed_of_sound(float(T[j]), float(p[j]))
+        return a.reshape(shape)
+
+    def _direct_speed_of_sound(self, T, p):
+        with self._lock:
+            try:
+                self._st.update(self._CP.PT_INPUTS, p, T)
+                a = float(self._st.speed_sound())
+            except ValueError as exc:
+                raise PropertyRangeError(self.label, f"outside CoolProp's range ({str(exc).strip()[:120]})", T, p) from None
+        if not (math.isfinite(a) and a > 0.0):
+            raise PropertyRangeError(self.label, "CoolProp returned no speed of sound", T, p)
+        return a
+
     def _h_at(self, i, kk, wp):
+        """Enthalpy on the pressure line at knots ``i`` for the search in :meth:`temperature`.
+
+        An invalid knot (NaN: inside air's bubble-to-dew band, below the melting line) takes the
+        value of the nearest valid knot below it on the same line; NaN only where there is none.
+        This keeps "h at knot <= h" monotonic in the knot index, so the bisection finds the one
+        cell that holds h from any starting bracket, i.e. whatever earlier solves have filled.
+        """
         H = self._tab[:, :, _H]
-        return H[i, kk] * (1.0 - wp) + H[i, kk + 1] * wp
+        out = H[i, kk] * (1.0 - wp) + H[i, kk + 1] * wp
+        invalid = np.isnan(out)
+        if invalid.any():
+            for j in np.flatnonzero(invalid):
+                out[j] = self._h_below(int(i[j]), int(kk[j]), float(wp[j]))
+        return out
+
+    def _h_below(self, i, kk, wp):
+        """h of the nearest valid knot at or below knot i on the line between pressure knots kk, kk+1."""
+        H = self._tab[:, :, _H]
+        for j in range(i, max(int(math.ceil(self.T_min_K / _DT)) - self._i0, 0) - 1, -1):
+            self._ensure(np.array([j]), np.array([kk]))
+            v = H[j, kk] * (1.0 - wp) + H[j, kk + 1] * wp
+            if not math.isnan(v):
+                return v
+        return math.nan
 
     def temperature(self, h, p) -> np.ndarray:
         """Temperature [K] from specific enthalpy h [J/kg] and pressure p [Pa abs].
@@ -605,7 +677,7 @@ class PureFluidModel(FluidModel):
             nan = np.isnan(h_lo)
             lo = np.where(nan, lo + 1, lo)  # invalid knots (melting line): step inward
             need_dn = ~nan & (h < h_lo) & (lo > i_lo_lim)
-            need_up = (h > h_hi) & (hi < i_hi_lim)
+            need_up = (h >= h_hi) & (hi < i_hi_lim)  # h strictly below h_hi: one answer from any start
             if not (nan.any() or need_dn.any() or need_up.any()):
                 break
             lo = np.where(need_dn, np.maximum(lo - _CHUNK_T, i_lo_lim), lo)
@@ -690,6 +762,30 @@ class PureFluidModel(FluidModel):
         T, p = _states(T, p)
         ts = self.saturation_temperature(p)
         return (T >= self.T_crit) | (np.isfinite(ts) & (T > ts)) | (p < self.p_triple)
+
+
+# --------------------------------------------------------------------------- phase of a state
+
+#: A state this close to its saturation temperature counts as *at* saturation (boiling or condensing):
+#: the line solver keeps property look-ups 0.05 K to the feed's side of the saturation line.
+SATURATION_BAND_K = 0.05
+
+
+def state_phase(fluid: FluidModel, T: float, p: float) -> tuple[str, float]:
+    """The phase of one state, ``'liquid'``, ``'gas'`` (vapour or above the critical temperature) or
+    ``'saturated'`` (within :data:`SATURATION_BAND_K` of boiling), and the saturation temperature at p [K]
+    (NaN where there is none: solutions, user tables without a boiling point, beyond the critical point).
+
+    Solutions and user tables are liquids; a user table's boiling point is a check, not a phase.
+    """
+    if not isinstance(fluid, PureFluidModel):
+        return "liquid", float("nan")
+    tsat = float(fluid.saturation_temperature(np.array([p]))[0])
+    if math.isfinite(tsat):
+        if abs(T - tsat) <= SATURATION_BAND_K:
+            return "saturated", tsat
+        return ("liquid" if T < tsat else "gas"), tsat
+    return ("gas" if bool(fluid.is_gas(np.array([T]), np.array([p]))[0]) else "liquid"), tsat
 
 
 # --------------------------------------------------------------------------- factory

@@ -128,6 +128,9 @@ CHECK_TITLES: dict[str, str] = {
     "NO_FLOW_OVERHEAT": "too hot with the flow stopped",
     "SURFACE_CONDENSATION": "surface below the dew point",
     "TRACER_IDLE": "steam tracer gives no heat",
+    "MACH_HIGH": "compressible flow",
+    "NEAR_CHOKING": "close to choking",
+    "GAS_PHASE_FEED": "fed as vapour",
 }
 
 _TOKEN = re.compile(r"⟦(T|dT|v|q|n):([-+0-9.eE]+)⟧")
@@ -207,6 +210,9 @@ class Profile:
     velocity_m_per_s: np.ndarray
     density_kg_per_m3: np.ndarray
     saturation_temperature_K: np.ndarray  # NaN where the fluid has none
+    #: local velocity / speed of sound (CoolProp) at the nodes; None where the property source has no speed
+    #: of sound (solutions, user tables: liquids, whose Mach number is negligible). Not a CSV column.
+    mach_number: Optional[np.ndarray] = None
 
     def columns(self) -> dict[str, np.ndarray]:
         return {key: getattr(self, key) for key in PROFILE_COLUMNS}
@@ -390,6 +396,12 @@ class Result:
     @property
     def pressure_drop_Pa(self) -> float:
         return self.inlet_pressure_Pa - self.outlet_pressure_Pa
+
+    @property
+    def max_mach_number(self) -> Optional[float]:
+        """The highest Mach number along the line, or None when the fluid data have no speed of sound."""
+        mach = self.profile.mach_number
+        return None if mach is None else float(np.max(mach))
 
     @property
     def worst_severity(self) -> Optional[Severity]:

@@ -28,6 +28,7 @@ class MarchState:
     T: np.ndarray  # bulk temperature at the cell edges [K]
     p: np.ndarray  # pressure at the cell edges [Pa]
     h_nodes: np.ndarray  # enthalpy at the cell edges from the heat balance [J/kg]
+    kinetic_nodes: np.ndarray  # v²/2 at the cell edges in the heat balance [J/kg] (bore of the cell upstream)
     Q_cell: np.ndarray  # heat to the fluid [W]
     T_surface: np.ndarray  # outer surface in air (where the air film is computed) [K]
     r_out_total: np.ndarray  # outside path: insulation + outer film or soil (inf adiabatic)
