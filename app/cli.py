@@ -3,12 +3,14 @@
     calorun [FILE]                         open the desktop app (the demo project when no file)
     calorun --screenshot OUT.png [FILE]    render the main window offscreen and exit
     calorun solve PROJECT.json [--json [--uncertainty]] [--csv DIR] [--units SI|US] [--alternative NAME ...]
-    calorun report PROJECT.json -o summary.pdf [--alternative NAME ...] [--units SI|US]
+    calorun report PROJECT.json -o summary.pdf [--alternative NAME ...] [--units SI|US] [--uncertainty]
     calorun schema                         print the project file's JSON Schema
     calorun --help                         all of the above; ``calorun COMMAND --help`` for one
 
-``solve`` and ``schema`` never import Qt. Exit codes: 0 solved, 1 a solver
-failure (plain message on stderr), 2 an invalid project or command line.
+``solve`` and ``schema`` never import Qt. Exit codes (:data:`EXIT_CODES_HELP`): 0 every alternative
+solved (and the report written), 1 an alternative could not be solved — ``report`` still writes the
+PDF, which says which and why — or an output could not be written, 2 an invalid project or command
+line. Messages go to stderr in plain words, never a traceback.
 """
 
 from __future__ import annotations
@@ -23,6 +25,12 @@ import textwrap
 EXIT_OK = 0
 EXIT_SOLVER = 1
 EXIT_INVALID = 2
+
+EXIT_CODES_HELP = (
+    "exit codes: 0 every alternative solved (and the report written); 1 an alternative could not be "
+    "solved (`report` still writes the PDF, which says which and why) or an output could not be written; "
+    "2 an invalid project file or command line. Messages go to stderr."
+)
 
 SUBCOMMANDS = ("solve", "report", "schema")
 _HELP_FLAGS = ("-h", "--help")
@@ -52,11 +60,12 @@ def build_parser() -> argparse.ArgumentParser:
               "       calorun COMMAND [options]",
         description="Design process heating and cooling lines.",
         epilog="Without a command, calorun opens the desktop app on FILE (the demo project when no file is "
-               "given). `calorun COMMAND --help` shows the options of one command.",
+               "given). `calorun COMMAND --help` shows the options of one command. " + EXIT_CODES_HELP,
     )
     sub = parser.add_subparsers(dest="command", required=True, title="commands", metavar="COMMAND")
 
-    p_solve = sub.add_parser("solve", help="solve a project; print key figures, the verdict and the checks")
+    p_solve = sub.add_parser("solve", help="solve a project; print key figures, the verdict and the checks",
+                             epilog=EXIT_CODES_HELP)
     p_solve.add_argument("project", metavar="PROJECT.json")
     p_solve.add_argument("--json", action="store_true", help="print machine-readable results (SI)")
     p_solve.add_argument("--csv", metavar="DIR", help="write the profiles of each alternative as CSV into DIR")
@@ -66,11 +75,16 @@ def build_parser() -> argparse.ArgumentParser:
                          help="with --json: add uncertainty bands (each method re-solved at the edges of its "
                               "published accuracy; ± per key figure, per method, bands along the line)")
 
-    p_report = sub.add_parser("report", help="write the summary report (PDF)")
+    p_report = sub.add_parser("report", help="write the summary report (PDF)", epilog=EXIT_CODES_HELP)
     p_report.add_argument("project", metavar="PROJECT.json")
     p_report.add_argument("-o", "--output", required=True, metavar="summary.pdf")
     p_report.add_argument("--units", choices=("SI", "US"), default="SI", help="units of the report (default SI)")
     p_report.add_argument("--alternative", action="append", metavar="NAME", help="report only these alternatives")
+    p_report.add_argument("--uncertainty", action="store_true",
+                          help="compute uncertainty bands however long the line (by default a very long line gets "
+                               "none, and the report says so: they re-solve it about a dozen times)")
+    for p in (p_solve, p_report):
+        _add_max_file_mb(p)
 
     sub.add_parser("schema", help="print the project file's JSON Schema")
     return parser
@@ -90,6 +104,22 @@ def full_help() -> str:
     return text
 
 
+def _megabytes(text: str) -> float:
+    try:
+        mb = float(text)
+    except ValueError:
+        mb = float("nan")
+    if not (mb > 0 and mb != float("inf")):
+        raise argparse.ArgumentTypeError(f"must be a number of megabytes above 0, got {text!r}")
+    return mb
+
+
+def _add_max_file_mb(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("--max-file-mb", type=_megabytes, default=None, metavar="MB",
+                        help="open project files up to this size in MB (default 32, or the environment variable "
+                             "CALORUN_MAX_FILE_MB)")
+
+
 # --------------------------------------------------------------------------- GUI
 
 
@@ -98,6 +128,7 @@ def _gui(argv: list[str]) -> int:
     parser.add_argument("file", nargs="?", help="project file to open (default: the bundled demo project)")
     parser.add_argument("--screenshot", metavar="OUT.png",
                         help="render the main window at 1600×1000 and exit (writes no settings, no Recent files entry)")
+    _add_max_file_mb(parser)
     parser.add_argument("--units", choices=("SI", "US"), default=None,
                         help="display units for this run (default: the remembered ones; SI for --screenshot)")
     args = parser.parse_args(argv)
@@ -105,6 +136,12 @@ def _gui(argv: list[str]) -> int:
         import os
 
         os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+    if args.max_file_mb is not None:  # every file this run opens (the main window reads the variable)
+        import os
+
+        from solver.project_io import MAX_FILE_MB_VARIABLE
+
+        os.environ[MAX_FILE_MB_VARIABLE] = repr(args.max_file_mb)
     from app.main_window import run
 
     return run(args.file, screenshot=args.screenshot, unit_system=args.units)
@@ -126,7 +163,7 @@ def _headless(argv: list[str]) -> int:
     from solver.project_io import load_project
 
     try:
-        project = load_project(args.project)
+        project = load_project(args.project, max_bytes=None if args.max_file_mb is None else int(args.max_file_mb * 1e6))
     except ProjectFileError as exc:
         summary, lines = project_problems(exc, args.units)
         print(f"calorun: {args.project}: {summary}", file=sys.stderr)
@@ -141,18 +178,34 @@ def _headless(argv: list[str]) -> int:
         print(f"calorun: --alternative: no alternative named {unknown[0]!r}; the project has {names}", file=sys.stderr)
         return EXIT_INVALID
 
-    if args.command == "report":
-        try:
-            from app.report import write_report
+    from app.texts import shorten
 
-            out = write_report(project, args.output, unit_system=args.units, alternatives=chosen)
+    if args.command == "report":
+        from app.report import BANDS_MAX_CELLS, unsolved, write_report
+
+        outcomes: list = []
+        try:
+            out = write_report(project, args.output, unit_system=args.units, alternatives=chosen,
+                               bands_max_cells=None if args.uncertainty else BANDS_MAX_CELLS,
+                               outcomes_out=outcomes)
         except CalorunError as exc:
-            print(f"calorun: {exc}", file=sys.stderr)
+            print(f"calorun: {args.project}: {exc}", file=sys.stderr)
             return EXIT_SOLVER
         except OSError as exc:
             print(f"calorun: cannot write {args.output}: {exc}", file=sys.stderr)
             return EXIT_SOLVER
+        except (ArithmeticError, ValueError) as exc:  # a numerical failure the solver did not word: no traceback
+            print(f"calorun: {args.project}: the report could not be made: {type(exc).__name__}: {exc}", file=sys.stderr)
+            return EXIT_SOLVER
         print(f"Report written: {out}")
+        failed = unsolved(outcomes)
+        for o in failed:
+            print(f"calorun: {args.project}: alternative {shorten(o.alternative.name)!r} could not be solved: "
+                  f"{shorten(o.error or '', 2000)}", file=sys.stderr)
+        if failed:
+            print(f"calorun: the report says which alternatives could not be solved and why "
+                  f"({len(failed)} of {len(outcomes)})", file=sys.stderr)
+            return EXIT_SOLVER
         return EXIT_OK
 
     from solver import solve
@@ -166,10 +219,17 @@ def _headless(argv: list[str]) -> int:
             continue
         try:
             r = solve(alt)
-        except CalorunError as exc:
-            print(f"calorun: {args.project}: {exc}", file=sys.stderr)
+        except (CalorunError, ArithmeticError, ValueError) as exc:  # the last two: a numerical failure not worded
+            if isinstance(exc, CalorunError):
+                message = str(exc)
+            else:
+                from app.texts import unexpected_failure
+
+                message = unexpected_failure(exc)
+            print(f"calorun: {args.project}: alternative {shorten(alt.name)!r} could not be solved: {message}",
+                  file=sys.stderr)
             failed = True
-            entries.append({"name": alt.name, "error": str(exc)})
+            entries.append({"name": alt.name, "error": message})
             continue
         results.append(r)
         entries.append(r.to_dict())

@@ -18,14 +18,15 @@ from pathlib import Path
 from typing import Mapping, Optional, Sequence
 
 from app import units
-from app.reporting.content import Outcome, build_html
+from app.reporting.content import BANDS_MAX_CELLS, Outcome, build_html
 from app.reporting.pdf import ensure_gui_application, render_pdf
+from app.texts import HEADING_NAME_CHARS, shorten, unexpected_failure
 from solver.errors import CalorunError
 from solver.model import Alternative, Project
-from solver.project_io import atomic_replace
+from solver.safe_write import atomic_replace
 from solver.results import Result
 
-__all__ = ["write_report", "solve_alternatives", "select_alternatives"]
+__all__ = ["write_report", "solve_alternatives", "select_alternatives", "unsolved", "BANDS_MAX_CELLS"]
 
 
 def solve_alternatives(alternatives: Sequence[Alternative], results: Optional[Mapping[str, object]] = None,
@@ -50,7 +51,7 @@ def solve_alternatives(alternatives: Sequence[Alternative], results: Optional[Ma
         except CalorunError as exc:
             outcomes.append(Outcome(alt, None, str(exc)))
         except (ArithmeticError, ValueError, RuntimeError) as exc:  # a solver bug: say so in the PDF
-            outcomes.append(Outcome(alt, None, f"unexpected {type(exc).__name__}: {exc}"))
+            outcomes.append(Outcome(alt, None, unexpected_failure(exc)))
     return outcomes
 
 
@@ -77,6 +78,8 @@ def write_report(
     results: Optional[Mapping[str, object]] = None,
     date: Optional[str] = None,
     bands: Optional[Mapping[str, object]] = None,
+    bands_max_cells: Optional[int] = BANDS_MAX_CELLS,
+    outcomes_out: Optional[list] = None,
 ) -> Path:
     """Write the summary report of ``project`` as a PDF at ``path`` and return the path.
 
@@ -85,7 +88,10 @@ def write_report(
     app; those are not solved again, the rest are solved here. A solve failure
     is reported in the PDF. ``bands``: name -> uncertainty bands of those results, already
     computed (the rest are computed here). ``date``: the date printed (default today, ISO
-    format). Works with no display; writes atomically (temporary file, then rename).
+    format). ``bands_max_cells``: lines of more cells get no bands unless given (None: always
+    computed). ``outcomes_out``: a list that receives the report's outcomes (the CLI reads which
+    alternatives could not be solved). Works with no display; writes atomically (temporary file,
+    then rename).
     """
     if unit_system not in units.UNIT_SYSTEMS:
         raise ValueError(f"unit_system: expected one of {', '.join(units.UNIT_SYSTEMS)}, got {unit_system!r}")
@@ -95,10 +101,18 @@ def write_report(
         project = load_project(project)
     chosen = select_alternatives(project, alternatives)
     outcomes = solve_alternatives(chosen, results, bands)
-    body = build_html(project, outcomes, unit_system, date or _dt.date.today().isoformat())
+    if outcomes_out is not None:
+        outcomes_out.extend(outcomes)
+    body = build_html(project, outcomes, unit_system, date or _dt.date.today().isoformat(), bands_max_cells)
 
     ensure_gui_application()
     path = Path(path)
+    title = shorten(project.name, HEADING_NAME_CHARS)
     with atomic_replace(path) as tmp:
-        render_pdf(body, tmp, project.name, project.name, unit_system)
+        render_pdf(body, tmp, title, title, unit_system)
     return path
+
+
+def unsolved(outcomes: Sequence[Outcome]) -> list[Outcome]:
+    """The outcomes whose alternative could not be solved (each carries its reason)."""
+    return [o for o in outcomes if o.result is None]

@@ -32,12 +32,45 @@ from solver.results import KeyFigure, Result
 __all__ = [
     "esc", "fmt", "num", "ulabel", "fluid_text", "fluid_source_text", "surroundings_text", "pipe_text",
     "insulation_text", "fittings_text", "steam_tracer_text", "fouling_text", "CONTACT_WORDS", "method_entries", "key_figure_label_and_value",
+    "shorten", "capped", "unexpected_failure", "SHORT_NAME_CHARS", "HEADING_NAME_CHARS", "FULL_TEXT_CAP_CHARS",
 ]
+
+#: A name in a table cell, a chart label or a list is shown up to this many characters, then "…".
+SHORT_NAME_CHARS = 60
+#: A name in a heading or the running header: up to this many characters, then "…".
+HEADING_NAME_CHARS = 120
+#: The one place a text is printed in full stops here, with a note of its true length: a
+#: 10-million-character name would otherwise stall the layout of the whole document.
+FULL_TEXT_CAP_CHARS = 2000
 
 
 def esc(text) -> str:
     """Escape any text for HTML (quotes too), so typed ``<b>`` or ``&`` print as typed."""
     return html.escape("" if text is None else str(text), quote=True)
+
+
+def shorten(text, limit: int = SHORT_NAME_CHARS) -> str:
+    """``text`` as is when it has at most ``limit`` characters, else its first ``limit − 1`` and "…"
+    (line breaks and tabs read as spaces, so a shortened name stays on one line)."""
+    text = "" if text is None else str(text)
+    if len(text) <= limit:
+        return text
+    return " ".join(text[: max(limit - 1, 1)].split()) + "…"
+
+
+def capped(text, cap: int = FULL_TEXT_CAP_CHARS, what: str = "name") -> str:
+    """The full ``text`` where a reader looks it up, but never more than ``cap`` characters: beyond,
+    cut with a note of its true length ("… (name shortened: 10,000,000 characters)")."""
+    text = "" if text is None else str(text)
+    if len(text) <= cap:
+        return text
+    return f"{text[:cap]}… ({what} shortened: {len(text):,} characters)"
+
+
+def unexpected_failure(exc: BaseException) -> str:
+    """A solve that failed in a way the solver does not word (a numerical fault), in plain words."""
+    return (f"the calculation failed on a numerical problem it could not place on the line ({type(exc).__name__}: "
+            f"{exc}); this is a fault in Calorun, not a finding about the design: please report it with the project file")
 
 
 def fmt(value, quantity: str, system: str, digits: int = 4) -> str:

@@ -19,9 +19,9 @@ from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QColor, QFont, QFontMetricsF, QPainterPath, QPen, QPolygonF
 
 from app import units
-from app.axes import minimum_span
+from app.axes import minimum_span, thin
 from app.style import ALTERNATIVE_COLOURS, ALTERNATIVE_STYLES, CURVE_COLOURS, INK, INK_MUTED
-from app.texts import fmt, ulabel
+from app.texts import fmt, shorten, ulabel
 from solver.results import Result
 
 LIMIT_STYLE = "dashdot"
@@ -181,16 +181,28 @@ def _fonts():
     return {"base": base, "small": small, "title": title}
 
 
-def _polylines(x: np.ndarray, y: np.ndarray, X, Y) -> list[np.ndarray]:
-    """Device polylines of a series, broken where a value is missing (NaN)."""
-    ok = np.isfinite(x) & np.isfinite(y)
-    out, start = [], None
-    for i, good in enumerate(np.append(ok, False)):
-        if good and start is None:
-            start = i
-        elif not good and start is not None:
-            out.append(np.column_stack([X(x[start:i]), Y(y[start:i])]))
-            start = None
+def _runs(ok: np.ndarray) -> list[tuple[int, int]]:
+    """``(start, stop)`` of each run of True in ``ok``."""
+    edges = np.flatnonzero(np.diff(np.concatenate(([0], ok.astype(np.int8), [0]))))
+    return list(zip(edges[::2].tolist(), edges[1::2].tolist()))
+
+
+def _thinned(x: np.ndarray, y: np.ndarray, columns: Optional[int]) -> tuple[np.ndarray, np.ndarray]:
+    """A run of finite points thinned to what ``columns`` columns across its x range can show
+    (:func:`app.axes.thin`: each column keeps its lowest and highest point); a line of a million
+    nodes draws as a few thousand."""
+    if columns is None or x.size < 3 or not np.all(np.diff(x) >= 0):
+        return x, y
+    return thin(x, y, float(x[0]), float(x[-1]), columns)
+
+
+def _polylines(x: np.ndarray, y: np.ndarray, X, Y, columns: Optional[int] = None) -> list[np.ndarray]:
+    """Device polylines of a series, broken where a value is missing (NaN); each thinned to
+    ``columns`` columns across the plot (None: every point)."""
+    out = []
+    for a, b in _runs(np.isfinite(x) & np.isfinite(y)):
+        xs, ys = _thinned(x[a:b], y[a:b], columns)
+        out.append(np.column_stack([X(xs), Y(ys)]))
     return out
 
 
@@ -272,10 +284,13 @@ def layout_chart(chart: Chart, rect: QRectF, pt: float, device) -> ChartGeometry
     def X(v):
         return plot_left + (np.asarray(v, dtype=float) - x_lo) / (x_hi - x_lo) * (plot_right - plot_left)
 
+    # columns to thin curves to: four per point of plot width, far finer than a pen can show
+    columns = max(int((plot_right - plot_left) / pt * 4), 16)
     name_boxes = []
+    narrowest = fms.horizontalAdvance("W…") + 4 * pt
     for x0, x1, name in chart.segments:
         w = float(X(x1) - X(x0))
-        if w > fms.horizontalAdvance("W…") + 4 * pt:
+        if w > narrowest:
             text = fms.elidedText(name, Qt.ElideRight, w - 4 * pt)
             name_boxes.append((QRectF(float(X(x0)), top - band_h, w, small_h), text))
 
@@ -286,20 +301,23 @@ def layout_chart(chart: Chart, rect: QRectF, pt: float, device) -> ChartGeometry
         def Y(v, area=area, y_lo=y_lo, y_hi=y_hi):
             return area.bottom() - (np.asarray(v, dtype=float) - y_lo) / (y_hi - y_lo) * area.height()
 
-        curves = [(sr, _polylines(np.asarray(sr.x, dtype=float), np.asarray(sr.y, dtype=float), X, Y))
+        curves = [(sr, _polylines(np.asarray(sr.x, dtype=float), np.asarray(sr.y, dtype=float), X, Y, columns))
                   for sr in panel.series]
         bands = []
         for band in panel.bands:
             bx, lo_, hi_ = (np.asarray(v, dtype=float) for v in (band.x, band.lower, band.upper))
             polys = []
-            ok = np.isfinite(bx) & np.isfinite(lo_) & np.isfinite(hi_)
-            edges = np.flatnonzero(np.diff(np.concatenate(([0], ok.astype(np.int8), [0]))))
-            for a, b in zip(edges[::2], edges[1::2]):  # each run of values: the upper edge, then the lower back
-                xs = X(bx[a:b])
-                polys.append(np.vstack([np.column_stack([xs, Y(hi_[a:b])]),
-                                        np.column_stack([xs[::-1], Y(lo_[a:b][::-1])])]))
+            for a, b in _runs(np.isfinite(bx) & np.isfinite(lo_) & np.isfinite(hi_)):
+                # each run of values: the upper edge, then the lower back (each edge thinned on its own)
+                ux, uy = _thinned(bx[a:b], hi_[a:b], columns)
+                lx, ly = _thinned(bx[a:b], lo_[a:b], columns)
+                polys.append(np.vstack([np.column_stack([X(ux), Y(uy)]),
+                                        np.column_stack([X(lx[::-1]), Y(ly[::-1])])]))
             bands.append((band, polys))
-        bxs = [float(X(b)) for b in chart.boundaries if plot_left < float(X(b)) < plot_right]
+        bxs = [float(v) for v in X(np.asarray(chart.boundaries, dtype=float))
+               if plot_left < float(v) < plot_right]
+        if len(bxs) > (plot_right - plot_left) / (3 * pt):
+            bxs = []  # boundaries closer than 3 pt would shade the plot grey, not mark segments
         limits = sorted(((hl, float(Y(hl.y))) for hl in panel.hlines if math.isfinite(hl.y)), key=lambda e: e[1])
         centres = _spread([yy for _, yy in limits], small_h, area.top(), area.bottom())
         boxes = []
@@ -456,8 +474,13 @@ def _limit_lines(entries: Sequence[tuple[str, Optional[float]]], system: str) ->
 
 
 def _spans(result: Result, system: str) -> list[tuple[float, float, str]]:
-    return [(float(units.to_display(s.x_start_m, "length", system)), float(units.to_display(s.x_end_m, "length", system)), s.name)
-            for s in result.segments]
+    """``(x_start, x_end, name)`` of each segment, in display units; names shortened (a chart shows
+    at most a few dozen characters in a span)."""
+    if not result.segments:
+        return []
+    starts = _display([s.x_start_m for s in result.segments], "length", system)
+    ends = _display([s.x_end_m for s in result.segments], "length", system)
+    return [(float(a), float(b), shorten(s.name)) for a, b, s in zip(starts, ends, result.segments)]
 
 
 def _display(values, quantity: str, system: str) -> np.ndarray:
@@ -501,7 +524,7 @@ def alternative_chart(result: Result, system: str, targets=None, limits=None, ba
     hlines = _limit_lines(entries, system)
     press = _display(p.pressure_Pa, "pressure", system)
     return Chart(
-        title=f"Profiles along the line — {result.name}",
+        title=f"Profiles along the line — {shorten(result.name)}",
         x_label=f"Position from inlet [{ulabel('length', system)}]",
         panels=[
             Panel(f"Temperature [{ulabel('temperature', system)}]", temps, hlines, minimum_span("temperature", system),
@@ -533,16 +556,16 @@ def overlay_chart(results: Sequence[Result], system: str, targets=None) -> Chart
         style = ALTERNATIVE_STYLES[i % len(ALTERNATIVE_STYLES)]  # equal curves stay visible as two
         p = r.profile
         x = _display(p.x_m, "length", system)
-        temps.append(Series(r.name, x, _display(p.bulk_temperature_K, "temperature", system), colour, style, 1.6))
+        temps.append(Series(shorten(r.name), x, _display(p.bulk_temperature_K, "temperature", system), colour, style, 1.6))
         temps.append(Series("", x, _display(p.inner_wall_temperature_K, "temperature", system), colour, "dot", 0.9))
-        press.append(Series(r.name, x, _display(p.pressure_Pa, "pressure", system), colour, style, 1.5))
+        press.append(Series(shorten(r.name), x, _display(p.pressure_Pa, "pressure", system), colour, style, 1.5))
         all_press.append(press[-1].y)
     spans = [_spans(r, system) for r in results]
+    # every boundary of every alternative, once: sorted, a position within round-off of the last kept is the same
     positions: list[float] = []
-    for s in spans:
-        for _, x1, _ in s[:-1]:
-            if all(abs(x1 - b) > 1e-6 * max(1.0, abs(x1)) for b in positions):
-                positions.append(x1)
+    for x1 in sorted(x1 for s in spans for _, x1, _ in s[:-1]):
+        if not positions or abs(x1 - positions[-1]) > 1e-6 * max(1.0, abs(x1)):
+            positions.append(x1)
     entries = []
     if targets is not None:
         entries = [("min outlet", targets.outlet_temperature_min_K), ("max outlet", targets.outlet_temperature_max_K),

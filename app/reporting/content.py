@@ -9,6 +9,7 @@ the user typed (names, descriptions, labels) goes through :func:`app.texts.esc`,
 
 from __future__ import annotations
 
+import json
 import math
 from dataclasses import dataclass
 from typing import Optional, Sequence
@@ -30,6 +31,8 @@ from app.style import (
     VERDICT_SYMBOLS,
 )
 from app.texts import (
+    HEADING_NAME_CHARS,
+    capped,
     esc,
     fittings_text,
     fluid_source_text,
@@ -41,12 +44,28 @@ from app.texts import (
     num,
     pipe_text,
     plus_minus_text,
+    shorten,
     surroundings_text,
     ulabel,
 )
-from solver.model import Alternative, Project
+from solver.model import Alternative, Project, Segment
 from solver.results import ASSUMPTIONS, CAUTIONS, CAUTIONS_BANNER, KEY_FIGURES, Result, check_sort_key, key_figure
-from solver.uncertainty import BANDS_CAUTION, Bands, line_bands
+from solver.uncertainty import BANDS_CAUTION, Bands, band_plan, line_bands
+
+#: Uncertainty bands re-solve the line about a dozen times (two solves per method it uses); the
+#: report computes them for lines up to this many cells (a few hundred segments, a few seconds) and
+#: says so for longer ones, unless asked (``calorun report --uncertainty``).
+BANDS_MAX_CELLS = 30_000
+#: Up to this many segments the segment tables have one row per segment; a longer line gets one row
+#: per segment design (segments alike but for name and length), since hundreds of near-identical
+#: rows neither read well nor lay out in reasonable time.
+FULL_TABLE_SEGMENTS = 60
+#: At most this many design rows; the designs covering the least length are then summed in one row.
+MAX_DESIGN_ROWS = 40
+#: At most this many rows of checks; the rest (no worse than the last shown) are counted.
+MAX_CHECK_ROWS = 120
+#: Full segment names listed under a table when shortened there, at most this many.
+MAX_FULL_NAMES = 20
 
 CSS = f"""
 body {{ color: {INK}; }}
@@ -82,12 +101,19 @@ class Outcome:
     bands_error: str = ""
 
 
-def add_bands(outcomes: Sequence[Outcome]) -> None:
+def add_bands(outcomes: Sequence[Outcome], max_cells: Optional[int] = BANDS_MAX_CELLS) -> None:
     """Give each solved outcome without bands its bands (perturb and re-solve; a fraction of a second
-    per alternative). A perturbed solve the solver refuses is named in the Bands; a bug leaves the
-    outcome without bands and says why."""
+    per alternative of usual size). A perturbed solve the solver refuses is named in the Bands; a bug
+    leaves the outcome without bands and says why. A line of more than ``max_cells`` cells (None: no
+    limit) gets none, and the report says why and how to get them."""
     for o in outcomes:
         if o.result is None or o.bands is not None:
+            continue
+        if max_cells is not None and o.result.cells > max_cells:
+            solves = len(band_plan(o.alternative))
+            o.bands_error = (f"not computed for this long line ({o.result.cells:,} cells, more than {max_cells:,}): "
+                             f"they take {comparison.plural(solves, 'more solve')} of the whole line; "
+                             "`calorun report --uncertainty` computes them")
             continue
         try:
             o.bands = line_bands(o.alternative, o.result)
@@ -103,7 +129,7 @@ def verdict_html(verdict: comparison.DesignVerdict, detail: bool = True) -> str:
 
 
 def _name(o: Outcome, baseline_name: str) -> str:
-    return esc(o.alternative.name) + (" <i>(baseline)</i>" if o.alternative.name == baseline_name else "")
+    return esc(shorten(o.alternative.name)) + (" <i>(baseline)</i>" if o.alternative.name == baseline_name else "")
 
 
 def _job_sentence(project: Project, outcomes: Sequence[Outcome], system: str) -> str:
@@ -125,22 +151,29 @@ def _job_sentence(project: Project, outcomes: Sequence[Outcome], system: str) ->
     )
 
 
-def build_html(project: Project, outcomes: Sequence[Outcome], system: str, date_text: str) -> Body:
-    """The whole report body: title, verdicts, comparison, one section per alternative, methods."""
+def build_html(project: Project, outcomes: Sequence[Outcome], system: str, date_text: str,
+               bands_max_cells: Optional[int] = BANDS_MAX_CELLS) -> Body:
+    """The whole report body: title, verdicts, comparison, one section per alternative, methods.
+
+    Names are shortened with "…" in headings and tables and printed in full once (the project's in
+    its details, an alternative's at the head of its section), itself capped for absurd lengths."""
     doc = Body(CSS)
-    add_bands(outcomes)
+    add_bands(outcomes, bands_max_cells)
     solved = [o.result for o in outcomes if o.result is not None]
     baseline_name = project.baseline_alternative().name
 
     doc.add('<p class="kicker">CALORUN · LINE DESIGN SUMMARY</p>')
-    doc.heading(1, esc(project.name))
+    doc.heading(1, esc(shorten(project.name, HEADING_NAME_CHARS)))
     if project.description:
-        doc.add(f'<p>{esc(project.description)}</p>')
+        doc.add(f'<p>{esc(capped(project.description, what="description"))}</p>')
     unit_word = "SI (°C, bar(a), kPa, kW, mm, m)" if system == "SI" else "US customary (°F, psia, psi, Btu/h, in, ft)"
     not_stated = '<span class="muted">not stated</span>'
-    doc.table(["Project", ""], [
-        ["Prepared by", esc(project.prepared_by) or not_stated],
-        ["Revision", esc(project.revision) or not_stated],
+    details = []
+    if len(project.name) > HEADING_NAME_CHARS:
+        details.append(["Full name", esc(capped(project.name))])
+    doc.table(["Project", ""], details + [
+        ["Prepared by", esc(capped(project.prepared_by)) or not_stated],
+        ["Revision", esc(capped(project.revision)) or not_stated],
         ["Date", esc(date_text)],
         ["Alternatives", ", ".join(_name(o, baseline_name) for o in outcomes)],
         ["Units", esc(unit_word) + "; pressures are absolute unless marked as a drop"],
@@ -165,7 +198,7 @@ def _glance(doc: Body, project: Project, outcomes: Sequence[Outcome], system: st
     for o in outcomes:
         if o.result is None:
             rows.append([_name(o, baseline_name), f'<span class="missed">\u2717 not solved</span><br>'
-                         f'<span class="diff">{esc(o.error or "")}</span>', "—", "—", "—"])
+                         f'<span class="diff">{esc(capped(o.error or "", what="message"))}</span>', "—", "—", "—"])
             continue
         r = o.result
         rows.append([
@@ -185,11 +218,11 @@ def _comparison(doc: Body, project: Project, outcomes: Sequence[Outcome], solved
                 baseline_name: str) -> None:
     table = comparison.compare(solved, baseline_name)
     doc.heading(2, "Key Figures compared")
-    ref_note = f"Differences are against the baseline, <b>{esc(table.baseline_name)}</b>"
+    ref_note = f"Differences are against the baseline, <b>{esc(shorten(table.baseline_name))}</b>"
     if table.baseline_name != baseline_name:
-        ref_note += f" (the project baseline {esc(baseline_name)} could not be solved)"
+        ref_note += f" (the project baseline {esc(shorten(baseline_name))} could not be solved)"
     doc.add(f'<p class="small muted">{ref_note}; a change in percent is shown where it helps.</p>')
-    headers = ["Key figure"] + [esc(n) + (" <i>(baseline)</i>" if i == table.baseline_index else "")
+    headers = ["Key figure"] + [esc(shorten(n)) + (" <i>(baseline)</i>" if i == table.baseline_index else "")
                                 for i, n in enumerate(table.names)]
     rows = []
     for row in table.rows:
@@ -214,7 +247,7 @@ def _comparison(doc: Body, project: Project, outcomes: Sequence[Outcome], solved
     failed = [o for o in outcomes if o.result is None]
     if failed:
         doc.add('<p class="small missed">Not in this comparison (could not be solved): '
-                + ", ".join(esc(o.alternative.name) for o in failed) + ".</p>")
+                + ", ".join(esc(shorten(o.alternative.name)) for o in failed) + ".</p>")
 
     doc.heading(2, "Design targets")
     if comparison.targets_set(project.targets):
@@ -225,7 +258,7 @@ def _comparison(doc: Body, project: Project, outcomes: Sequence[Outcome], solved
                         + [_target_cell(vs[j], system) for vs in per_alt])
         rows.append(["<b>Verdict</b>", "targets and checks"]
                     + [verdict_html(comparison.design_verdict(project.targets, r), detail=False) for r in solved])
-        doc.table(["Target", "Limit"] + [esc(r.name) for r in solved], rows, font_pt=8.0 if n <= 4 else 7.0)
+        doc.table(["Target", "Limit"] + [esc(shorten(r.name)) for r in solved], rows, font_pt=8.0 if n <= 4 else 7.0)
         doc.add('<p class="small muted">\u2713 met: the value is on the allowed side of the limit or equal to it. '
                 '\u2717 missed: it is not, or the value is undefined. The verdict also counts danger and warning checks.</p>')
     else:
@@ -246,18 +279,26 @@ def _alternative_section(doc: Body, project: Project, o: Outcome, system: str, b
     doc.page_break()
     tag = " — baseline" if alt.name == baseline_name else ""
     doc.add(f'<p class="kicker">ALTERNATIVE{esc(tag.upper())}</p>')
-    doc.heading(2, esc(alt.name), "margin-top: 0px;")
+    doc.heading(2, esc(shorten(alt.name, HEADING_NAME_CHARS)), "margin-top: 0px;")
+    if len(alt.name) > HEADING_NAME_CHARS:
+        doc.add(f'<p class="small"><b>Full name:</b> {esc(capped(alt.name))}</p>')
     if alt.description:
-        doc.add(f"<p>{esc(alt.description)}</p>")
+        doc.add(f"<p>{esc(capped(alt.description, what='description'))}</p>")
     if r is not None:
         doc.add(f"<p><b>Verdict:</b> {verdict_html(comparison.design_verdict(project.targets, r))}</p>")
     _feed_and_segments(doc, alt, r, system)
     if r is None:
-        doc.box(f"<b>This alternative could not be solved.</b><br>{esc(o.error)}", MISSED_COLOUR, "#FCEDE5")
+        doc.box(f"<b>This alternative could not be solved.</b><br>{esc(capped(o.error, what='message'))}",
+                MISSED_COLOUR, "#FCEDE5")
         return
     _key_figures(doc, r, system, o.bands)
-    _per_segment(doc, r, system)
-    _heat_path(doc, r, system)
+    if len(alt.segments) > FULL_TABLE_SEGMENTS:
+        groups = design_groups(alt)
+        _per_design(doc, alt, r, groups, system)
+        _heat_path(doc, r, system, [g.indices[0] for g in groups if g.design is not None])
+    else:
+        _per_segment(doc, r, system)
+        _heat_path(doc, r, system)
     doc.figure(alternative_chart(r, system, project.targets, alt.limits, o.bands))
     _uncertainty(doc, o, system)
     _checks(doc, alt, r, system)
@@ -291,6 +332,9 @@ def _feed_and_segments(doc: Body, alt: Alternative, r: Optional[Result], system:
     doc.table(["Feed", ""], rows, widths=[28, 72])
 
     doc.heading(3, "Segments (in flow order)")
+    if len(alt.segments) > FULL_TABLE_SEGMENTS:
+        _segment_designs(doc, alt, r, system)
+        return
     L, D, P = ulabel("length", system), ulabel("diameter", system), ulabel("power_per_length", system)
     seg_rows = []
     for i, s in enumerate(alt.segments):
@@ -302,7 +346,7 @@ def _feed_and_segments(doc: Body, alt: Alternative, r: Optional[Result], system:
         if span is not None and s.fittings:
             fit += f'<br><span class="diff">ΣK {span.fittings_K:.3g}</span>'
         seg_rows.append([
-            str(i + 1), esc(s.name), esc(num(s.length_m, "length", system)), bore,
+            str(i + 1), esc(shorten(s.name)), esc(num(s.length_m, "length", system)), bore,
             esc(num(s.elevation_change_m, "elevation", system)) if s.elevation_change_m else "0",
             fit, esc(num(s.heat_input_W_per_m, "power_per_length", system)) if s.heat_input_W_per_m else "—",
             esc(insulation_text(s, system)), esc(surroundings_text(s.surroundings, system)),
@@ -312,6 +356,114 @@ def _feed_and_segments(doc: Body, alt: Alternative, r: Optional[Result], system:
          "Insulation", "Surroundings"],
         seg_rows, num_cols=(0, 2, 4, 6), widths=[3, 11, 7, 15, 6, 14, 8, 16, 20], font_pt=7.0,
     )
+    _full_names(doc, alt)
+
+
+def _full_names(doc: Body, alt: Alternative) -> None:
+    """The full names of the segments a table shows shortened, each once (at most
+    :data:`MAX_FULL_NAMES`, each capped for absurd lengths)."""
+    long = [(i, s.name) for i, s in enumerate(alt.segments) if shorten(s.name) != s.name]
+    if not long:
+        return
+    items = "".join(f"<li>#{i + 1}: {esc(capped(name))}</li>" for i, name in long[:MAX_FULL_NAMES])
+    more = (f'<p class="small muted">… and {esc(comparison.plural(len(long) - MAX_FULL_NAMES, "more long name"))}.</p>'
+            if len(long) > MAX_FULL_NAMES else "")
+    doc.add(f'<p class="small muted">Names shortened in the tables, in full:</p><ul class="small">{items}</ul>{more}')
+
+
+@dataclass
+class DesignGroup:
+    """Segments of one design: alike in everything but name and length. ``design`` is the first of
+    them; None for the one row that sums the designs beyond :data:`MAX_DESIGN_ROWS`."""
+
+    indices: list[int]
+    design: Optional[Segment]
+
+
+def design_groups(alt: Alternative) -> list[DesignGroup]:
+    """The alternative's segments grouped by design, in order of first appearance; beyond
+    :data:`MAX_DESIGN_ROWS` designs, those covering the least length share one last group."""
+    by_key: dict[str, list[int]] = {}
+    for i, s in enumerate(alt.segments):
+        key = json.dumps(s.model_dump(mode="json", exclude={"name", "length_m"}), sort_keys=True, default=str)
+        by_key.setdefault(key, []).append(i)
+    groups = [DesignGroup(ix, alt.segments[ix[0]]) for ix in by_key.values()]
+    if len(groups) <= MAX_DESIGN_ROWS:
+        return groups
+    length = [sum(alt.segments[i].length_m for i in g.indices) for g in groups]
+    kept = set(sorted(range(len(groups)), key=lambda j: -length[j])[:MAX_DESIGN_ROWS - 1])
+    rest = sorted(i for j, g in enumerate(groups) if j not in kept for i in g.indices)
+    return [g for j, g in enumerate(groups) if j in kept] + [DesignGroup(rest, None)]
+
+
+def numbers_text(indices: Sequence[int], shown: int = 4) -> str:
+    """Segment numbers (1-based) as runs, "1–3, 7, 9–12", the middle left out when there are many:
+    "1, 6, 11, 16, …, 9996"."""
+    runs: list[list[int]] = []
+    for i in indices:
+        if runs and i == runs[-1][1] + 1:
+            runs[-1][1] = i
+        else:
+            runs.append([i, i])
+    words = [f"{a + 1}" if a == b else f"{a + 1}–{b + 1}" for a, b in runs]
+    if len(words) > shown + 1:
+        words = words[:shown] + ["…", words[-1]]
+    return ", ".join(words)
+
+
+def _group_head(alt: Alternative, g: DesignGroup) -> tuple[str, str]:
+    """(segments cell, name cell) of a design row."""
+    count = f'{esc(comparison.plural(len(g.indices), "segment"))}<br><span class="diff">#{esc(numbers_text(g.indices))}</span>'
+    if g.design is None:
+        return count, "<i>other designs</i>"
+    name = esc(shorten(g.design.name))
+    if any(alt.segments[i].name != g.design.name for i in g.indices[1:]):
+        name += ' <span class="diff">(the first)</span>'
+    return count, name
+
+
+def _segment_designs(doc: Body, alt: Alternative, r: Optional[Result], system: str) -> None:
+    """The segments of a long line, one row per design."""
+    groups = design_groups(alt)
+    L, D, P = ulabel("length", system), ulabel("diameter", system), ulabel("power_per_length", system)
+    rows = []
+    for g in groups:
+        count, name = _group_head(alt, g)
+        lengths = [alt.segments[i].length_m for i in g.indices]
+        length = esc(num(sum(lengths), "length", system))
+        if len(lengths) > 1:
+            lo, hi = min(lengths), max(lengths)
+            each = num(lo, "length", system) if lo == hi else f"{num(lo, 'length', system)} – {num(hi, 'length', system)}"
+            length += f'<br><span class="diff">each {esc(each)}</span>'
+        s = g.design
+        if s is None:
+            rows.append([count, name, length] + ['<span class="muted">various</span>'] * 6)
+            continue
+        span = r.segments[g.indices[0]] if r is not None and g.indices[0] < len(r.segments) else None
+        bore = esc(pipe_text(s, system))
+        if span is not None:
+            bore += f'<br><span class="diff">ID {esc(num(span.inner_diameter_m, "diameter", system))} {D}</span>'
+        fit = esc(fittings_text(s))
+        if span is not None and s.fittings:
+            fit += f'<br><span class="diff">ΣK {span.fittings_K:.3g} each</span>'
+        rows.append([
+            count, name, length, bore,
+            esc(num(s.elevation_change_m, "elevation", system)) if s.elevation_change_m else "0",
+            fit, esc(num(s.heat_input_W_per_m, "power_per_length", system)) if s.heat_input_W_per_m else "—",
+            esc(insulation_text(s, system)), esc(surroundings_text(s.surroundings, system)),
+        ])
+    doc.add(f'<p class="small muted">A long line: {esc(comparison.plural(len(alt.segments), "segment"))} in '
+            f'{esc(comparison.plural(sum(g.design is not None for g in groups), "design"))} (segments alike in everything '
+            'but name and length), one row per design with its segments’ numbers'
+            + (f"; the designs covering the least length share the last row" if groups[-1].design is None else "")
+            + '. The profile chart shows the line position by position; <code>calorun solve --json</code> '
+            'lists every segment.</p>')
+    doc.table(
+        ["Segments", "Name", f"Length [{L}]", "Pipe", f"Rise each [{ulabel('elevation', system)}]", "Fittings each",
+         f"Heat input [{P}]", "Insulation", "Surroundings"],
+        rows, num_cols=(2, 4, 6), widths=[10, 11, 8, 14, 6, 13, 7, 14, 17], font_pt=7.0,
+    )
+    _full_names(doc, alt)
 
 
 def _key_figures(doc: Body, r: Result, system: str, bands: Optional[Bands] = None) -> None:
@@ -391,7 +543,7 @@ def _per_segment(doc: Body, r: Result, system: str) -> None:
     rows = []
     for s in r.segments:
         rows.append([
-            str(s.index + 1), esc(s.name),
+            str(s.index + 1), esc(shorten(s.name)),
             f"{esc(num(s.x_start_m, 'length', system))} – {esc(num(s.x_end_m, 'length', system))}",
             esc(num(s.inner_diameter_m, "diameter", system)), esc(num(s.outer_diameter_m, "diameter", system)),
             cell(s.heat_input_W, "power", heat), cell(s.heat_loss_W, "power", heat),
@@ -408,15 +560,61 @@ def _per_segment(doc: Body, r: Result, system: str) -> None:
             'heat loss is negative where the surroundings heat the line.</p>')
 
 
-def _heat_path(doc: Body, r: Result, system: str) -> None:
-    """Per segment, the resistances from the fluid outwards with their shares, and the heat per metre."""
+def _per_design(doc: Body, alt: Alternative, r: Result, groups: Sequence[DesignGroup], system: str) -> None:
+    """The per-segment results of a long line, summed over the segments of each design."""
+    doc.heading(3, "Per segment design")
+    spans = r.segments
+    heat = units.display_unit_for([v for s in spans for v in (s.heat_input_W, s.heat_loss_W, s.duty_W)], "power", system)
+    dp = units.display_unit_for([s.pressure_drop_Pa for s in spans], "pressure_difference", system)
+
+    def cell(value, quantity, unit):
+        return esc(units.format_value(value, quantity, system, with_unit=False, display_unit=unit))
+
+    rows = []
+    for g in groups:
+        members = [spans[i] for i in g.indices if i < len(spans)]
+        if not members:
+            continue
+        count, name = _group_head(alt, g)
+        first = members[0]
+        same = g.design is not None
+        rows.append([
+            count, name, esc(num(sum(s.x_end_m - s.x_start_m for s in members), "length", system)),
+            esc(num(first.inner_diameter_m, "diameter", system)) if same else '<span class="muted">various</span>',
+            esc(num(first.outer_diameter_m, "diameter", system)) if same else '<span class="muted">various</span>',
+            cell(sum(s.heat_input_W for s in members), "power", heat), cell(sum(s.heat_loss_W for s in members), "power", heat),
+            cell(sum(s.duty_W for s in members), "power", heat),
+            cell(sum(s.pressure_drop_Pa for s in members), "pressure_difference", dp),
+        ])
+    L, D = ulabel("length", system), ulabel("diameter", system)
+    W, PD = esc(heat.label), esc(dp.label)
+    doc.table(
+        ["Segments", "Name", f"Length [{L}]", f"Bore [{D}]", f"Outer Ø [{D}]", f"Heat input [{W}]", f"Heat loss [{W}]",
+         f"Heat to fluid [{W}]", f"Δp [{PD}]"],
+        rows, num_cols=(2, 3, 4, 5, 6, 7, 8), widths=[13, 15, 9, 8, 9, 12, 11, 12, 11], font_pt=7.5,
+    )
+    doc.add('<p class="small muted">Each row sums the segments of one design (numbers as in “Segments”). Outer Ø is '
+            'over the insulation. Heat to fluid is negative where the fluid cools; heat loss is negative where the '
+            'surroundings heat the line.</p>')
+
+
+def _heat_path(doc: Body, r: Result, system: str, only: Optional[Sequence[int]] = None) -> None:
+    """Per segment, the resistances from the fluid outwards with their shares, and the heat per metre;
+    with ``only`` (segment indices: the first of each design of a long line) just those."""
     if not r.resistances:
         return
-    doc.heading(3, "Heat path per segment")
-    q = units.display_unit_for([v for s in r.resistances for v in (s.heat_loss_W_per_m, s.heat_to_fluid_W_per_m)],
+    chosen = r.resistances
+    if only is not None:
+        wanted = set(only)
+        chosen = [s for s in r.resistances if s.index in wanted]
+    doc.heading(3, "Heat path per segment" if only is None else "Heat path per segment design")
+    if only is not None:
+        doc.add('<p class="small muted">Of the first segment of each design; its like segments differ only as the '
+                'temperatures along the line move the films.</p>')
+    q = units.display_unit_for([v for s in chosen for v in (s.heat_loss_W_per_m, s.heat_to_fluid_W_per_m)],
                                "power_per_length", system)
     rows = []
-    for s in r.resistances:
+    for s in chosen:
         table = heat_path.table_rows(s, system, with_unit=False)
         for j, (key, label, value, share) in enumerate(table):
             mark = f'<span style="color: {heat_path_style.part_colour(key)};">\u25a0</span> ' if key != "tracer" else ""
@@ -424,7 +622,7 @@ def _heat_path(doc: Body, r: Result, system: str) -> None:
             first = j == 0
             rows.append([
                 str(s.index + 1) if first else "",
-                (f"{esc(s.name)}<br><span class=\"diff\">total {esc(heat_path.resistance_text(s.total_K_m_per_W, system))}"
+                (f"{esc(shorten(s.name))}<br><span class=\"diff\">total {esc(heat_path.resistance_text(s.total_K_m_per_W, system))}"
                  "</span>" if first else ""),
                 text, esc(value), esc(share),
                 esc(units.format_value(s.heat_loss_W_per_m, "power_per_length", system, 3, with_unit=False,
@@ -453,16 +651,25 @@ def _checks(doc: Body, alt: Alternative, r: Result, system: str) -> None:
         doc.add('<p><span class="met">\u2713 No findings.</span> No check raised a warning or note for this alternative.</p>')
         return
     rows = []
-    for c in sorted(r.checks, key=check_sort_key):
+    ordered = sorted(r.checks, key=check_sort_key)
+    for c in ordered[:MAX_CHECK_ROWS]:
         word, colour = SEVERITY_WORDS.get(c.severity, (c.severity.upper(), INK))
         where = []
         if c.segment is not None and 0 <= c.segment < len(alt.segments):
-            where.append(esc(alt.segments[c.segment].name))
+            where.append(esc(shorten(alt.segments[c.segment].name)))
         if c.x_m is not None and math.isfinite(c.x_m):
             where.append(esc(fmt(c.x_m, "length", system)))
         rows.append([f'<span style="color: {colour}; font-weight: bold;">{word}</span>',
                      " at ".join(where) or "whole line", esc(units.check_message(c, system))])
     doc.table(["Severity", "Where", "Finding"], rows, widths=[11, 20, 69], font_pt=7.5)
+    if len(ordered) > MAX_CHECK_ROWS:
+        rest = ordered[MAX_CHECK_ROWS:]
+        counts = {}
+        for c in rest:
+            counts[c.severity] = counts.get(c.severity, 0) + 1
+        said = ", ".join(comparison.plural(n, sev, sev if sev == "info" else "") for sev, n in counts.items())
+        doc.add(f'<p class="small muted">… and {esc(comparison.plural(len(rest), "more finding"))} ({esc(said)}), none '
+                'worse than the last shown; <code>calorun solve</code> lists them all.</p>')
 
 
 def _methods_and_cautions(doc: Body, solved: Sequence[Result], date_text: str) -> None:

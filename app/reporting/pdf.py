@@ -27,6 +27,7 @@ from PySide6.QtGui import (
     QTextBlockFormat,
     QTextCursor,
     QTextDocument,
+    QTextOption,
 )
 
 from app.reporting.chart import Chart, draw_chart
@@ -150,7 +151,7 @@ class Body:
                 cuts = [0] + sorted(s for s in part.splits if 0 < s < len(part.rows)) + [len(part.rows)]
                 for a, b in zip(cuts[:-1], cuts[1:]):
                     self.table_map.append((part, a))
-                    body.append(self._table_html(part, a, b, page_break=a > 0))
+                    body.append(self._table_html(part, a, b, page_break=a > 0 or 0 in part.splits))
         return f"<html><head><style>{self.css}</style></head><body>{''.join(body)}</body></html>"
 
 
@@ -211,7 +212,10 @@ def find_break(doc, page_h: float, body: Body) -> bool:
                     header_rows = table.format().headerRowCount()
                     for row in range(header_rows, table.rows()):
                         if straddles(*row_span(table, row)):
-                            part.splits.add(first_row + row - header_rows)
+                            split = first_row + row - header_rows
+                            if split in part.splits:
+                                continue  # it starts a page already and still straddles: nothing more to do
+                            part.splits.add(split)  # 0: the whole table starts the next page
                             return True
             block = block.next()
             continue
@@ -290,14 +294,29 @@ def render_pdf(body: Body, path: Path, title: str, header_text: str, system: str
         doc.documentLayout().setPaintDevice(writer)  # before the page size, or text comes out tiny
         doc.setDefaultFont(font)
         doc.setDocumentMargin(0)
+        # a long word (a name without spaces, a path) breaks where it must rather than run off the page
+        option = QTextOption(doc.defaultTextOption())
+        option.setWrapMode(QTextOption.WrapMode.WrapAtWordBoundaryOrAnywhere)
+        doc.setDefaultTextOption(option)
         doc.setHtml(body.html())
         # Figures: an empty block of fixed line height holds the place; the chart
         # is painted as vector graphics over it once the pages are laid out.
+        # The placeholders are top-level paragraphs: one walk over the top level finds them all
+        # (QTextDocument.find per figure reads the whole document each time, tables included).
+        placeholders = {}
+        it = doc.rootFrame().begin()
+        while not it.atEnd():
+            block = it.currentBlock()
+            if block.isValid() and block.text().startswith("[[CALORUN-FIGURE-"):
+                placeholders[block.text()] = block
+            it += 1
         blocks = []
         for i, chart in enumerate(body.figures):
-            cursor = doc.find(f"[[CALORUN-FIGURE-{i}]]")
-            if cursor.isNull():
+            block = placeholders.get(f"[[CALORUN-FIGURE-{i}]]")
+            if block is None:
                 raise RuntimeError(f"report figure {i} placeholder not found")
+            cursor = QTextCursor(block)
+            cursor.movePosition(QTextCursor.MoveOperation.EndOfBlock, QTextCursor.MoveMode.KeepAnchor)
             cursor.removeSelectedText()
             bf = cursor.blockFormat()
             fig_h = min(width * chart.aspect, body_h * 0.95)
