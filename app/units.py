@@ -313,7 +313,9 @@ def format_value(value_si: float | None, quantity: str, system: UnitSystem, digi
     else:
         u = unit(quantity, system)
     v = u.from_si(value_si)
-    if quantity in _FIXED_DECIMALS:
+    if not math.isfinite(v):  # a finite value that overflows in the display unit (1e308 m in mm)
+        text = _power_of_ten(math.log10(abs(value_si)) + math.log10(u.scale), value_si < 0, digits)
+    elif quantity in _FIXED_DECIMALS:
         text = format_number(v, decimals=_FIXED_DECIMALS[quantity])
     elif quantity in _POSITIONS:
         text = format_number(v, decimals=1 if abs(v) >= 10 else 2)
@@ -342,6 +344,8 @@ def format_number(v: float, digits: int = 4, decimals: int | None = None, floor:
     if not math.isfinite(v):
         return "—"
     a = abs(v)
+    if a >= _PLAIN_UP_TO:
+        return _power_of_ten(math.log10(a), v < 0, digits)
     if floor is not None and 0 < a < floor:
         return "< " + _group(_trim(f"{floor:.{_MAX_DECIMALS}f}"))
     if decimals is None:
@@ -353,6 +357,21 @@ def format_number(v: float, digits: int = 4, decimals: int | None = None, floor:
     if float(text) == 0:
         return text if decimals else "0"  # no "−0.0"
     return (MINUS if v < 0 else "") + _group(text)
+
+
+_PLAIN_UP_TO = 1e15  # from here on a magnitude reads as a power of ten: 16+ digits say nothing to a reader
+_SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
+
+
+def _power_of_ten(log10_magnitude: float, negative: bool, digits: int = 4) -> str:
+    """``'1.7 × 10³⁰⁸'`` from a magnitude's base-10 logarithm: for magnitudes plain digits cannot
+    show (far beyond any line, or overflowing in the display unit). Never an "e" exponent."""
+    exponent = math.floor(log10_magnitude)
+    text = _trim(f"{10 ** (log10_magnitude - exponent):.{max(0, digits - 1)}f}")
+    if float(text) >= 10:  # the mantissa rounded up to 10
+        exponent += 1
+        text = "1"
+    return (MINUS if negative else "") + f"{text} × 10" + str(exponent).translate(_SUPERSCRIPT)
 
 
 def _group(text: str) -> str:
@@ -374,9 +393,13 @@ def format_exact(value_si: float, quantity: str, system: UnitSystem, digits: int
     """
     u = unit(quantity, system)
     v = u.from_si(float(value_si))
-    if abs(v) < 1e-12:
+    if abs(v) < 1e-12 and (u.offset or v == 0):  # round-off of an offset unit (°F) is nought
         v = 0.0
-    if v == 0:
+    tiny = not u.offset and value_si != 0 and abs(v) < 10.0 ** -_MAX_DECIMALS  # (an offset unit's never is)
+    if not math.isfinite(v) or abs(v) >= _PLAIN_UP_TO or tiny:
+        # quoted as entered, however far out: 1e308 m in inches overflows, 1e-300 m is not "0"
+        text = _power_of_ten(math.log10(abs(value_si)) + math.log10(u.scale), float(value_si) < 0, digits)
+    elif v == 0:
         text = "0"
     else:
         magnitude = math.floor(math.log10(abs(v)))

@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import html
 import math
+import sys
 from collections import OrderedDict
 from dataclasses import dataclass, replace
 from functools import lru_cache
@@ -101,6 +102,11 @@ def block_widths(lengths: list[float], available: float, minimum: float = MIN_BL
         return []
     if available <= n * minimum:
         return [float(minimum)] * n
+    # only the proportions matter: scaled by the longest, so no sum overflows (1e308 m + 1e308 m);
+    # a length that is not a positive number is drawn at the minimum
+    lengths = [min(v, sys.float_info.max) if v > 0 else 0.0 for v in lengths]  # (NaN > 0 is False)
+    longest = max(lengths)
+    lengths = [v / longest for v in lengths] if longest > 0 else lengths
     fixed: set[int] = set()
     while True:
         free = available - minimum * len(fixed)
@@ -347,6 +353,18 @@ class StripCanvas(QWidget):
         pix.setDevicePixelRatio(dpr)
         pix.fill(_colour(style.CANVAS_BG))
         p = QPainter(pix)
+        try:  # a painter left open on a pixmap that is then dropped takes the app down
+            self._paint_block(p, seg, content, width, h, state, severity, system, base, font_key)
+        finally:
+            p.end()
+        self._blocks[key] = pix
+        self._block_bytes += _bytes(pix)
+        while len(self._blocks) > 1 and (len(self._blocks) > BLOCK_CACHE_SIZE or self._block_bytes > BLOCK_CACHE_BYTES):
+            self._block_bytes -= _bytes(self._blocks.popitem(last=False)[1])
+        return pix
+
+    def _paint_block(self, p: QPainter, seg, content: tuple, width: float, h: int, state: str, severity: str,
+                     system: str, base: QFont, font_key: str) -> None:
         p.setRenderHint(QPainter.Antialiasing, True)
         p.translate(BLOCK_PAD, 0)
         r = QRectF(0, 4, width, h - 8)
@@ -373,12 +391,6 @@ class StripCanvas(QWidget):
             style.paint_severity_mark(p, QRectF(r.right() - 20, r.top() + 5, 14, 14), style.severity_style(severity))
         for cap in self._block_captions(seg, content, width, system, base, font_key, bool(severity)):
             self._draw_caption(p, cap)
-        p.end()
-        self._blocks[key] = pix
-        self._block_bytes += _bytes(pix)
-        while len(self._blocks) > 1 and (len(self._blocks) > BLOCK_CACHE_SIZE or self._block_bytes > BLOCK_CACHE_BYTES):
-            self._block_bytes -= _bytes(self._blocks.popitem(last=False)[1])
-        return pix
 
     def paintEvent(self, event) -> None:  # noqa: N802 (Qt name)
         # What is in view (the scroll area's viewport; all of it when grabbed) is kept as one picture
@@ -412,9 +424,11 @@ class StripCanvas(QWidget):
             pix = QPixmap(max(1, int(math.ceil(area.width() * dpr))), max(1, int(math.ceil(area.height() * dpr))))
             pix.setDevicePixelRatio(dpr)
             painter = QPainter(pix)
-            painter.translate(-area.left(), -area.top())
-            self._render(painter, findings, area=area, rects=rects, shown=shown)
-            painter.end()
+            try:
+                painter.translate(-area.left(), -area.top())
+                self._render(painter, findings, area=area, rects=rects, shown=shown)
+            finally:
+                painter.end()
             self._pixmap, self._pixmap_key = pix, picture_key
         p = QPainter(self)
         p.drawPixmap(area.topLeft(), self._pixmap)

@@ -48,8 +48,11 @@ def font_px(base: QFont, px: int, bold: bool = False) -> QFont:
 
 
 def insulation_band_px(total_thickness_m: float) -> float:
-    """Drawn insulation band thickness: grows with thickness, 4..18 px (saturates at 150 mm)."""
-    if total_thickness_m <= 0:
+    """Drawn insulation band thickness: grows with thickness, 4..18 px (saturates at 150 mm).
+
+    Capped whatever the thickness (1e308 m, or an infinite sum of layers) and 0 for anything that
+    is not a positive number: the drawing must stay on the canvas."""
+    if not total_thickness_m > 0:  # (NaN too)
         return 0.0
     return 4.0 + 14.0 * min(1.0, total_thickness_m / 0.15)
 
@@ -140,11 +143,13 @@ def _zigzag_pixmap(pen: QPen, amp: float, period: float, dpr: float) -> QPixmap:
         pix.setDevicePixelRatio(dpr)
         pix.fill(Qt.transparent)
         q = QPainter(pix)
-        q.setRenderHint(QPainter.Antialiasing, True)
-        q.setPen(pen)
-        q.setBrush(Qt.NoBrush)
-        q.drawPath(_zigzag_path(_ZIGZAG_PAD, _ZIGZAG_PAD + _ZIGZAG_LENGTH, h / 2, amp, period))
-        q.end()
+        try:  # a painter left open on a pixmap that is then dropped takes the app down
+            q.setRenderHint(QPainter.Antialiasing, True)
+            q.setPen(pen)
+            q.setBrush(Qt.NoBrush)
+            q.drawPath(_zigzag_path(_ZIGZAG_PAD, _ZIGZAG_PAD + _ZIGZAG_LENGTH, h / 2, amp, period))
+        finally:
+            q.end()
         _zigzag_pixmaps[key] = pix
     return pix
 
@@ -190,11 +195,13 @@ def _streamline_pixmap(painter: QPainter, length: float) -> tuple[QPixmap, float
         pix.setDevicePixelRatio(dpr)
         pix.fill(Qt.transparent)
         q = QPainter(pix)
-        q.setRenderHint(QPainter.Antialiasing, key[-1])
-        q.setPen(pen)
-        q.setBrush(brush)
-        _stroke_streamline(q, pad, h / 2, length)
-        q.end()
+        try:
+            q.setRenderHint(QPainter.Antialiasing, key[-1])
+            q.setPen(pen)
+            q.setBrush(brush)
+            _stroke_streamline(q, pad, h / 2, length)
+        finally:
+            q.end()
         _streamline_pixmaps[key] = pix
     return pix, pad, w, h, dpr
 
@@ -236,8 +243,16 @@ def paint_pipe(
     ``steam_tracer`` draws a steam tube tracer along the underside of the pipe, inside the
     insulation. Returns the half height of the outer extent (so callers can place things below it).
     """
-    x0, x1 = rect.left(), rect.right()
     painter.save()
+    try:  # the caller's painter comes back as it was, whatever happens here
+        return _paint_pipe(painter, rect, yc, model, insulation_px, heat_input, bore_half, compact, steam_tracer)
+    finally:
+        painter.restore()
+
+
+def _paint_pipe(painter: QPainter, rect: QRectF, yc: float, model: str, insulation_px: float, heat_input: bool,
+                bore_half: float, compact: bool, steam_tracer: bool) -> float:
+    x0, x1 = rect.left(), rect.right()
     painter.setRenderHint(QPainter.Antialiasing, True)
     ext, insulation_px, shell, outer = _layers(model, insulation_px, bore_half, steam_tracer, compact)
     tracer_px = _tracer_px(model, steam_tracer, compact)
@@ -325,7 +340,6 @@ def paint_pipe(
             painter.drawPixmap(QRectF(xs - pad, yc - outer - 7 - h / 2, w, h), pix, source)
             painter.drawPixmap(QRectF(xs + 10 - pad, yc + outer + 7 - h / 2, w, h), pix, source)
 
-    painter.restore()
     return outer + _MARKS_OUTSIDE.get(model, 0.0)
 
 

@@ -65,6 +65,16 @@ def _display(values, quantity: str, system: str) -> np.ndarray:
     return to_display(np.asarray(values, dtype=float), quantity, system)
 
 
+def _finite_span(*arrays) -> tuple[float, float]:
+    """(lowest, highest) of the finite values of ``arrays``; (nan, nan) when there are none. An axis
+    range is never taken from an infinity, and an all-NaN curve raises no warning."""
+    finite = [v[np.isfinite(v)] for v in (np.asarray(a, dtype=float) for a in arrays)]
+    finite = [v for v in finite if v.size]
+    if not finite:
+        return math.nan, math.nan
+    return min(float(v.min()) for v in finite), max(float(v.max()) for v in finite)
+
+
 class _PlainAxis(pg.AxisItem):
     """An axis whose tick labels are plain decimals, never exponent form ("2e-05", "1.2e+04")."""
 
@@ -645,17 +655,18 @@ class ProfilesPanel(QWidget):
         x_range = None
         if self._follow_x:
             lo, hi = float(x[0]), float(x[-1])
-            if new_system or not keeps(tvb.viewRange()[0], lo, hi, 0.0, FILL_SHARE["x"]):
+            if not (math.isfinite(lo) and math.isfinite(hi)):
+                pass  # no range from positions that are not numbers (nothing sensible to show)
+            elif new_system or not keeps(tvb.viewRange()[0], lo, hi, 0.0, FILL_SHARE["x"]):
                 x_range = position_range(lo, hi)
         temps = [data[k][1] for k in ("bulk", "inner_wall", "outer_surface")]
-        t_lo = min(float(np.nanmin(t)) for t in temps)
-        t_hi = max(float(np.nanmax(t)) for t in temps)
+        t_lo, t_hi = _finite_span(*temps)
         limits = self._limit_values()
         if limits:
             t_lo, t_hi = min(t_lo, *limits), max(t_hi, *limits)
         p = data["pressure"][1]
         for vb, plot, lo, hi, quantity in ((tvb, self.temperature_plot, t_lo, t_hi, "temperature"),
-                                           (pvb, self.pressure_plot, float(np.nanmin(p)), float(np.nanmax(p)), "pressure")):
+                                           (pvb, self.pressure_plot, *_finite_span(p), "pressure")):
             y_range = None
             smallest = minimum_span(quantity, system, (lo, hi))
             if self._follow_y[id(plot)] and math.isfinite(lo) and math.isfinite(hi):
@@ -721,7 +732,7 @@ class ProfilesPanel(QWidget):
             lo, hi = max(start, x0), min(end, x1)
             if hi <= lo:
                 continue
-            room = int((hi - lo) * px_per_unit) - 10
+            room = int(min((hi - lo) * px_per_unit, 1e6)) - 10  # (a deep zoom: no int of a huge float)
             # an elided name keeps at least two letters; the full name is the axis's tooltip
             text = fm.elidedText(name, Qt.ElideRight, room) if room > 0 else ""
             if text and len(text.rstrip("…")) >= min(2, len(name)) and fm.horizontalAdvance(text) <= room:
@@ -905,6 +916,11 @@ class ProfilesPanel(QWidget):
             f"{sw('pressure')} pressure {format_value(prof.pressure_Pa[i], 'pressure', system)}",
             f"Re {format_value(prof.reynolds[i], 'dimensionless', system, digits=3)}",
             f"velocity {format_value(prof.velocity_m_per_s[i], 'velocity', system, digits=3)}",
+        ]
+        mach = prof.mach_number
+        if mach is not None and float(np.max(mach)) >= 0.1:  # gas lines fast enough for Mach to matter
+            parts.append(f"Mach {format_value(mach[i], 'dimensionless', system, digits=2)}")
+        parts += [
             f"h {format_value(prof.inside_coefficient_W_per_m2K[i], 'film_coefficient', system, digits=3)}",
             f"heat flux {format_value(prof.heat_flux_W_per_m2[i], 'heat_flux', system, digits=3)}",
         ]

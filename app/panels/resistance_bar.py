@@ -46,12 +46,16 @@ class ResistanceBar(QWidget):
 
     def block_rects(self) -> list[QRectF]:
         """Each block's rectangle, left to right, widths in proportion to the shares."""
-        total = sum(p.share_percent for p in self.parts) or 1.0
+        # a share that is not a finite number (a resistance out of all range) gets no width: a NaN
+        # width reaching the painter is undefined in Qt's integer geometry
+        shares = [p.share_percent if math.isfinite(p.share_percent) and p.share_percent > 0 else 0.0
+                  for p in self.parts]
+        total = sum(shares) or 1.0
         width = self.width() - 1.0
         x = 0.5
         out = []
-        for p in self.parts:
-            w = width * p.share_percent / total
+        for share in shares:
+            w = width * share / total
             out.append(QRectF(x, 0.5, w, _BAR_HEIGHT))
             x += w
         return out

@@ -49,6 +49,10 @@ def format_for_edit(value_si: Optional[float], quantity: str, system: str) -> st
     if value_si is None or not math.isfinite(value_si):
         return ""
     v = units.to_display(value_si, quantity, system)
+    if not math.isfinite(v):  # overflows in the display unit (1e308 m in mm): the exponent, worked out
+        exponent = math.log10(abs(value_si)) + math.log10(units.unit(quantity, system).scale)
+        whole = math.floor(exponent)
+        return ("-" if value_si < 0 else "") + f"{10 ** (exponent - whole):.5g}e{whole}"
     if abs(v) < 1e-12:
         v = 0.0
     return f"{v:.5g}"
