@@ -294,6 +294,9 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
                 # the enthalpy balance to round-off, not just to the iteration tolerance
                 pt = fluid.props(np.clip(T_true, t_lo, t_hi), p)
                 T = T_true + (h_target - pt.h) / pt.cp
+                T = _exact_where_newton_misses(fluid, T, h_target, p, t_lo, t_hi)
+                if p.max() > p_in:  # downhill the pressure rises: the table's enthalpy must still rise with T
+                    _check_liquid_model(fluid, float(p.max()), alt.name, "at the highest line pressure,")
                 break
             last_change = change
         rho = 0.5 * (pn.rho[:-1] + pn.rho[1:])
@@ -454,6 +457,34 @@ def _wall_property_factor(fluid, Re, Pr, mu, T_nodes, T_wall, p_nodes, t_lo, t_h
     pr_wall = pw.cp * pw.mu / pw.k
     groups = {"mu_ratio": mu / pw.mu, "Pr_ratio": Pr / pr_wall}
     return correlations.wall_property_factor(Re, Pr, pr_wall, mu, pw.mu, T_bulk, T_wall, False), groups
+
+
+def _exact_where_newton_misses(fluid, T, h_target, p, t_lo, t_hi):
+    """The node temperatures whose enthalpy is the balance's, to round-off.
+
+    The last Newton step (with cp as the slope) leaves h(T, p) a fraction of a J/kg from the balance
+    where cp or the density of a table fluid changes steeply within a step (found by the solver fuzz:
+    residuals of 0.1–5 J/kg on an adiabatic line). There, Newton steps with the slope of h itself
+    (central difference) continue from the march's own temperature: a local root, on the branch the
+    march followed (a global inverse could land on another temperature with the same enthalpy).
+    """
+    inside = (T >= t_lo) & (T <= t_hi)
+    if not inside.all():
+        return T  # reported as leaving the fluid data's range by the caller
+    tol = 1e-11 * np.maximum(np.abs(h_target), 1e4)
+    T = T.copy()
+    for _ in range(20):
+        miss = np.abs(fluid.enthalpy(T, p) - h_target) > tol
+        if not miss.any():
+            break
+        t, pm, ht = T[miss], p[miss], h_target[miss]
+        eps = np.maximum(1e-4, 1e-7 * t)
+        lo, hi = np.maximum(t - eps, t_lo), np.minimum(t + eps, t_hi)
+        slope = (fluid.enthalpy(hi, pm) - fluid.enthalpy(lo, pm)) / (hi - lo)
+        if not np.all(slope > 0.0):
+            break  # h does not rise with T here: the checks and the liquid-model test judge such a fluid
+        T[miss] = np.clip(t + (ht - fluid.enthalpy(t, pm)) / slope, t_lo, t_hi)
+    return T
 
 
 def _surface_temperature(t_heated, t_inf, r_ins, d_out, h_film):
@@ -761,13 +792,14 @@ def _check_feed_phase(alt: Alternative, fluid) -> None:
             f"the feed's phase to {phase}.", alternative=alt.name)
 
 
-def _check_liquid_model(fluid, p_in: float, alt_name: str) -> None:
-    """Refuse a liquid table whose enthalpy model does not rise with temperature at the feed pressure."""
+def _check_liquid_model(fluid, p_in: float, alt_name: str, where: str = "at the feed pressure of") -> None:
+    """Refuse a liquid table whose enthalpy model does not rise with temperature at the feed pressure (or
+    at the highest pressure along the line, ``where="at the highest line pressure,"``)."""
     falls = getattr(fluid, "enthalpy_falls_at", None)
     t_bad = falls(p_in) if falls is not None else None
     if t_bad is not None:
         raise SolverError(
-            f"at the feed pressure of {p_in / 1e5:.4g} bar(a) the enthalpy of {fluid.label} would fall with "
+            f"{where} {p_in / 1e5:.4g} bar(a) the enthalpy of {fluid.label} would fall with "
             f"temperature above {t_bad - 273.15:.1f} °C (its density rises with temperature too steeply for "
             "a liquid at this pressure), so no temperature can be given to a heat balance: check the density "
             "column of the fluid table or the feed pressure",

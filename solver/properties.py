@@ -273,10 +273,16 @@ class _LiquidTableModel(FluidModel):
         Where the density rises with temperature steeply enough, p/rho falls faster than u rises at high
         pressure: the liquid model then has no single temperature for an enthalpy, and cannot be used.
         """
-        T = self._T[(self._T >= self.T_min_K) & (self._T <= self.T_max_K)]  # e.g. not below a freezing point
+        knots = self._T[(self._T >= self.T_min_K) & (self._T <= self.T_max_K)]  # e.g. not below a freezing point
+        # h can dip inside a table interval while rising from knot to knot (found by the solver fuzz: a
+        # minimum between two rows at 374 bar), so each interval is sampled, not only its ends
+        share = np.linspace(0.0, 1.0, 33)[:-1]
+        T = np.append((knots[:-1, None] + np.diff(knots)[:, None] * share).ravel(), knots[-1:])
         h = self.enthalpy(T, np.full(T.shape, float(p)))
         bad = np.flatnonzero(np.diff(h) <= 0.0)
-        return float(T[bad[0]]) if bad.size else None
+        if not bad.size:
+            return None
+        return float(knots[np.searchsorted(knots, T[bad[0]], side="right") - 1])
 
     def _bisect(self, h, p):
         """T with enthalpy(T, p) = h by bisection over the table's range (h rising with T), to round-off."""
@@ -515,7 +521,7 @@ class PureFluidModel(FluidModel):
         """Fill the chunks covering cells (i, kk) and (i+1, kk+1)."""
         ci0, ci1 = int(i.min()) // _CHUNK_T, (int(i.max()) + 1) // _CHUNK_T
         ck0, ck1 = int(kk.min()) // _CHUNK_P, (int(kk.max()) + 1) // _CHUNK_P
-        if ci0 == ci1 == ck0 == ck1 and self._filled[ci0, ck0]:
+        if ci0 == ci1 and ck0 == ck1 and self._filled[ci0, ck0]:
             return
         ci1 = min(ci1, self._filled.shape[0] - 1)
         ck1 = min(ck1, self._filled.shape[1] - 1)
@@ -561,9 +567,16 @@ class PureFluidModel(FluidModel):
         kk = np.floor(y).astype(np.intp)
         np.minimum(kk, self._nP - 2, out=kk)
         wp = y - kk
-        ci0, ci1 = int(t_lo / _DT - self._i0) // _CHUNK_T, (int(t_hi / _DT - self._i0) + 1) // _CHUNK_T
-        ck0 = int((math.log(p_lo) - self._lnp0) / self._dlnp) // _CHUNK_P
-        ck1 = (int((math.log(p_hi) - self._lnp0) / self._dlnp) + 1) // _CHUNK_P
+        # the chunks of the knots the look-up reads: of the cells (i, kk) as clipped above, so a state on the
+        # table's top edge (p = 100 MPa, i.e. kk = nP - 2 with wp = 1) also fills the knots below the edge. They
+        # carry a weight of 1 - wp, round-off but not zero: left unfilled (zeros) on a first call, they made
+        # the same state give different last bits before and after another look-up filled them (solver fuzz).
+        i_lo = min(int(t_lo / _DT - self._i0), self._nT - 2)
+        i_hi = min(int(t_hi / _DT - self._i0), self._nT - 2)
+        k_lo = min(int((math.log(p_lo) - self._lnp0) / self._dlnp), self._nP - 2)
+        k_hi = min(int((math.log(p_hi) - self._lnp0) / self._dlnp), self._nP - 2)
+        ci0, ci1 = i_lo // _CHUNK_T, (i_hi + 1) // _CHUNK_T
+        ck0, ck1 = k_lo // _CHUNK_P, (k_hi + 1) // _CHUNK_P
         ci1 = min(ci1, self._filled.shape[0] - 1)
         ck1 = min(ck1, self._filled.shape[1] - 1)
         if not (ci0 == ci1 and ck0 == ck1 and self._filled[ci0, ck0]) and \
