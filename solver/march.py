@@ -131,6 +131,10 @@ def _property_error(alt: Alternative, line: LineGrid | None, exc: PropertyRangeE
     message = (f"the fluid reaches a state its property data do not cover"
                f"{' (' + ', '.join(state) + ')' if state else ''}: {exc.fluid}, {reason}.")
     err = SolverError(message, alternative=alt.name)
+    feed = alt.feed
+    if p == feed.inlet_pressure_Pa and (t is None or not math.isfinite(t) or t == feed.inlet_temperature_K):
+        # the feed itself (checked before any march): that is where it is
+        return SolverError(f"at the inlet, {message}", alternative=alt.name)
     if line is not None and T_nodes is not None and p is not None and math.isfinite(p):
         hit = np.flatnonzero(p_nodes == p)
         if t is not None and hit.size > 1:

@@ -332,24 +332,38 @@ class SolutionModel(_LiquidTableModel):
             knots = np.concatenate([[lo], knots])
         if knots[-1] < tmax:
             knots = np.concatenate([knots, [tmax]])
-        cols = np.empty((len(knots), 5))
+        cols = np.full((len(knots), 5), np.nan)
         p_ref = 1e7  # INCOMP rho, cp, mu, k, u do not depend on p; a high p clears the psat check (MITSW)
         for n, t in enumerate(knots):
             try:
                 st.update(CP.PT_INPUTS, p_ref, float(t))
                 cols[n] = st.rhomass(), st.cpmass(), st.viscosity(), st.conductivity(), st.umass()
-            except ValueError as exc:
-                raise PropertyRangeError(self.label, f"CoolProp cannot evaluate the solution ({exc})", float(t), p_ref)
-        if not np.all(np.isfinite(cols)) or np.any(cols[:, :4] <= 0):
-            raise PropertyRangeError(self.label, "CoolProp returned invalid properties for this solution")
+            except ValueError:
+                pass  # no data at this knot: outside the valid span below
+        # The fits can fail inside their stated range: magnesium chloride at 30 % gives a negative
+        # conductivity below -86 °C (found by the app fuzz). The usable range is the longest run of knots
+        # with valid properties; below or above it a state is refused like one beyond the data.
+        valid = np.all(np.isfinite(cols), axis=1) & np.all(cols[:, :4] > 0.0, axis=1)
+        if not valid.any():
+            raise PropertyRangeError(self.label, "the solution data give no valid properties at any temperature")
+        edges = np.flatnonzero(np.diff(np.concatenate([[0], valid.astype(np.int8), [0]])))
+        starts, stops = edges[0::2], edges[1::2]
+        longest = int(np.argmax(stops - starts))
+        span = slice(int(starts[longest]), int(stops[longest]))
+        trimmed_low = span.start > 0
+        if span.stop - span.start < 2:
+            raise PropertyRangeError(self.label, "the solution data give valid properties at one temperature only")
+        knots, cols = knots[span], cols[span]
+        if trimmed_low:
+            self._freeze = None  # the data stop above the stated freezing point: that edge is the data's
         self._set_knots(knots, cols[:, 0], cols[:, 1], cols[:, 2], cols[:, 3])
         # anchor h to CoolProp's own h at the first knot and 1 atm
         st.update(CP.PT_INPUTS, 101325.0, float(knots[0]))
         self._h_offset = st.hmass() - 101325.0 / st.rhomass()
         self.T_min_K, self.T_max_K = float(knots[0]), float(knots[-1])
         self._why_low = ("below the freezing point of the solution" if self._freeze is not None
-                         else "below the lowest temperature of the CoolProp solution data")
-        self._why_high = "above the highest temperature of the CoolProp solution data"
+                         else "below the lowest temperature of the solution data")
+        self._why_high = "above the highest temperature of the solution data"
 
     def saturation_temperature(self, p) -> np.ndarray:
         """NaN: CoolProp's INCOMP library has no boiling point for solutions. The
@@ -537,12 +551,13 @@ class PureFluidModel(FluidModel):
     def _check(self, T, p):
         self._check_finite(T, p)
         self._check_T_range(T, p, self.T_min_K, self.T_max_K,
-                            "below the lowest temperature of CoolProp's equation of state",
+                            "below the lowest temperature of the fluid's equation of state",
                             f"above the highest temperature covered ({self.T_max_K:g} K)")
         if p.min() < self.p_min_Pa or p.max() > self.p_max_Pa:
             bad = (p < self.p_min_Pa) | (p > self.p_max_Pa)
             j = int(np.flatnonzero(bad.ravel())[0])
-            raise PropertyRangeError(self.label, f"pressure outside {self.p_min_Pa:g} to {self.p_max_Pa:g} Pa",
+            raise PropertyRangeError(self.label, f"pressure outside the data's range of {self.p_min_Pa / 1e5:g} to "
+                                                 f"{self.p_max_Pa / 1e5:g} bar(a)",
                                      float(T.ravel()[j]), float(p.ravel()[j]))
 
     def _bad_cells(self, i, kk):
