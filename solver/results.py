@@ -54,11 +54,15 @@ ASSUMPTIONS: tuple[str, ...] = (
     "check reports boiling, flashing or freezing, the results beyond that point are not valid.",
     "No axial heat conduction in the fluid or the wall.",
     "Fluid properties from CoolProp (pure fluids, aqueous solutions) or from the user's table, "
-    "evaluated locally along the line at the bulk temperature; no wall-viscosity correction; table "
-    "data are not extrapolated.",
-    "Potential energy is in the energy balance; kinetic energy is neglected. Friction heats the fluid "
+    "evaluated locally along the line at the bulk temperature; table data are not extrapolated. The inside "
+    "coefficient carries the property-ratio correction for the wall temperature (viscosity or Prandtl "
+    "ratio for liquids, temperature ratio for gases).",
+    "The energy balance carries enthalpy, kinetic and potential energy (h + v²/2 + g·z): a fast gas cools as it "
+    "accelerates. Friction heats the fluid "
     "(enthalpy includes flow work), so an adiabatic liquid line warms slightly.",
-    "Hydrodynamic and thermal entry lengths are counted from the line inlet.",
+    "Entry lengths start at the line inlet (or the flow arrives developed, as the feed says); a change "
+    "of bore restarts the hydrodynamic and thermal entry, a change of the wall's heating or surroundings "
+    "the thermal entry only.",
     "Heat input (tracing) is uniform around the pipe and along each segment and enters at the outer "
     "surface of the pipe wall, under the insulation; local hot spots at a tracer's contact line "
     "are not modelled.",
