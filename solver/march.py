@@ -590,7 +590,8 @@ def _linear_recurrence(decay: np.ndarray, gain: np.ndarray, start: float) -> np.
     """
     log_p = np.empty(decay.size + 1)
     log_p[0] = 0.0
-    np.cumsum(np.log(decay), out=log_p[1:])
+    with np.errstate(divide="ignore"):  # decay underflows to 0 past NTU 745: -inf sends it to the loop below
+        np.cumsum(np.log(decay), out=log_p[1:])
     if log_p[-1] > -600.0:
         inv = np.exp(-log_p[1:])
         acc = np.empty(decay.size + 1)

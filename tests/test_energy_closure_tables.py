@@ -83,3 +83,19 @@ def test_table_whose_enthalpy_dips_between_two_rows_is_refused():
     assert model.enthalpy_falls_at(3.746e7) == pytest.approx(415.67)
     with pytest.raises(SolverError, match="density column"):
         solve(_adiabatic_traced(fluid))
+
+
+def test_a_line_that_reaches_its_surroundings_in_one_cell_warns_nothing():
+    # NTU of some million per cell (1 mg/s through a bare pipe): exp(-NTU) underflows to 0, which is right
+    # (the fluid leaves the cell at the surroundings' temperature); found by the app fuzz as a stray
+    # "divide by zero in log" warning. Closed form: T_out = T_air for NTU -> infinity.
+    import warnings
+    from solver.model import PureFluid, StillAir
+    alt = Alternative(name="Trickle", fluid=PureFluid(name="Water"),
+                      feed=Feed(inlet_temperature_K=330.0, inlet_pressure_Pa=3e5, mass_flow_kg_per_s=1e-6),
+                      segments=[Segment(name="Bare", length_m=100.0, pipe=Pipe(nps="2", schedule="40"),
+                                        surroundings=StillAir(temperature_K=290.0))])
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        result = solve(alt, cells_per_segment=1)
+    assert result.outlet_temperature_K == pytest.approx(290.0, abs=1e-6)
