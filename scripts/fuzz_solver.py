@@ -63,7 +63,7 @@ JARGON = [
 ]
 
 
-def message_problems(message: str, alternative_name: str) -> list[str]:
+def message_problems(message: str, alternative_name: str, names: tuple[str, ...] = ()) -> list[str]:
     """What is wrong with a refusal's message, for a user: empty when it is located and plain.
 
     Located: it names the alternative; where it concerns a segment (a field path ``segments[i]`` or
@@ -79,8 +79,13 @@ def message_problems(message: str, alternative_name: str) -> list[str]:
         problems.append("concerns a segment but does not name it")
     if "property out of range" in message and not names_segment and "inlet" not in message:
         problems.append("a state along the line without its segment")
+    # the user's own names (quoted) may hold anything, e.g. a segment called 'Infinity': judge the rest
+    words = re.sub(r"'(?:[^'\\]|\\.)*'|\"(?:[^\"\\]|\\.)*\"", "'…'", message)
+    for name in sorted(names, key=len, reverse=True):  # names shown unquoted (a table fluid's)
+        if name:
+            words = words.replace(name, "…")
     for pattern, what in JARGON:
-        if pattern.search(message):
+        if pattern.search(words):
             problems.append(what)
     return problems
 
@@ -120,22 +125,32 @@ def nan_problems(result) -> list[str]:
 #: the cells next to the saturation line (properties.py), 1e-3 W for lines with no heat flow at all.
 ENERGY_REL_TOL = 1e-6
 ENERGY_ABS_TOL_W = 1e-3
+ENTHALPY_MATCH = 1e-11  # relative: how closely the march matches h(T_out, p_out) to the balance
 
 
-def energy_problems(result) -> list[str]:
+def energy_problems(result, alt=None) -> list[str]:
     scale = max(abs(result.duty_W), abs(result.heat_input_W), abs(result.heat_loss_W),
                 abs(result.heat_input_tracing_W), abs(result.heat_input_media_W))
     residual = result.energy_balance_residual_W
     if not math.isfinite(residual):
         return [f"energy-balance residual is {residual}"]
-    if abs(residual) > ENERGY_REL_TOL * scale + ENERGY_ABS_TOL_W:
+    roundoff = 0.0
+    if alt is not None:
+        # the outlet temperature matches the enthalpy balance to ENTHALPY_MATCH of h (solver.march
+        # _exact_where_newton_misses): with 13 t/s of a liquid at 3e5 J/kg that is some mW of 4 GW of
+        # enthalpy flow, round-off however small the heat flows are (found by the fuzz, seed 20261203)
+        from solver.properties import fluid_model
+        h_in = float(fluid_model(alt.fluid).enthalpy([alt.feed.inlet_temperature_K], [alt.feed.inlet_pressure_Pa])[0])
+        roundoff = ENTHALPY_MATCH * result.mass_flow_kg_per_s * max(abs(h_in), 1e4)
+    if abs(residual) > ENERGY_REL_TOL * scale + ENERGY_ABS_TOL_W + roundoff:
         return [f"energy-balance residual {residual:.6g} W against heat flows of {scale:.6g} W"]
     return []
 
 
-def result_signature(result) -> str:
+def result_signature(result, design_dict: dict | None = None) -> str:
     """A digest of every number and word a solve returns: equal digests = bit-identical results."""
     h = hashlib.sha256()
+    h.update(json.dumps(design_dict, sort_keys=True, default=repr).encode())
     for key, value in sorted(result.key_figures().items()):
         h.update(key.encode())
         h.update(np.float64(value).tobytes())
@@ -163,13 +178,15 @@ class Outcome:
     problems: dict = field(default_factory=dict)  # kind -> list of texts
 
 
-def solve_alternative(alt) -> Outcome:
+def solve_alternative(alt, design=None) -> Outcome:
+    """Solve one alternative (with the project's design cases: worst and hot case, tracing need, hold time)."""
     try:
-        result = solve(alt)
+        result = solve(alt, design=design)
+        design_dict = result.design.to_dict() if result.design is not None else None  # the hold time too
     except CalorunError as exc:
         msg = str(exc)
         out = Outcome(alt.name, "refused", f"{type(exc).__name__}: {msg}", msg)
-        bad = message_problems(msg, alt.name)
+        bad = message_problems(msg, alt.name, (getattr(alt.fluid, "name", ""),))
         if bad:
             out.problems["message"] = bad
         return out
@@ -178,18 +195,35 @@ def solve_alternative(alt) -> Outcome:
 
         return Outcome(alt.name, "crash", f"{type(exc).__name__}: {exc}", traceback.format_exc(),
                        {"crash": [f"{type(exc).__name__}: {exc}"]})
-    out = Outcome(alt.name, "solved", result_signature(result))
+    out = Outcome(alt.name, "solved", result_signature(result, design_dict))
     nan = nan_problems(result)
     if nan:
         out.problems["nan"] = nan
-    energy = energy_problems(result)
+    energy = energy_problems(result, alt)
     if energy:
         out.problems["energy"] = energy
+    words = design_word_problems(design_dict)
+    if words:
+        out.problems["message"] = words
     return out
 
 
+def design_word_problems(design_dict: dict | None) -> list[str]:
+    """Jargon in the sentences the design cases hand to a user (notes, the worst case's refusal, hold-time warnings)."""
+    if not design_dict:
+        return []
+    texts = [design_dict.get("worst_case_error") or "", *design_dict.get("notes", [])]
+    texts += (design_dict.get("hold_time") or {}).get("warnings", [])
+    bad = []
+    for text in texts:
+        for pattern, why in JARGON:
+            if isinstance(text, str) and pattern.search(text):
+                bad.append(f"{why} in: {text[:160]}")
+    return bad
+
+
 def solve_project(project: Project) -> list[Outcome]:
-    return [solve_alternative(alt) for alt in project.alternatives]
+    return [solve_alternative(alt, project.design_cases) for alt in project.alternatives]
 
 
 def solve_dicts(dicts: list[dict]) -> list[list[tuple[str, str]]]:

@@ -6,7 +6,11 @@ Plain data plus the look-ups the solver needs:
   physics uses (bore, outside diameter, wall, roughness, wall conductivity).
 - ``nps_sizes`` / ``schedules_for`` list what the pipe table holds, for the GUI.
 - ``PIPE_MATERIALS`` / ``INSULATION_MATERIALS`` hold generic materials with the
-  source of each value.
+  source of each value; each insulation material has a constant k (at about 50 °C mean) and a
+  table of k against mean temperature from its material specification (used by
+  ``solver.insulation`` where a layer gives no conductivity).
+- ``JACKETING`` / ``jacketing_choices`` list the usual jacketing finishes with their surface
+  emissivity, for the surroundings' emissivity.
 
 Pipe dimensions are those of ASME B36.10M (welded and seamless wrought steel
 pipe) and, for the "S" schedules 5S, 10S, 40S and 80S, ASME B36.19M (stainless
@@ -282,11 +286,29 @@ class PipeMaterial:
 
 @dataclass(frozen=True)
 class InsulationMaterial:
-    """A generic insulation material; conductivity at about 50 °C mean temperature [W/(m·K)]."""
+    """A generic insulation material.
+
+    conductivity_W_per_mK : the constant conductivity at about 50 °C mean [W/(m·K)]: the value an editor
+        offers when the user wants a constant k (and what every layer used before k(T) existed)
+    conductivity_table : ((mean temperature [K], maximum conductivity [W/(m·K)]), ...), rising mean
+        temperature: the most the named material specification allows at each mean temperature
+    use_range_K : (lowest, highest) face temperature the specification (or common practice, where it
+        names no limit) rates the material for; k(T) is extrapolated linearly beyond the table up to these
+        limits and no further, and a solved layer whose face leaves them is refused (solver.insulation)
+    table_source : the specification, type and grade the table is from, and whether from memory
+    """
 
     label: str
     conductivity_W_per_mK: float
     source: str
+    conductivity_table: tuple[tuple[float, float], ...] = ()
+    use_range_K: tuple[float, float] = (0.0, 0.0)
+    table_source: str = ""
+
+
+def _table(*points_degc_w: tuple[float, float]) -> tuple[tuple[float, float], ...]:
+    # written in °C mean temperature as the specifications tabulate them (converted from their °F columns)
+    return tuple((t + 273.15, k) for t, k in points_degc_w)
 
 
 _MOODY = "roughness: Moody, L.F. (1944) 'Friction factors for pipe flow', Trans. ASME 66, 671-684"
@@ -348,41 +370,131 @@ _MATERIAL_ALIASES = {
 
 _TYPICAL = "typical value, check the manufacturer's data"
 
+_FROM_MEMORY = ("from memory: the specification's table is not at hand; values converted from its "
+                "Btu·in/(h·ft²·°F) column (x 0.1442) and rounded")
+
 INSULATION_MATERIALS: dict[str, InsulationMaterial] = {
     "mineral wool": InsulationMaterial(
         "Mineral wool (pipe section)", 0.040,
         f"{_TYPICAL}; about 0.037-0.042 W/(m·K) at 50 °C mean for pipe sections to ASTM C547 / "
         "EN 14303 (from memory)",
+        _table((38, 0.036), (93, 0.042), (149, 0.050), (204, 0.060), (260, 0.071)),
+        (223.15, 727.15),
+        f"ASTM C547 mineral fiber pipe insulation, Type I Grade A (molded, for use to 454 °C); {_FROM_MEMORY}. "
+        "C547 names no lowest temperature (sub-ambient use with a vapour retarder): -50 °C is common practice",
     ),
     "calcium silicate": InsulationMaterial(
         "Calcium silicate", 0.055,
         f"{_TYPICAL}; about 0.050-0.058 W/(m·K) at 50 °C mean, ASTM C533 class material "
         "(from memory)",
+        _table((38, 0.059), (93, 0.065), (149, 0.072), (204, 0.079), (260, 0.086), (316, 0.093), (371, 0.101)),
+        (223.15, 922.15),
+        f"ASTM C533 calcium silicate block and pipe insulation, Type I (for use to 649 °C); {_FROM_MEMORY}. "
+        "C533 names no lowest temperature (a hot-service material): -50 °C is common practice",
     ),
     "cellular glass": InsulationMaterial(
         "Cellular glass", 0.045,
         f"{_TYPICAL}; about 0.042-0.048 W/(m·K) at 50 °C mean, ASTM C552 class material (from memory)",
+        _table((-73, 0.032), (-18, 0.037), (24, 0.042), (93, 0.049), (149, 0.056), (204, 0.064), (260, 0.073)),
+        (5.15, 700.15),
+        f"ASTM C552 cellular glass thermal insulation, Grade 6 (formerly Type II, pipe and tubing; for use "
+        f"from -268 °C to 427 °C); {_FROM_MEMORY}",
     ),
     "polyurethane foam": InsulationMaterial(
         "Polyurethane / PIR rigid foam", 0.027,
         f"{_TYPICAL}; aged value about 0.025-0.030 W/(m·K) at 50 °C mean (from memory)",
+        _table((-73, 0.023), (-18, 0.026), (24, 0.027), (66, 0.029), (93, 0.031)),
+        (90.15, 422.15),
+        f"ASTM C591 unfaced preformed rigid cellular polyisocyanurate, Type IV (aged values; for use from "
+        f"-183 °C to 149 °C); {_FROM_MEMORY}. Rigid polyurethane pipe sections are taken alike",
     ),
     "flexible elastomeric foam": InsulationMaterial(
         "Flexible elastomeric foam", 0.038,
         f"{_TYPICAL}; about 0.033-0.036 W/(m·K) at 0 °C rising to about 0.038-0.040 at 50 °C "
         "mean, ASTM C534 class material (from memory); common practice up to about 105 °C",
+        _table((-29, 0.036), (0, 0.038), (24, 0.040), (66, 0.043), (93, 0.045)),
+        (90.15, 378.15),
+        f"ASTM C534 preformed flexible elastomeric cellular insulation, Type I (tubular) Grade 1 (for use "
+        f"from -183 °C to 105 °C); {_FROM_MEMORY}",
     ),
     "perlite": InsulationMaterial(
         "Expanded perlite", 0.060,
         f"{_TYPICAL}; about 0.055-0.065 W/(m·K) at 50 °C mean, ASTM C610 class material "
         "(from memory)",
+        _table((38, 0.062), (93, 0.068), (149, 0.075), (204, 0.082), (260, 0.089), (316, 0.096), (371, 0.104)),
+        (223.15, 922.15),
+        f"ASTM C610 molded expanded perlite block and pipe insulation (for use to 649 °C); {_FROM_MEMORY}. "
+        "C610 names no lowest temperature (a hot-service material): -50 °C is common practice",
     ),
     "aerogel blanket": InsulationMaterial(
         "Aerogel blanket", 0.016,
         f"{_TYPICAL}; about 0.015-0.018 W/(m·K) at 50 °C mean, ASTM C1728 class material "
         "(from memory)",
+        _table((38, 0.021), (93, 0.024), (149, 0.027), (204, 0.032), (260, 0.037), (316, 0.043), (371, 0.050)),
+        (233.15, 923.15),
+        f"ASTM C1728 flexible aerogel insulation, Type III Grade 1A (high temperature, for use to 650 °C); "
+        f"{_FROM_MEMORY}. The lowest temperature -40 °C is from memory; cryogenic aerogel blankets are "
+        "another type: give such a layer its own conductivity",
     ),
 }
+
+_INSULATION_ALIASES = {
+    "rock wool": "mineral wool", "stone wool": "mineral wool", "mineral fiber": "mineral wool",
+    "mineral fibre": "mineral wool", "glass wool": "mineral wool",
+    "calsil": "calcium silicate", "cal-sil": "calcium silicate",
+    "foam glass": "cellular glass", "foamglass": "cellular glass",
+    "pur foam": "polyurethane foam", "pir foam": "polyurethane foam", "pur": "polyurethane foam",
+    "pir": "polyurethane foam", "polyisocyanurate": "polyurethane foam", "polyurethane": "polyurethane foam",
+    "elastomeric foam": "flexible elastomeric foam", "elastomeric": "flexible elastomeric foam",
+    "expanded perlite": "perlite", "aerogel": "aerogel blanket",
+}
+
+
+def insulation_key(name: str) -> Optional[str]:
+    """The catalogue key of an insulation material named ``name`` (case and spacing ignored; common
+    other names such as "rock wool" or "foam glass" accepted), or None when the catalogue has none."""
+    text = " ".join(str(name).strip().split()).lower()
+    for key in INSULATION_MATERIALS:
+        if key.lower() == text:
+            return key
+    return _INSULATION_ALIASES.get(text)
+
+
+# --------------------------------------------------------------------------- jacketing
+
+
+@dataclass(frozen=True)
+class Jacketing:
+    """A jacketing (cladding) finish over the insulation, by the thermal emissivity of its outer surface.
+
+    The emissivity goes to the surroundings' ``emissivity`` (still air, wind): a bright metal jacket
+    radiates little, so its surface runs hotter on a hot line than a painted or plastic one.
+    """
+
+    label: str
+    emissivity: float
+    source: str
+
+
+_EMITTANCE_TABLES = ("the surface emittance tables of the insulation chapters of the ASHRAE Handbook - "
+                     "Fundamentals and the appendix of ASTM C680 (from memory)")
+
+JACKETING: dict[str, Jacketing] = {
+    "aluminium_new": Jacketing("Aluminium, new (bright)", 0.05, f"typical value; {_EMITTANCE_TABLES}"),
+    "aluminium_oxidised": Jacketing("Aluminium, oxidised / in service", 0.10, f"typical value; {_EMITTANCE_TABLES}"),
+    "stainless_new": Jacketing("Stainless steel, new (clean)", 0.15, f"typical value; {_EMITTANCE_TABLES}"),
+    "stainless_dull": Jacketing("Stainless steel, dull / in service", 0.30, f"typical value; {_EMITTANCE_TABLES}"),
+    "galvanised_new": Jacketing("Galvanised steel, new", 0.13, f"typical value; {_EMITTANCE_TABLES}"),
+    "galvanised_weathered": Jacketing("Galvanised steel, weathered", 0.28, f"typical value; {_EMITTANCE_TABLES}"),
+    "painted": Jacketing("Painted metal (any colour but metallic paint)", 0.90, f"typical value; {_EMITTANCE_TABLES}"),
+    "pvc": Jacketing("PVC jacket", 0.90, f"typical value; {_EMITTANCE_TABLES}"),
+    "mastic": Jacketing("Mastic / canvas / non-metallic coating", 0.90, f"typical value; {_EMITTANCE_TABLES}"),
+}
+
+
+def jacketing_choices() -> list[tuple[str, str, float, str]]:
+    """The jacketing finishes for an editor: (key, label, emissivity, source), brightest metal first."""
+    return [(key, j.label, j.emissivity, j.source) for key, j in JACKETING.items()]
 
 
 def _material_key(name: str) -> Optional[str]:

@@ -17,6 +17,7 @@ import numpy as np
 
 from solver import correlations, films, fittings as fittings_mod, fouling, steam
 from solver.line import LineGrid
+from solver.model import DesignCases
 from solver.properties import state_phase
 from solver.results import Check, Profile, check_sort_key, render_message
 from solver.state import MarchState
@@ -33,10 +34,14 @@ MACH_NEAR_CHOKING = 0.9
 SURFACE_MARGIN_K = 1.0
 
 
-def line_checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile) -> list[Check]:
-    """Every check on the solved line, worst first and then in flow order, messages in SI text."""
+def line_checks(alt, fluid, line: LineGrid, state: MarchState, prof: Profile,
+                margin: float | None = None) -> list[Check]:
+    """Every check on the solved line, worst first and then in flow order, messages in SI text.
+
+    ``margin``: the project's design margin on heat loss for the tracing the checks suggest (None: the
+    default of DesignCases; a segment's own design_margin wins)."""
     checks = _checks(alt, fluid, line, state, prof)
-    checks += _no_flow_checks(alt, fluid, line, state)
+    checks += _no_flow_checks(alt, fluid, line, state, margin)
     checks += _dew_point_checks(line, prof)
     checks.sort(key=check_sort_key)
     return [dataclasses.replace(ch, message=render_message(ch.message, None), template=ch.message)
@@ -371,15 +376,22 @@ def _air_film_range_checks(line: LineGrid, state: MarchState, per_cells) -> None
                       "published from 0.2): the outer film is uncertain."))
 
 
-def _no_flow_checks(alt, fluid, line: LineGrid, state: MarchState) -> list[Check]:
+#: The margin on heat loss when the checks suggest tracing: DesignCases' default (common practice 10–25 %).
+DEFAULT_DESIGN_MARGIN = float(DesignCases.model_fields["design_margin"].default)
+
+
+def _no_flow_checks(alt, fluid, line: LineGrid, state: MarchState, margin: float | None = None) -> list[Check]:
     """Where the line would settle if the flow stopped (common practice in tracing design).
 
-    With no flow the fluid in a cell comes to the temperature at which the heat input
-    balances the loss through the outside path: T = T∞ + q'_in · R_o (per unit length).
-    Below the freezing point the product freezes in the line, a danger to the plant
-    (``NO_FLOW_FREEZE``); below only the alternative's minimum bulk temperature it is a
-    warning (``NO_FLOW_HOLD``). The outer film is taken at its flowing value, a fair
-    estimate for insulated lines.
+    With no flow the fluid in a cell comes to the temperature at which the heater balances the loss
+    through the outside path and the heat sinks, G = 1/R_o + g_sink per unit length:
+    constant output and a thermostat (taken at full output: it holds only what full output can)
+    T = T∞ + q'/G; a self-limiting heater q' = s·(T0 − T) gives T = (s·T0 + G·T∞)/(s + G) while that is
+    below T0 (the linear equation solved). Below the freezing point the product freezes in the line, a
+    danger to the plant (``NO_FLOW_FREEZE``); below only the alternative's minimum bulk temperature it is
+    a warning (``NO_FLOW_HOLD``). The tracing suggested holds the limit with the design margin on the
+    loss (``segment.design_margin``, else ``margin``, else DesignCases' default). The outer film and the
+    bare heat sinks' film are taken at their flowing values, a fair estimate for insulated lines.
     """
     if fluid.compressible:
         return []
@@ -394,17 +406,38 @@ def _no_flow_checks(alt, fluid, line: LineGrid, state: MarchState) -> list[Check
     if not limits:
         return []
     limit_T, limit_name = max(limits)
-    q_in, t_inf, r_out_total, x_mid = line.q_in, line.t_inf, state.r_out_total, line.x_mid
+    t_inf, r_out_total, x_mid = line.t_inf, state.r_out_total, line.x_mid
     cold, hot = [], []  # (t_eq, segment, cell) per segment
     t_max_wall = alt.limits.max_inner_wall_temperature_K
     # the settling temperature of every cell exposed to air or soil, NaN elsewhere; then per segment
     # its extremes in one pass (max and min are exact) and the first cell that reaches them
     exposed_seg = np.array([s.kind in ("still_air", "wind", "buried") for s in line.segments])
     exposed = np.repeat(exposed_seg, line.cells_per_seg)
+    with np.errstate(divide="ignore"):
+        g_loss = np.where(np.isfinite(r_out_total) & (r_out_total > 0.0), 1.0 / r_out_total, 0.0)
+    if state.g_sink is not None:
+        g_loss = g_loss + state.g_sink
+    q_fixed = line.q_in + line.q_thermostat  # constant output; thermostats at full output
+    s_sl, t0 = line.s_heater, line.t0_heater
+    t_inf_0 = np.nan_to_num(t_inf, nan=0.0)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t_eq_all = (q_fixed + s_sl * t0 + g_loss * t_inf_0) / (s_sl + g_loss)
+        # a self-limiting heater above its zero-output temperature gives nothing: the line settles where
+        # its other heat balances the loss
+        off = (s_sl > 0.0) & (t_eq_all > t0)
+        t_eq_all = np.where(off, t_inf_0 + q_fixed / g_loss, t_eq_all)
+    q_at_eq = q_fixed + np.where(off, 0.0, s_sl * (t0 - t_eq_all))  # heater output at the settled temperature
     t_eq = np.full(line.n, np.nan)
-    t_eq[exposed] = t_inf[exposed] + q_in[exposed] * r_out_total[exposed]
+    t_eq[exposed] = t_eq_all[exposed]
     t_eq_min = np.minimum.reduceat(t_eq, line.seg_first_cell).tolist()
-    t_eq_max = np.maximum.reduceat(t_eq, line.seg_first_cell).tolist() if t_max_wall is not None else None
+    t_hot = t_eq
+    if line.any_thermostat:
+        # a working thermostat switches off at its set point: stopped, it heats the line no further
+        # (failed on, it is the hot design case's business)
+        set_point = np.full(len(line.segments), np.inf)
+        set_point[line.thermostat_segments] = line.set_points
+        t_hot = np.minimum(t_eq, set_point[line.seg_of_cell])
+    t_eq_max = np.maximum.reduceat(t_hot, line.seg_first_cell).tolist() if t_max_wall is not None else None
     for s in line.segments:
         if not exposed_seg[s.index]:
             continue
@@ -413,13 +446,21 @@ def _no_flow_checks(alt, fluid, line: LineGrid, state: MarchState) -> list[Check
             i = cells.start + int(np.argmin(t_eq[cells]))
             cold.append((float(t_eq[i]), s, i))
         if t_eq_max is not None and t_eq_max[s.index] > t_max_wall:
-            j = cells.start + int(np.argmax(t_eq[cells]))
-            if q_in[j] > 0:
-                hot.append((float(t_eq[j]), s, j))
+            j = cells.start + int(np.argmax(t_hot[cells]))
+            if q_at_eq[j] > 0:
+                hot.append((float(t_hot[j]), s, j))
     out = []
     if cold:
         t_eq, s, c = min(cold, key=lambda item: item[0])
-        needed = max(max((limit_T - t_inf[cc]) / r_out_total[cc] for _, _, cc in cold), 0.0)
+        alt_margin = DEFAULT_DESIGN_MARGIN if margin is None else float(margin)
+        margins = [alt.segments[cs.index].design_margin for _, cs, _ in cold]
+        margins = [alt_margin if m is None else m for m in margins]
+        # the tracing that holds the limit in each cold segment's worst cell, with that segment's margin
+        needs = [(limit_T - t_inf[cc]) * g_loss[cc] * (1.0 + m) for (_, _, cc), m in zip(cold, margins)]
+        k_need = int(np.argmax(needs))
+        needed, m_need = max(needs[k_need], 0.0), margins[k_need]
+        with_margin = f"with a {m_need * 100:.0f} % margin on the loss"
+        heater = _heater_words(s, q_at_eq[c])
         frozen = [item for item in cold if t_freeze is not None and item[0] < t_freeze]
         if frozen:
             # the held limit may be the minimum bulk temperature above the freezing point
@@ -427,27 +468,39 @@ def _no_flow_checks(alt, fluid, line: LineGrid, state: MarchState) -> list[Check
             others = f" {len(frozen) - 1} more segment(s) freeze too." if len(frozen) > 1 else ""
             out.append(Check(
                 "danger", "NO_FLOW_FREEZE",
-                f"If the flow stops, the line here settles at about {_T(t_eq)} (heat input {_q(q_in[c])}), "
+                f"If the flow stops, the line here settles at about {_T(t_eq)} ({heater}), "
                 f"below the freezing point ({_T(t_freeze)}): the product freezes in the line.{others} About "
-                f"{_q(needed)} of tracing would hold {held} at no flow; or provide drain-down "
+                f"{_q(needed)} of tracing ({with_margin}) would hold {held} at no flow; or provide drain-down "
                 "(common practice in tracing design).",
                 segment=s.index, x_m=float(x_mid[c])))
         else:
             others = f" {len(cold) - 1} more segment(s) too." if len(cold) > 1 else ""
             out.append(Check(
                 "warning", "NO_FLOW_HOLD",
-                f"If the flow stops, the line here settles at about {_T(t_eq)} (heat input "
-                f"{_q(q_in[c])}), below {limit_name} ({_T(limit_T)}).{others} About {_q(needed)} of "
-                "tracing would hold the limit at no flow; or provide drain-down (common practice in tracing design).",
+                f"If the flow stops, the line here settles at about {_T(t_eq)} ({heater}), "
+                f"below {limit_name} ({_T(limit_T)}).{others} About {_q(needed)} of "
+                f"tracing ({with_margin}) would hold the limit at no flow; or provide drain-down (common practice "
+                "in tracing design).",
                 segment=s.index, x_m=float(x_mid[c])))
     if hot:
         t_eq, s, c = max(hot, key=lambda item: item[0])
+        fix = ("Use a lower output or a controller" if s.heater_kind == "self_limiting"
+               else "Use self-limiting tracing or a controller")
         out.append(Check(
             "warning", "NO_FLOW_OVERHEAT",
             f"If the flow stops, the tracing here heats the line to about {_T(t_eq)}, above the "
-            f"wall-temperature limit ({_T(t_max_wall)}). Use self-limiting tracing or a controller "
+            f"wall-temperature limit ({_T(t_max_wall)}). {fix} "
             "(common practice in tracing design).", segment=s.index, x_m=float(x_mid[c])))
     return out
+
+
+def _heater_words(s, q_eq: float) -> str:
+    """What the segment's heater gives at the settled temperature, for the no-flow messages."""
+    if s.heater_kind == "self_limiting":
+        return f"the self-limiting heater gives {_q(q_eq)} there"
+    if s.heater_kind == "thermostat":
+        return f"heat input {_q(q_eq)}, the thermostat's heater at full output"
+    return f"heat input {_q(q_eq)}"
 
 
 def _dew_point_checks(line: LineGrid, prof: Profile) -> list[Check]:

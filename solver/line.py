@@ -17,10 +17,11 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from solver import catalogue, correlations, fittings as fittings_mod, steam
+from solver import catalogue, correlations, fittings as fittings_mod, heat_sinks as heat_sinks_mod, insulation, steam
 from solver.errors import InputError
 from solver.factors import NEUTRAL, MethodFactors
-from solver.model import Adiabatic, Alternative, Buried, FixedWall, Jacket, StillAir, Wind
+from solver.model import (Adiabatic, Alternative, Buried, ConstantHeater, FixedWall, Jacket, SelfLimitingHeater,
+                          StillAir, ThermostatHeater, Wind)
 
 GRAVITY = 9.80665  # m/s², standard gravity (CGPM 1901)
 AMBIENT_PRESSURE_PA = 101_325.0  # air around the line, standard atmosphere
@@ -50,6 +51,7 @@ class SegmentSetup:
     nodes: slice = field(default_factory=lambda: slice(0, 0))  # its nodes in the profile (boundary nodes repeated)
     fittings_loss: object = None  # fittings.FittingsLoss at this bore, when there are fittings
     layer_resistances: list = field(default_factory=list)  # (material, K·m/W) per insulation layer, innermost first
+    insulation_layers: tuple = ()  # the model's layers where one takes the catalogue k(T) and carries heat
     inside_fouling_resistance: float = 0.0  # K·m/W
     soil_resistance: float = 0.0  # K·m/W (buried only)
     jacket_resistance: float = 0.0  # K·m/W (jacket film only)
@@ -60,6 +62,14 @@ class SegmentSetup:
     vertical_length_m: float = 0.0  # height of a steep run in air (natural convection as a vertical surface)
     entry_origin_m: float = 0.0  # where this segment's entry length starts, along the line; inf = developed
     entry_developing: bool = True  # velocity develops with the temperature (False: thermal entry only)
+    heater_kind: str = ""  # "constant", "self_limiting", "thermostat"; "" without a heater
+    heater_constant_W_per_m: float = 0.0  # constant heater's output per metre of pipe
+    heater_full_W_per_m: float = 0.0  # thermostat heater's full output per metre of pipe
+    heater_slope_W_per_mK: float = 0.0  # self-limiting: output falls by this per K of pipe temperature, per m of pipe
+    heater_zero_output_K: float = 0.0  # self-limiting: the pipe temperature where its output reaches zero
+    set_point_K: float = math.nan  # thermostat set point
+    sinks: heat_sinks_mod.SinkTotals = field(default_factory=heat_sinks_mod.SinkTotals)
+    sink_bare_as_insulated: bool = False  # buried or jacket: bare sink length taken as insulated pipe
 
 
 @dataclass
@@ -82,8 +92,8 @@ class LineGrid:
     area: np.ndarray  # flow area [m²]
     rel_rough: np.ndarray  # ε/D [-]
     r_wall: np.ndarray
-    r_ins: np.ndarray
-    q_in: np.ndarray  # heat input at the pipe's outer wall [W/m]
+    r_ins: np.ndarray  # where a layer takes the catalogue k(T), the march sets it (and r_fixed_out) every pass
+    q_in: np.ndarray  # constant heater output at the pipe's outer wall [W/m of pipe] (thermostats: see q_thermostat)
     t_inf: np.ndarray  # surroundings' temperature [K]; NaN for adiabatic
     d_outer: np.ndarray  # diameter facing the surroundings [m]
     dz: np.ndarray  # rise over the cell [m]
@@ -110,6 +120,33 @@ class LineGrid:
     x0_entry: np.ndarray = None  # cell start, distance from where its entry length starts [m]; inf developed
     x1_entry: np.ndarray = None  # cell end, likewise
     developing: np.ndarray = None  # per cell: velocity develops too (simultaneous entry)
+    # heaters (per cell, W/m of pipe): a thermostat's full output (times its segment's duty); a self-limiting
+    # heater's slope s [W/(m·K)] and zero-output temperature T0 [K]: q = s·(T0 − T_h) while T_h < T0
+    q_thermostat: np.ndarray = None
+    s_heater: np.ndarray = None
+    t0_heater: np.ndarray = None
+    thermostat_segments: np.ndarray = None  # indices of segments with a thermostat heater
+    set_points: np.ndarray = None  # their set points [K]
+    # heat sinks, spread evenly over their segment's cells, per metre of pipe: metres of insulated pipe (a
+    # multiple of the outside path's conductance), metres of bare pipe (air film at the pipe's outer
+    # diameter), direct conductance [W/(m·K)]
+    sink_insulated_ratio: np.ndarray = None
+    sink_bare_ratio: np.ndarray = None
+    sink_direct: np.ndarray = None
+    sink_bare_film: np.ndarray = None  # the film entered for the surroundings [W/(m²·K)]; NaN = computed
+
+    @property
+    def any_self_limiting(self) -> bool:
+        return bool(np.any(self.s_heater > 0.0))
+
+    @property
+    def any_thermostat(self) -> bool:
+        return self.thermostat_segments is not None and self.thermostat_segments.size > 0
+
+    @property
+    def any_sink(self) -> bool:
+        return bool(np.any(self.sink_insulated_ratio > 0.0) or np.any(self.sink_bare_ratio > 0.0)
+                    or np.any(self.sink_direct > 0.0))
 
     @property
     def n(self) -> int:
@@ -219,7 +256,7 @@ def build_line(alt: Alternative, refine: float, cells_per_segment: int | None,
         rel_rough=per_cell("roughness_m") / D,
         r_wall=per_cell("wall_resistance"),
         r_ins=per_cell("insulation_resistance"),
-        q_in=per_cell("heat_input_W_per_m"),
+        q_in=per_cell("heater_constant_W_per_m"),
         t_inf=per_cell("medium_temperature_K"),
         d_outer=per_cell("outer_diameter_m"),
         dz=per_cell("elevation_change_m") * dx / seg_len,
@@ -246,7 +283,44 @@ def build_line(alt: Alternative, refine: float, cells_per_segment: int | None,
         x0_entry=x0_entry,
         x1_entry=x1_entry,
         developing=np.array([s.entry_developing for s in setups], dtype=bool)[seg_of_cell],
+        **_heater_and_sink_cells(setups, seg_of_cell),
     )
+
+
+def _heater_and_sink_cells(setups: list[SegmentSetup], seg_of_cell: np.ndarray) -> dict:
+    """LineGrid's heater and heat-sink arrays (zeros where a line has none: no per-segment work then)."""
+    n = seg_of_cell.size
+    thermo = [s for s in setups if s.heater_kind == "thermostat"]
+    out = {"thermostat_segments": np.array([s.index for s in thermo], dtype=int),
+           "set_points": np.array([s.set_point_K for s in thermo], dtype=float)}
+    if thermo:
+        out["q_thermostat"] = np.array([s.heater_full_W_per_m for s in setups])[seg_of_cell]
+    else:
+        out["q_thermostat"] = np.zeros(n)
+    if any(s.heater_kind == "self_limiting" for s in setups):
+        sl = np.array([(s.heater_slope_W_per_mK, s.heater_zero_output_K) for s in setups])[seg_of_cell]
+        out["s_heater"], out["t0_heater"] = sl[:, 0].copy(), sl[:, 1].copy()
+    else:
+        out["s_heater"], out["t0_heater"] = np.zeros(n), np.zeros(n)
+    if any(s.sinks.any for s in setups):
+        rows = np.array([
+            ((s.sinks.insulated_equivalent_length_m
+              + (s.sinks.bare_equivalent_length_m if s.sink_bare_as_insulated else 0.0)) / s.length_m,
+             0.0 if s.sink_bare_as_insulated else s.sinks.bare_equivalent_length_m / s.length_m,
+             s.sinks.direct_W_per_K / s.length_m,
+             _entered_film(s.surroundings)) for s in setups])[seg_of_cell]
+        for k, key in enumerate(("sink_insulated_ratio", "sink_bare_ratio", "sink_direct", "sink_bare_film")):
+            out[key] = rows[:, k].copy()
+    else:
+        out.update(sink_insulated_ratio=np.zeros(n), sink_bare_ratio=np.zeros(n), sink_direct=np.zeros(n),
+                   sink_bare_film=np.full(n, np.nan))
+    return out
+
+
+def _entered_film(sur) -> float:
+    """The outer film coefficient a user entered for air [W/(m²·K)]; NaN where it is computed or not in air."""
+    h = getattr(sur, "film_coefficient_W_per_m2K", None) if isinstance(sur, (StillAir, Wind)) else None
+    return math.nan if h is None else float(h)
 
 
 def _resolve_segments(alt: Alternative, factors: MethodFactors = NEUTRAL) -> list[SegmentSetup]:
@@ -261,7 +335,19 @@ def _resolve_segments(alt: Alternative, factors: MethodFactors = NEUTRAL) -> lis
         d = d_po
         r_ins = 0.0
         layers = []
-        if not isinstance(sur, (FixedWall, Jacket)):
+        layers_kt = ()
+        if not isinstance(sur, (FixedWall, Jacket)) and insulation.uses_table(seg.insulation):
+            # a layer without its own k takes the catalogue k(T): a first value between the feed's and the
+            # surroundings' temperatures; the march sets it from each pass's temperatures (solver.insulation)
+            t_out = getattr(sur, "temperature_K", getattr(sur, "soil_temperature_K", alt.feed.inlet_temperature_K))
+            r_total, r_parts = insulation.layer_resistances(
+                seg.insulation, d_po, alt.feed.inlet_temperature_K, t_out, factors.insulation_conductivity,
+                f"{prefix}.insulation")
+            layers = [(layer.material, float(r)) for layer, r in zip(seg.insulation, r_parts)]
+            r_ins = float(r_total)
+            d = d_po + 2.0 * sum(layer.thickness_m for layer in seg.insulation)
+            layers_kt = tuple(seg.insulation) if isinstance(sur, (StillAir, Wind, Buried)) else ()
+        elif not isinstance(sur, (FixedWall, Jacket)):
             for layer in seg.insulation:
                 d_next = d + 2.0 * layer.thickness_m
                 r_layer = _cylinder_resistance(d, d_next, layer.conductivity_W_per_mK * factors.insulation_conductivity)
@@ -302,6 +388,13 @@ def _resolve_segments(alt: Alternative, factors: MethodFactors = NEUTRAL) -> lis
                 tr.contact, tr.tube_outer_diameter_m)
         # a steep run in air loses heat like a vertical surface of its height, not a horizontal cylinder
         steep = abs(seg.elevation_change_m) > STEEP_RISE_RATIO * seg.length_m
+        heater = _heater_numbers(seg.heater)
+        sinks = heat_sinks_mod.sink_conductances(seg, d_po)
+        if sinks.any and isinstance(sur, (Adiabatic, FixedWall)):
+            raise InputError(
+                f"{prefix}.heat_sinks", len(seg.heat_sinks),
+                f"heat sinks lose heat to the surroundings, and {'an adiabatic outside has none' if isinstance(sur, Adiabatic) else 'a wall held at its temperature takes none from the pipe'}: "
+                "remove them or choose air, soil or a jacket as the surroundings")
         setups.append(
             SegmentSetup(
                 index=i,
@@ -321,6 +414,7 @@ def _resolve_segments(alt: Alternative, factors: MethodFactors = NEUTRAL) -> lis
                 surroundings=sur,
                 fittings=list(seg.fittings),
                 layer_resistances=layers,
+                insulation_layers=layers_kt,
                 inside_fouling_resistance=seg.inside_fouling_m2K_per_W / (math.pi * d_in),
                 soil_resistance=r_soil,
                 jacket_resistance=r_jacket,
@@ -329,9 +423,28 @@ def _resolve_segments(alt: Alternative, factors: MethodFactors = NEUTRAL) -> lis
                 tracer_conductance=g_tracer,
                 tracer_temperature_K=t_tracer,
                 vertical_length_m=abs(seg.elevation_change_m) if steep else 0.0,
+                sinks=sinks,
+                # under soil or in a jacket a bare item has no air film of its own: it loses like insulated pipe
+                sink_bare_as_insulated=isinstance(sur, (Buried, Jacket)),
+                **heater,
             )
         )
     return setups
+
+
+def _heater_numbers(heater) -> dict:
+    """The heater as numbers per metre of pipe, for SegmentSetup (see its heater fields)."""
+    if heater is None:
+        return {}
+    if isinstance(heater, ConstantHeater):
+        return {"heater_kind": "constant", "heater_constant_W_per_m": heater.full_output_per_pipe_metre}
+    if isinstance(heater, ThermostatHeater):
+        return {"heater_kind": "thermostat", "heater_full_W_per_m": heater.full_output_per_pipe_metre,
+                "set_point_K": heater.set_point_K}
+    if isinstance(heater, SelfLimitingHeater):
+        return {"heater_kind": "self_limiting", "heater_slope_W_per_mK": heater.slope_W_per_mK,
+                "heater_zero_output_K": heater.zero_output_temperature_K}
+    raise TypeError(f"unknown heater {type(heater).__name__}")
 
 
 def _steam_temperature(p_steam: float, field_name: str) -> float:

@@ -39,17 +39,17 @@ import re
 
 import numpy as np
 
-from solver import choking, correlations
+from solver import choking, correlations, insulation
 from solver._numeric import clip as _clip
 from solver.errors import CalorunError, InputError, PropertyRangeError, SolverError
 from solver.factors import NEUTRAL, MethodFactors
 from solver.films import AirAtOneAtmosphere, air_film_parts, condensate_resistance, inside_nusselt_mean
 from solver.line import GRAVITY, LineGrid, build_line
 from solver.choking import Stretch
-from solver.model import Alternative
+from solver.model import Alternative, DesignCases
 from solver.profiles import line_result
 from solver.properties import PureFluidModel, fluid_model, state_phase
-from solver.results import Result
+from solver.results import Result, check_sort_key
 from solver.state import MarchState
 
 
@@ -64,16 +64,27 @@ def solve(
     max_iterations: int = 60,
     tolerance_K: float = 1e-3,
     factors: MethodFactors | None = None,
+    design: DesignCases | None = None,
 ) -> Result:
     """Solve one alternative and return its :class:`~solver.results.Result`.
 
     ``refine`` scales the automatic cell counts (2.0 doubles them: the grid
     check); ``cells_per_segment`` fixes them. ``factors`` scales the methods' results (the
-    uncertainty bands; None = every method as published). Raises only
+    uncertainty bands; None = every method as published). ``design`` (the project's design cases)
+    also evaluates the worst and hot cases, the tracing need and the hold time into
+    ``result.design`` (:class:`solver.design_cases.DesignResult`; None when not asked). Raises only
     :class:`~solver.errors.CalorunError` subclasses.
     """
     try:
-        return _solve(alternative, refine, cells_per_segment, max_iterations, tolerance_K, factors or NEUTRAL)
+        result = _solve(alternative, refine, cells_per_segment, max_iterations, tolerance_K, factors or NEUTRAL,
+                        design.design_margin if design is not None else None)
+        if design is not None:
+            from solver import design_cases  # only when asked: a plain solve does not load it
+
+            result.design = design_cases.evaluate(alternative, result, design, solve=solve)
+            result.checks = sorted([*result.checks, *design_cases.design_checks(alternative, result.design, result)],
+                                   key=check_sort_key)
+        return result
     except PropertyRangeError as exc:
         raise _property_error(alternative, None, exc, None, None) from None
     except correlations.CorrelationInputError as exc:
@@ -184,7 +195,7 @@ def _input_words(exc: InputError) -> str:
 
 
 def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: int, tol: float,
-           factors: MethodFactors) -> Result:
+           factors: MethodFactors, margin: float | None = None) -> Result:
     fluid = fluid_model(alt.fluid)
     feed = alt.feed
     t_in = feed.inlet_temperature_K
@@ -205,7 +216,7 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
         raise _property_error(alt, line, exc, seen.get("T"), seen.get("p")) from None
     except correlations.CorrelationInputError as exc:
         raise _breakdown_error(alt, line, exc.field, seen.get("T"), seen.get("p")) from None
-    return line_result(alt, fluid, line, state)
+    return line_result(alt, fluid, line, state, margin)  # the project's margin for the no-flow checks' advice
 
 
 def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max_iterations: int,
@@ -261,6 +272,8 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
     wall_factor = np.ones(n)
     wall_groups = None
     g_tracer = g_tracer_pass = line.g_tracer
+    heaters = _HeaterState(line, t_in, air, factors)
+    kt_insulation = insulation.any_on_line(line)
     first_pass = True
     if air is not None:
         # a first surface temperature from the surface balance with the wall at the inlet temperature:
@@ -323,6 +336,11 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
         r_in = 1.0 / (h_inside * math.pi * D)
         r_a = r_in + line.r_foul + line.r_wall
 
+        insulation_step = 0.0
+        if kt_insulation and not first_pass:
+            # insulation with the catalogue k(T): at the last pass's pipe-wall and surface temperatures
+            insulation_step = insulation.update_line(line, T_heated, r_out_total, factors.insulation_conductivity)
+            r_ins_film = line.r_ins[film_mask]
         # outside path; the air film and the condensate film depend on temperatures (iterated with the rest)
         r_out_total = line.r_fixed_out.copy()
         if air is not None:
@@ -336,7 +354,10 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
                                                       line.r_steam_foul[cond_mask], T_heated[cond_mask], factors)
             r_out_total[cond_mask] = r_cond[cond_mask]
         g_tracer_pass = g_tracer
-        T_new, Q_cell, tm_cell = _heat_pass(line, r_a, r_out_total, m_dot * cp, e_corr, t_in, t_inf_eff, g_tracer)
+        # heaters and heat sinks at this pass's temperatures: a self-limiting heater joins the steam tracers'
+        # path (conductance s to T0), heat sinks the outside path; thermostats set their duty within the pass
+        T_new, Q_cell, tm_cell = heaters.heat_pass(line, r_a, r_out_total, m_dot * cp, e_corr, t_in, t_inf_eff,
+                                                   g_tracer, T_heated)
         # energy: d(h + v²/2 + g z) = dQ / m, so a liquid running downhill does not seem to cool and a fast
         # gas cools as it accelerates. The kinetic energy at a node is that of the cell upstream of it
         # (the first cell at the inlet), so a change of bore takes its kinetic energy in the new segment's
@@ -380,6 +401,9 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
         wall_step = float(np.max(np.abs(T_wall_new - T_wall)))
         if any_cond:
             wall_step = max(wall_step, float(np.max(np.abs(T_heated_new[cond_mask] - T_heated[cond_mask]))))
+        if heaters.follows_wall:
+            # a self-limiting heater's output, a thermostat's duty and a bare heat sink's film follow the pipe wall
+            wall_step = max(wall_step, float(np.max(np.abs(T_heated_new - T_heated))))
         T_wall, T_heated = T_wall_new, T_heated_new
         if line.any_tracer:
             # a steam tracer only heats: where the pipe is at or above its steam temperature it gives nothing
@@ -391,7 +415,7 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
             surface_step = float(np.max(np.abs(t_surf_new - T_surface[film_mask])))
             T_surface[film_mask] = t_surf_new
         last_step = max(float(np.max(np.abs(T_new - T))), float(np.max(np.abs(p_new - p))) * 1e-5,
-                        wall_step, surface_step)
+                        wall_step, surface_step, insulation_step)
         first_pass = False
         # a phase change or a state beyond the fluid data on two passes in a row is real, not a transient
         tsat_nodes = fluid.saturation_temperature(p_new) if sat_possible else None
@@ -431,6 +455,9 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
     if air is not None:
         h_conv_out[film_mask], h_rad_out[film_mask] = h_conv, h_rad
     q_tracer = g_tracer_pass * (line.t_tracer - T_heated) if line.any_tracer else np.zeros(n)
+    q_heater, q_sink = heaters.delivered(line, T_heated)
+    if kt_insulation:  # each k(T) layer at the solved temperatures, for the heat path; refused beyond its rating
+        insulation.finish_line(line, T_heated, r_out_total, factors.insulation_conductivity)
     return MarchState(
         m_dot=m_dot, h_in=h0, T=T, p=p, h_nodes=h_nodes, kinetic_nodes=ke_nodes, Q_cell=Q_cell, T_surface=T_surface,
         r_out_total=r_out_total, Re=Re, Pr=Pr, velocity=velocity, rho=rho,
@@ -438,6 +465,8 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
         r_in=r_in, wall_factor=wall_factor, h_conv_out=h_conv_out, h_rad_out=h_rad_out, r_cond=r_cond,
         q_tracer=q_tracer, T_heated=T_heated, T_wall=T_wall, factors=factors, gas=bool(fluid.compressible),
         wall_groups=wall_groups, g_tracer=g_tracer_pass,
+        q_heater=q_heater, g_heater=heaters.g_heater, duty=heaters.duty_per_segment(len(line.segments)),
+        g_sink=heaters.g_sink, g_sink_fixed=heaters.g_sink_fixed, q_sink=q_sink,
     )
 
 
@@ -504,7 +533,143 @@ def _surface_temperature(t_heated, t_inf, r_ins, d_out, h_film):
     return (t_heated + r_ins * g_film * t_inf) / (1.0 + r_ins * g_film)
 
 
-def _heat_pass(line: LineGrid, r_a, r_out_total, mcp, e_corr, t_in: float, t_inf_eff, g_tracer):
+class _HeaterState:
+    """Electric heaters and heat sinks through the march's passes (one per solve).
+
+    * constant heaters: a fixed source (``line.q_in``);
+    * self-limiting heaters: q = s·(T0 − T_h), clamped at 0 — a conductance s to T0 while the pipe wall is
+      below T0, in parallel with the steam tracers' path (whether it gives heat is taken from the last
+      pass's wall, as for the tracers);
+    * thermostats: one duty (0–1) per segment that holds the segment's coldest pipe wall at the set point,
+      full output where even that cannot, off where the wall is above it without heat. Within a pass the
+      heat balance is linear in the duties, so a secant step per segment (all segments at once) finds
+      them there; the duties carry over to the next pass as its start;
+    * heat sinks: insulated equivalent length as a multiple of the outside path's conductance, bare length
+      through the air film at the pipe's outer diameter at the pipe wall's temperature, direct W/K; all to
+      the surroundings, added to the outside path.
+    """
+
+    #: A thermostat's coldest wall within this of its set point is held [K].
+    DUTY_TOL_K = 1e-5
+
+    def __init__(self, line: LineGrid, t_in: float, air, factors: MethodFactors):
+        self.any_sl = line.any_self_limiting
+        self.any_thermo = line.any_thermostat
+        self._seg = line.thermostat_segments
+        self.any_sink = line.any_sink
+        self.factors = factors
+        self.bare_computed = (line.sink_bare_ratio > 0.0) & np.isnan(line.sink_bare_film)
+        self.air = (air or AirAtOneAtmosphere.get()) if self.bare_computed.any() else None
+        self.follows_wall = self.any_sl or self.any_thermo or bool(np.any(line.sink_bare_ratio > 0.0))
+        self.duty = np.full(line.thermostat_segments.size, 0.5) if self.any_thermo else np.zeros(0)
+        self.g_heater = np.zeros(line.n)  # self-limiting slope in use [W/(m·K)]
+        self.g_sink = np.zeros(line.n)  # sink conductance in use [W/(m·K)]
+        self.g_sink_fixed = np.zeros(line.n)  # its part that does not scale with the outside path (bare, direct)
+        self.q_fixed = line.q_in  # fixed heat input of the last pass [W/m] (constant + thermostats)
+
+    def duty_per_segment(self, n_segments: int) -> np.ndarray:
+        out = np.full(n_segments, np.nan)
+        return out if not self.any_thermo else _put(out, self._seg, self.duty)
+
+    def _sinks(self, line: LineGrid, r_out_total, T_heated) -> np.ndarray:
+        g_fixed = line.sink_direct.copy()
+        bare = line.sink_bare_ratio > 0.0
+        if bare.any():
+            h = np.nan_to_num(line.sink_bare_film, nan=0.0)
+            bc = self.bare_computed
+            if bc.any():
+                vertical = line.vertical_length[bc]
+                kw = {"vertical_length": vertical} if vertical.any() else {}
+                h_conv, h_rad = air_film_parts(self.air, T_heated[bc], line.t_inf[bc], line.d_pipe_outer[bc],
+                                               line.wind_speed[bc], line.emissivity[bc], self.factors, **kw)
+                h[bc] = h_conv + h_rad
+            g_fixed += line.sink_bare_ratio * h * (math.pi * line.d_pipe_outer)
+        g_out = np.zeros(line.n)
+        finite = np.isfinite(r_out_total) & (r_out_total > 0.0)
+        g_out[finite] = 1.0 / r_out_total[finite]
+        self.g_sink_fixed = g_fixed
+        return g_fixed + line.sink_insulated_ratio * g_out
+
+    def heat_pass(self, line: LineGrid, r_a, r_out_total, mcp, e_corr, t_in, t_inf_eff, g_tracer, T_heated):
+        """One heat pass with the heaters and sinks at the last pass's wall temperatures (see _heat_pass)."""
+        g_sink = self._sinks(line, r_out_total, T_heated) if self.any_sink else None
+        if g_sink is not None:
+            self.g_sink = g_sink
+        g_src, t_src = g_tracer, None
+        if self.any_sl:
+            self.g_heater = np.where(T_heated < line.t0_heater, line.s_heater, 0.0)
+            g_src = g_tracer + self.g_heater
+            t_steam = line.t_tracer if line.any_tracer else 0.0
+            with np.errstate(invalid="ignore", divide="ignore"):
+                t_src = np.where(g_src > 0.0, (g_tracer * t_steam + self.g_heater * line.t0_heater)
+                                 / np.where(g_src > 0.0, g_src, 1.0), 0.0)
+        args = (line, r_a, r_out_total, mcp, e_corr, t_in, t_inf_eff, g_src, t_src, g_sink)
+        if not self.any_thermo:
+            return _heat_pass(*args, line.q_in)
+        return self._thermostats(line, r_a, args)
+
+    def _thermostats(self, line: LineGrid, r_a, args):
+        seg, starts, seg_of_cell = line.thermostat_segments, line.seg_first_cell, line.seg_of_cell
+        duty_seg = np.zeros(len(line.segments))
+
+        def run(d):
+            duty_seg[seg] = d
+            q = line.q_in + line.q_thermostat * duty_seg[seg_of_cell]
+            T_new, Q_cell, tm, u = _heat_pass(*args, q, with_u=True)
+            # the pipe wall at the cells' edges: within a cell it is linear in the bulk,
+            # T_h = T + R_a·q'(T) with dT_h/dT = 1 − R_a·U', so its coldest point is at an edge (the cell
+            # means would miss it by half a cell's change)
+            t_h_mean = tm + Q_cell / line.dx * r_a
+            slope = 1.0 - r_a * u
+            coldest = np.minimum(t_h_mean + slope * (T_new[:-1] - tm), t_h_mean + slope * (T_new[1:] - tm))
+            return (T_new, Q_cell, tm), q, np.minimum.reduceat(coldest, starts)[seg] - line.set_points
+
+        def settled(d, f):
+            return (np.abs(f) < self.DUTY_TOL_K) | ((d >= 1.0) & (f <= 0.0)) | ((d <= 0.0) & (f >= 0.0))
+
+        d0 = self.duty
+        out, q, f0 = run(d0)
+        done = settled(d0, f0)
+        # the second point: a quarter of full output towards the set point
+        d1 = np.where(done, d0, np.clip(d0 - np.sign(f0) * 0.25, 0.0, 1.0))
+        d_last, step = d0, 0.25
+        for _ in range(12):
+            if done.all():
+                break
+            out, q, f1 = run(d1)
+            d_last = d1
+            done = settled(d1, f1)
+            if done.all():
+                break
+            dd = d1 - d0
+            with np.errstate(invalid="ignore", divide="ignore"):
+                slope = (f1 - f0) / np.where(dd != 0.0, dd, 1.0)
+            good = (dd != 0.0) & (slope > 0.0)
+            # the wall rises with the duty; where the secant cannot say by how much, step on halving
+            d_next = np.where(good, d1 - f1 / np.where(good, slope, 1.0), d1 - np.sign(f1) * step)
+            step *= 0.5
+            d0, f0 = d1, f1
+            d1 = np.where(done, d1, np.clip(d_next, 0.0, 1.0))
+        self.duty = d_last
+        self.q_fixed = q
+        return out
+
+    def delivered(self, line: LineGrid, T_heated):
+        """Heater output [W/m of pipe] and heat-sink loss [W/m] per cell at the converged wall."""
+        q = self.q_fixed.copy() if self.any_thermo else line.q_in.copy()
+        if self.any_sl:
+            q += self.g_heater * (line.t0_heater - T_heated)
+        q_sink = self.g_sink * (T_heated - np.nan_to_num(line.t_inf, nan=0.0)) if self.any_sink else np.zeros(line.n)
+        return q, q_sink
+
+
+def _put(out: np.ndarray, where, values) -> np.ndarray:
+    out[where] = values
+    return out
+
+
+def _heat_pass(line: LineGrid, r_a, r_out_total, mcp, e_corr, t_in: float, t_inf_eff, g_tracer,
+               t_source=None, g_sink=None, q_in=None, with_u=False):
     """Bulk temperature at the cell edges, heat to the fluid per cell [W] and the cell-mean bulk for one pass.
 
     Per cell the coefficients are constant and the bulk follows the exact exponential:
@@ -513,6 +678,10 @@ def _heat_pass(line: LineGrid, r_a, r_out_total, mcp, e_corr, t_in: float, t_inf
     where there are steam tracers, to their steam through 1/g_tracer: two paths in parallel, one
     path of conductance G_e = 1/R_o + g_t to the temperature T_e = (T∞/R_o + g_t·T_t)/G_e
     (``g_tracer`` per cell: 0 where there is no tracer or it gives no heat).
+    A self-limiting heater, q = s·(T0 − T_h) while T_h < T0, is the same kind of path (conductance s to
+    T0): ``g_tracer`` and ``t_source`` are then the tracers' and the heater's together (``t_source``
+    None: the tracers' steam). Heat sinks (``g_sink`` [W/(m·K)], to T∞) add to the outside path; ``q_in``
+    is the fixed heat input [W/m] (None: the line's constant heaters). ``with_u``: also return U' per cell.
     ``e_corr`` is the temperature change not explained by Q/(m cp) (pressure effect, cp curvature).
     """
     n, dx = line.n, line.dx
@@ -520,19 +689,24 @@ def _heat_pass(line: LineGrid, r_a, r_out_total, mcp, e_corr, t_in: float, t_inf
     g_out = np.zeros(n)
     with np.errstate(divide="ignore"):
         g_out[finite_out] = 1.0 / r_out_total[finite_out]  # inf where R_o = 0 (a fixed wall)
+    if g_sink is not None:
+        g_out = g_out + g_sink  # sinks lose to the same surroundings (none on a held wall: refused in solver.line)
+    if q_in is None:
+        q_in = line.q_in
     t_e = t_inf_eff
-    if line.any_tracer:
+    if t_source is not None or line.any_tracer:
         g_t = g_tracer
+        t_src = line.t_tracer if t_source is None else t_source
         with np.errstate(invalid="ignore"):
             g_e = g_out + g_t
-            t_e = np.where(g_t > 0, (g_out * t_inf_eff + g_t * line.t_tracer) / np.where(g_e > 0, g_e, 1.0),
+            t_e = np.where(g_t > 0, (g_out * t_inf_eff + g_t * t_src) / np.where(g_e > 0, g_e, 1.0),
                            t_inf_eff)
         g_out = g_e
     u_prime = np.zeros(n)
     has_path = g_out > 0
     with np.errstate(divide="ignore"):
         u_prime[has_path] = 1.0 / (r_a[has_path] + 1.0 / g_out[has_path])
-    source = line.q_in * (1.0 - r_a * u_prime)  # share of heat input reaching the fluid [W/m]
+    source = q_in * (1.0 - r_a * u_prime)  # share of heat input reaching the fluid [W/m]
     ntu = u_prime * dx / mcp
     decay = np.exp(-ntu)
     one_minus = -np.expm1(-ntu)  # = NTU·φ(NTU)
@@ -545,6 +719,8 @@ def _heat_pass(line: LineGrid, r_a, r_out_total, mcp, e_corr, t_in: float, t_inf
     # small NTU, where the closed form cancels), so mean wall temperatures follow the same profile
     w = np.where(ntu > 1e-5, (1.0 - phi) / np.where(ntu > 1e-5, one_minus, 1.0), 0.5 + ntu / 12.0)
     tm_cell = T_new[:-1] + w * np.diff(T_new)
+    if with_u:
+        return T_new, Q_cell, tm_cell, u_prime
     return T_new, Q_cell, tm_cell
 
 

@@ -22,6 +22,7 @@ from __future__ import annotations
 
 from typing import Annotated, ClassVar, Literal, Optional, Union
 
+import numpy as np
 from pydantic import (
     AfterValidator,
     BaseModel,
@@ -36,7 +37,7 @@ from solver.catalogue import SOLUTIONS, normalise_nps, pipe_dimensions
 from solver.errors import InputError
 
 FORMAT_TAG = "calorun-project"
-SCHEMA_VERSION = 1
+SCHEMA_VERSION = 2
 
 # --------------------------------------------------------------------------- bounds (the one place)
 
@@ -122,6 +123,18 @@ VolumeFlow = _positive(1e-9, 100.0)
 # Heat input (tracing): 0 to 10 kW/m, some thirty times the strongest electric tracing cable (about
 # 300 W/m, common practice), so heating strips and induction heating still fit.
 HeatInputPerLength = Annotated[float, Field(ge=0.0, le=1e4)]
+# Heater output per metre of heater: 0 to 10 kW/m (the same ceiling as the heat input above). The total
+# per metre of pipe (output x runs x heater per pipe length) is held to HeatInputPerLength by Segment.
+HeaterOutputPerLength = Annotated[float, Field(ge=0.0, le=1e4)]
+# Heater runs along one segment: 1 to 20 (more than 4 parallel runs is rare, common practice).
+HeaterCount = Annotated[int, Field(ge=1, le=20)]
+# Metres of heater per metre of pipe: 1 (straight) to 10 (a tight spiral on a large bore; common practice
+# rarely exceeds 3).
+HeaterRatio = Annotated[float, Field(ge=1.0, le=10.0)]
+# Equivalent length of pipe for a heat sink: 0 to 1 km per item (a pump casing is some metres).
+EquivalentLength = Annotated[float, Field(ge=0.0, le=1e3)]
+# Direct loss of a heat sink per kelvin of pipe-to-surroundings difference: 0 to 1 kW/K per item.
+SinkConductance = Annotated[float, Field(ge=0.0, le=1e3)]
 # Fouling resistance: 0 to 0.01 m²·K/W, five times the highest TEMA design value (0.002, heavy fuel oil).
 FoulingResistance = Annotated[float, Field(ge=0.0, le=0.01)]
 # Air film entered directly (convection + radiation): 0.5 to 1000 W/(m²·K); still air gives about
@@ -143,6 +156,9 @@ TableDensity = _positive(1.0, 2.5e4)
 TableSpecificHeat = _positive(50.0, 5e4)
 # Viscosity: 1 µPa·s (below any liquid's) to 100 kPa·s (bitumen at room temperature).
 TableViscosity = _positive(1e-6, 1e5)
+# Heat of fusion: 0 to 1 MJ/kg (water 334 kJ/kg is about the highest of common liquids; most organics are
+# 100–250 kJ/kg, from memory).
+LatentHeat = Annotated[float, Field(ge=0.0, le=1e6)]
 # Conductivity: 0.01 to 200 W/(m·K) (liquid sodium 85, the best liquid conductor in service).
 TableConductivity = _positive(0.01, 200.0)
 
@@ -281,6 +297,8 @@ class TableFluid(_Model):
     name: Name = "Product"
     rows: list[TableRow] = Field(min_length=2, max_length=MAX_TABLE_ROWS)
     freezing_point_K: Optional[ProcessTemperature] = None
+    latent_heat_J_per_kg: Optional[LatentHeat] = Field(
+        None, description="heat of fusion at the freezing point, for the hold time; None = no freezing plateau")
     boiling_point_K: Optional[ProcessTemperature] = Field(
         None, description="boiling point at the line pressure, if known (checked as a fixed value)"
     )
@@ -357,6 +375,9 @@ class Limits(_Model):
 
     max_inner_wall_temperature_K: Optional[ProcessTemperature] = None
     min_bulk_temperature_K: Optional[ProcessTemperature] = None
+    maintain_temperature_K: Optional[ProcessTemperature] = Field(
+        None, description="the temperature the tracing must hold in the worst case; None = the minimum bulk "
+                          "temperature, else 5 K above the freezing point (freeze protection, common practice)")
 
 
 # --------------------------------------------------------------------------- segment parts
@@ -431,7 +452,9 @@ class Layer(_Model):
 
     material: Name = "mineral wool"
     thickness_m: LayerThickness
-    conductivity_W_per_mK: LayerConductivity
+    conductivity_W_per_mK: Optional[LayerConductivity] = Field(
+        None, description="constant conductivity; None = the catalogue material's k(T), averaged over the "
+                          "layer's face temperatures (ASTM C680 method; solver.insulation)")
 
 
 class Fitting(_Model):
@@ -568,6 +591,150 @@ class SteamTracer(_Model):
     contact: Literal["bare", "cement"] = "bare"
 
 
+# --------------------------------------------------------------------------- heaters and heat sinks
+
+
+class _HeaterRuns(_Model):
+    """What every heater kind shares: parallel runs and spiralling (common practice in tracing design).
+
+    The heat per metre of pipe is the heater's output per metre of heater times ``count`` times
+    ``heater_per_pipe_length`` (1 for a straight run, more where the heater is spiralled).
+    """
+
+    count: HeaterCount = Field(1, description="parallel heater runs along the segment")
+    heater_per_pipe_length: HeaterRatio = Field(1.0, description="metres of heater per metre of pipe (spiral ratio)")
+
+    @property
+    def runs_per_pipe_metre(self) -> float:
+        return self.count * self.heater_per_pipe_length
+
+
+class ConstantHeater(_HeaterRuns):
+    """Constant output: the same W/m whatever the pipe temperature (series-resistance or mineral-insulated
+    heaters, heating strips)."""
+
+    kind: Literal["constant"] = "constant"
+    output_W_per_m: HeaterOutputPerLength = Field(description="per metre of heater")
+
+    required_in_file: ClassVar[tuple[str, ...]] = ("output_W_per_m",)
+
+    def output_per_pipe_metre(self, t_pipe_K):
+        """Heat per metre of pipe [W/m] at pipe temperature ``t_pipe_K`` [K] (scalar or array)."""
+        return self.output_W_per_m * self.runs_per_pipe_metre + 0.0 * t_pipe_K
+
+    @property
+    def full_output_per_pipe_metre(self) -> float:
+        return self.output_W_per_m * self.runs_per_pipe_metre
+
+
+class SelfLimitingHeater(_HeaterRuns):
+    """Temperature-dependent output, the self-limiting kind: output falls as the pipe warms.
+
+    Given as the output at two pipe temperatures; linear between them and extrapolated on both sides,
+    never below zero (common practice: a straight line through two points of the maker's output curve
+    is the usual design model). Above ``zero_output_temperature_K`` the heater gives nothing.
+    """
+
+    kind: Literal["self_limiting"] = "self_limiting"
+    output_low_W_per_m: HeaterOutputPerLength = Field(description="output per metre of heater at temperature_low_K")
+    temperature_low_K: ProcessTemperature
+    output_high_W_per_m: HeaterOutputPerLength = Field(description="output per metre of heater at temperature_high_K")
+    temperature_high_K: ProcessTemperature
+
+    required_in_file: ClassVar[tuple[str, ...]] = (
+        "output_low_W_per_m", "temperature_low_K", "output_high_W_per_m", "temperature_high_K")
+
+    @model_validator(mode="after")
+    def _falls_with_temperature(self) -> "SelfLimitingHeater":
+        if self.temperature_high_K <= self.temperature_low_K:
+            raise ValueError(
+                "temperature_high_K must be above temperature_low_K, "
+                f"got {self.temperature_high_K} K and {self.temperature_low_K} K")
+        if self.output_high_W_per_m >= self.output_low_W_per_m:
+            raise ValueError(
+                "output_high_W_per_m must be below output_low_W_per_m (a self-limiting heater gives less "
+                f"when hotter), got {self.output_high_W_per_m} W/m and {self.output_low_W_per_m} W/m")
+        return self
+
+    @property
+    def slope_W_per_mK(self) -> float:
+        """How much the output per metre of pipe falls per kelvin [W/(m·K)] (positive)."""
+        return ((self.output_low_W_per_m - self.output_high_W_per_m)
+                / (self.temperature_high_K - self.temperature_low_K)) * self.runs_per_pipe_metre
+
+    @property
+    def zero_output_temperature_K(self) -> float:
+        """The pipe temperature where the straight line reaches zero output [K]."""
+        return self.temperature_low_K + self.output_low_W_per_m * self.runs_per_pipe_metre / self.slope_W_per_mK
+
+    def output_per_pipe_metre(self, t_pipe_K):
+        """Heat per metre of pipe [W/m] at pipe temperature ``t_pipe_K`` [K] (scalar or array), clamped at 0."""
+        return np.maximum(self.slope_W_per_mK * (self.zero_output_temperature_K - np.asarray(t_pipe_K, dtype=float)), 0.0)
+
+    @property
+    def full_output_per_pipe_metre(self) -> float:
+        """The output at temperature_low_K per metre of pipe (the rating point the user gave first)."""
+        return self.output_low_W_per_m * self.runs_per_pipe_metre
+
+
+class ThermostatHeater(_HeaterRuns):
+    """A constant-output heater switched by a thermostat on the pipe: on below ``set_point_K``, off above.
+
+    In the steady solve the segment's heater delivers the share of its full output (the duty cycle)
+    that holds the segment's coldest pipe wall at the set point, where its full output can; the hot
+    design case takes the controller as failed on (full output).
+    """
+
+    kind: Literal["thermostat"] = "thermostat"
+    output_W_per_m: HeaterOutputPerLength = Field(description="full output per metre of heater")
+    set_point_K: ProcessTemperature
+
+    required_in_file: ClassVar[tuple[str, ...]] = ("output_W_per_m", "set_point_K")
+
+    def output_per_pipe_metre(self, t_pipe_K):
+        """Full output per metre of pipe [W/m] (on); the controller's duty is the solver's business."""
+        return self.output_W_per_m * self.runs_per_pipe_metre + 0.0 * t_pipe_K
+
+    @property
+    def full_output_per_pipe_metre(self) -> float:
+        return self.output_W_per_m * self.runs_per_pipe_metre
+
+
+Heater = Annotated[Union[ConstantHeater, SelfLimitingHeater, ThermostatHeater], Field(discriminator="kind")]
+
+#: Kinds of heat sink on a segment (common practice in trace-heating design lists exactly these).
+HEAT_SINK_KINDS = ("pipe_support", "valve", "flange_pair", "pump", "instrument", "other")
+
+
+class HeatSink(_Model):
+    """Things on a segment that lose heat beyond its pipe: supports, valves, flanges, pumps, instruments.
+
+    A catalogue kind loses what ``solver.heat_sinks`` gives for it at the segment's bore (an equivalent
+    length of the segment's own insulated pipe, from published trace-heating practice). Any item may give
+    its own ``equivalent_length_m`` instead (metres of the segment's insulated pipe), or for ``"other"``
+    a ``bare_length_m`` (metres of the same pipe without insulation) or a ``loss_W_per_K`` (heat lost per
+    kelvin between pipe and surroundings).
+    """
+
+    kind: Literal["pipe_support", "valve", "flange_pair", "pump", "instrument", "other"] = "pipe_support"
+    count: int = Field(1, ge=1, le=10_000)
+    label: Name = ""
+    equivalent_length_m: Optional[EquivalentLength] = Field(
+        None, description="per item, metres of the segment's insulated pipe; None = the catalogue value")
+    bare_length_m: Optional[EquivalentLength] = Field(None, description="per item, metres of bare pipe ('other')")
+    loss_W_per_K: Optional[SinkConductance] = Field(None, description="per item, W per K of pipe-to-surroundings difference ('other')")
+
+    @model_validator(mode="after")
+    def _other_says_how_much(self) -> "HeatSink":
+        given = sum(v is not None for v in (self.equivalent_length_m, self.bare_length_m, self.loss_W_per_K))
+        if given > 1:
+            raise ValueError("give at most one of equivalent_length_m, bare_length_m or loss_W_per_K, "
+                             f"got {self.equivalent_length_m}, {self.bare_length_m}, {self.loss_W_per_K}")
+        if self.kind == "other" and given == 0:
+            raise ValueError("an 'other' heat sink needs equivalent_length_m, bare_length_m or loss_W_per_K, got none")
+        return self
+
+
 # --------------------------------------------------------------------------- segment, alternative, project
 
 
@@ -584,7 +751,10 @@ class Segment(_Model):
     pipe: Pipe = Field(default_factory=Pipe)
     elevation_change_m: ElevationChange = Field(0.0, description="outlet elevation minus inlet elevation")
     fittings: list[Fitting] = Field(default_factory=list, max_length=MAX_FITTINGS)
-    heat_input_W_per_m: HeatInputPerLength = 0.0
+    heater: Optional[Heater] = Field(None, description="electric tracing on the segment; None = none")
+    heat_sinks: list[HeatSink] = Field(default_factory=list, max_length=MAX_FITTINGS)
+    design_margin: Optional[Fraction] = Field(
+        None, description="margin on heat loss when sizing this segment's tracing; None = the project's")
     steam_tracer: Optional[SteamTracer] = None
     inside_fouling_m2K_per_W: FoulingResistance = Field(
         0.0, description="fouling resistance on the fluid side, per m² of bore surface"
@@ -593,6 +763,28 @@ class Segment(_Model):
     surroundings: Surroundings = Field(default_factory=StillAir)
 
     required_in_file: ClassVar[tuple[str, ...]] = ("length_m", "pipe")
+
+    @model_validator(mode="before")
+    @classmethod
+    def _heat_input_as_heater(cls, data):
+        # Schema 1 gave tracing as one number, heat_input_W_per_m (constant output per metre of pipe). It is
+        # read as a constant heater (the file migration and code that builds segments use this one rule).
+        if isinstance(data, dict) and "heat_input_W_per_m" in data:
+            data = dict(data)
+            q = data.pop("heat_input_W_per_m")
+            if data.get("heater") is not None:
+                raise ValueError("give heater or heat_input_W_per_m, not both")
+            if isinstance(q, (int, float)) and not isinstance(q, bool) and q > 0:
+                data["heater"] = ConstantHeater(output_W_per_m=q)
+            elif not (isinstance(q, (int, float)) and not isinstance(q, bool) and q == 0):
+                data["heater"] = {"kind": "constant", "output_W_per_m": q}  # refused by the heater's own bounds
+        return data
+
+    @property
+    def heat_input_W_per_m(self) -> float:
+        """The heater's rated output per metre of pipe [W/m]: full output (constant, thermostat), the first
+        rating point (self-limiting); 0 without a heater. What it delivers is in the solve's results."""
+        return 0.0 if self.heater is None else self.heater.full_output_per_pipe_metre
 
     @model_validator(mode="after")
     def _consistent(self) -> "Segment":
@@ -606,6 +798,14 @@ class Segment(_Model):
                 "heat_input_W_per_m cannot be combined with a fixed wall temperature "
                 f"(the wall already has its temperature), got {self.heat_input_W_per_m} W/m"
             )
+        if self.heat_sinks and isinstance(self.surroundings, (FixedWall, Adiabatic)):
+            raise ValueError(
+                "heat_sinks lose heat to the surroundings, and a held wall or an adiabatic outside has none to "
+                f"lose it to, got surroundings {self.surroundings.kind!r}")
+        if self.heater is not None and self.heater.full_output_per_pipe_metre > 1e4:
+            raise ValueError(
+                "heater output per metre of pipe (output x count x heater per pipe length) must be at most "
+                f"10000 W/m, got {self.heater.full_output_per_pipe_metre:g} W/m")
         if self.steam_tracer is not None and isinstance(self.surroundings, (FixedWall, Jacket)):
             raise ValueError(
                 "steam_tracer cannot be combined with a jacket or a fixed wall temperature "
@@ -637,11 +837,27 @@ class Targets(_Model):
     max_heat_input_W: Optional[HeatInputTarget] = None
 
 
+class DesignCases(_Model):
+    """The conditions a traced or insulated line is designed for, set once for the project.
+
+    Besides the operating case (each segment's own surroundings), a worst case (coldest design air,
+    strongest wind, optionally no flow) and a hot case (warmest air, no flow, heaters at full output).
+    The defaults are placeholders: the site's meteorological data and the owner's specification decide.
+    """
+
+    worst_air_temperature_K: AirTemperature = Field(253.15, description="minimum design ambient")
+    worst_wind_speed_m_per_s: WindSpeed = Field(10.0, description="maximum design wind")
+    worst_soil_temperature_K: Optional[SoilTemperature] = Field(None, description="None = each segment's own")
+    worst_no_flow: bool = Field(True, description="the worst case has no flow (the line must hold standing still)")
+    hot_air_temperature_K: AirTemperature = Field(313.15, description="maximum design ambient")
+    design_margin: Fraction = Field(0.2, description="margin on heat loss when sizing tracing (common practice 10-25 %)")
+
+
 class Project(_Model):
     """A Calorun project: one or more alternatives of one line, and their targets."""
 
     format: Literal["calorun-project"] = FORMAT_TAG
-    schema_version: Literal[1] = SCHEMA_VERSION
+    schema_version: Literal[2] = SCHEMA_VERSION
     name: Name = "Untitled line"
     description: Text = ""
     prepared_by: Name = ""
@@ -649,6 +865,7 @@ class Project(_Model):
     alternatives: list[Alternative] = Field(min_length=1, max_length=MAX_ALTERNATIVES)
     baseline: Optional[Name] = Field(None, description="name of the baseline alternative; None = the first")
     targets: Targets = Field(default_factory=Targets)
+    design_cases: DesignCases = Field(default_factory=DesignCases)
 
     @model_validator(mode="after")
     def _unique_names(self) -> "Project":

@@ -21,13 +21,15 @@ from solver.results import PressureDropBreakdown, Profile, Result, SegmentSpan
 from solver.state import MarchState
 
 
-def line_result(alt: Alternative, fluid, line: LineGrid, state: MarchState) -> Result:
-    """Key figures, node profiles, checks and methods of the converged line."""
+def line_result(alt: Alternative, fluid, line: LineGrid, state: MarchState, margin: float | None = None) -> Result:
+    """Key figures, node profiles, checks and methods of the converged line.
+
+    ``margin``: the project's design margin for the tracing the checks suggest (None: DesignCases' default)."""
     T, p, Q_cell, m_dot, h0 = state.T, state.p, state.Q_cell, state.m_dot, state.h_in
     # Heat input = tracing + heat from heating or cooling media (jacket, fixed wall; signed);
     # heat loss = heat to the ambient (air, soil). duty = heat input − heat loss.
     media = (line.kinds == "jacket") | (line.kinds == "fixed_wall")
-    tracing_cell = (line.q_in + state.q_tracer) * line.dx  # electric and steam tracing
+    tracing_cell = (state.q_heater + state.q_tracer) * line.dx  # electric heaters (as delivered) and steam tracing
     media_cell = np.where(media, Q_cell - tracing_cell, 0.0)
     q_loss_cell = np.where(media, 0.0, tracing_cell - Q_cell)  # W to the ambient per cell
     heat_tracing = float(np.sum(tracing_cell))
@@ -61,7 +63,7 @@ def line_result(alt: Alternative, fluid, line: LineGrid, state: MarchState) -> R
         mass_flow_kg_per_s=m_dot,
         profile=prof,
         segments=spans,
-        checks=checks_mod.line_checks(alt, fluid, line, state, prof),
+        checks=checks_mod.line_checks(alt, fluid, line, state, prof, margin),
         inlet_temperature_K=alt.feed.inlet_temperature_K,
         inlet_pressure_Pa=alt.feed.inlet_pressure_Pa,
         outlet_temperature_K=float(T[-1]),
@@ -77,6 +79,7 @@ def line_result(alt: Alternative, fluid, line: LineGrid, state: MarchState) -> R
         heat_input_tracing_W=heat_tracing,
         heat_input_media_W=heat_media,
         heat_loss_W=float(np.sum(q_loss_cell)),
+        heat_sink_loss_W=float(np.sum(state.q_sink * line.dx)),
         energy_balance_residual_W=float(residual),
         max_inner_wall_temperature_K=float(wall[i_wmax]),
         max_inner_wall_position_m=float(prof.x_m[i_wmax]),
@@ -135,16 +138,25 @@ def _node_profiles(line: LineGrid, state: MarchState, fluid, heat_in_cell: np.nd
     r_a = r_in + line.r_foul[ci] + line.r_wall[ci]
     r_out = state.r_out_total[ci].copy()  # the cells' converged outside path: the start for the nodes' own
     tinf = np.nan_to_num(line.t_inf[ci], nan=0.0)
-    q_in = line.q_in[ci]
-    g_t = state.g_tracer[ci]
-    t_t = line.t_tracer[ci]
+    # fixed heat input (constant heaters, thermostats at their duty); a self-limiting heater joins the steam
+    # tracers' path (conductance s to T0), as in the march
+    duty = np.nan_to_num(state.duty, nan=0.0)
+    q_in = line.q_in[ci] + line.q_thermostat[ci] * duty[seg_of_node]
+    g_st = state.g_tracer[ci]
+    g_sl = state.g_heater[ci]
+    g_t = g_st + g_sl
+    with np.errstate(invalid="ignore", divide="ignore"):
+        t_t = np.where(g_t > 0.0, (g_st * line.t_tracer[ci] + g_sl * line.t0_heater[ci]) / np.where(g_t > 0.0, g_t, 1.0),
+                       0.0)
+    sink_ratio = line.sink_insulated_ratio[ci]
+    g_sink_fixed = state.g_sink_fixed[ci]
     fm = line.film_mask[ci]
     cm = line.cond_mask[ci]
     r_ins_n = line.r_ins[ci]
     t_surface_film = None
     for _ in range(3 if (fm.any() or cm.any()) else 1):
         # the outside path at the node's own temperatures: a few fixed-point steps from the cell values
-        q_fluid, t_heated = _node_heat(q_in, Tm, r_a, r_out, tinf, g_t, t_t)
+        q_fluid, t_heated = _node_heat(q_in, Tm, r_a, r_out, tinf, g_t, t_t, _node_sink(r_out, sink_ratio, g_sink_fixed))
         if state.air is not None and fm.any():
             d_out = line.d_outer[ci][fm]
             if t_surface_film is None:
@@ -160,15 +172,23 @@ def _node_profiles(line: LineGrid, state: MarchState, fluid, heat_in_cell: np.nd
             cc = ci[cm]
             r_out[cm] = condensate_resistance(line.steam_pressure[cc], line.d_pipe_outer[cc], line.r_steam_foul[cc],
                                               t_heated[cm], state.factors)
-    q_fluid, t_heated = _node_heat(q_in, Tm, r_a, r_out, tinf, g_t, t_t)
+    g_sink_n = _node_sink(r_out, sink_ratio, g_sink_fixed)
+    q_fluid, t_heated = _node_heat(q_in, Tm, r_a, r_out, tinf, g_t, t_t, g_sink_n)
     t_inner_wall = Tm + q_fluid * r_in
-    q_tracer = g_t * (t_t - t_heated)
+    q_tracer = g_t * (t_t - t_heated)  # steam tracers and self-limiting heaters
     q_loss = q_in + q_tracer - q_fluid  # W/m to the surroundings (or from a heating medium, negative)
-    # the outer surface: over insulation for air/buried; the pipe outer wall for jacket/fixed/adiabatic
+    q_sink = g_sink_n * (t_heated - tinf)  # the part of it the heat sinks lose
+    q_heater = q_in + np.maximum(g_sl * (line.t0_heater[ci] - t_heated), 0.0)
+    # the outer surface: over insulation for air/buried; the pipe outer wall for jacket/fixed/adiabatic;
+    # the pipe's own loss crosses the insulation (the sinks' loss leaves through their own surfaces)
     over_insulation = np.repeat([s.kind in ("still_air", "wind", "buried") for s in segs], nodes_per_seg)
-    t_surface = np.where(over_insulation, t_heated - q_loss * r_ins_n, t_heated)
+    t_surface = np.where(over_insulation, t_heated - (q_loss - q_sink) * r_ins_n, t_heated)
     spans = []
     Q_cell, dp_cell = state.Q_cell, state.dp_cell
+    # heater output and sink loss per segment, all segments in one reduction each
+    heater_seg = np.add.reduceat(state.q_heater * line.dx, line.seg_first_cell).tolist()
+    sink_seg = np.add.reduceat(state.q_sink * line.dx, line.seg_first_cell).tolist()
+    duty_seg = state.duty.tolist()
     x_start = line.x_node[line.seg_first_cell].tolist()
     x_end = line.x_node[cell_stop].tolist()
     for s in segs:
@@ -182,6 +202,9 @@ def _node_profiles(line: LineGrid, state: MarchState, fluid, heat_in_cell: np.nd
             outer_diameter_m=s.outer_diameter_m, node_start=s.nodes.start, node_end=s.nodes.stop - 1,
             fittings_K=_segment_K(s, Re[s.nodes]), duty_W=duty, heat_input_W=heat_in,
             heat_loss_W=heat_in - duty, pressure_drop_Pa=float(np.add.reduce(dp_cell[a:b])),
+            heater_kind=s.heater_kind, heater_rated_W_per_m=s.heat_input_W_per_m,
+            heater_output_W_per_m=heater_seg[s.index] / s.length_m,
+            thermostat_duty=duty_seg[s.index], heat_sink_loss_W=sink_seg[s.index],
         ))
     prof = Profile(
         x_m=x, bulk_temperature_K=Tm, inner_wall_temperature_K=t_inner_wall,
@@ -189,6 +212,7 @@ def _node_profiles(line: LineGrid, state: MarchState, fluid, heat_in_cell: np.nd
         heat_flux_W_per_m2=q_fluid / (math.pi * Dn), heat_to_fluid_W_per_m=q_fluid, heat_loss_W_per_m=q_loss,
         inside_coefficient_W_per_m2K=h_i, reynolds=Re, velocity_m_per_s=velocity, density_kg_per_m3=pr.rho,
         saturation_temperature_K=fluid.saturation_temperature(pn), mach_number=mach,
+        heater_output_W_per_m=q_heater,
     )
     return prof, spans
 
@@ -215,15 +239,24 @@ def _at_nodes(cell_values: np.ndarray, line: LineGrid, ni: np.ndarray, ci: np.nd
     return v
 
 
-def _node_heat(q_in, Tm, r_a, r_out, t_inf, g_t, t_t):
+def _node_sink(r_out, ratio, g_fixed):
+    """Heat-sink conductance at the nodes [W/(m·K)]: insulated length scales the node's own outside path."""
+    with np.errstate(divide="ignore"):
+        g_out = np.where(np.isfinite(r_out) & (r_out > 0.0), 1.0 / r_out, 0.0)
+    return g_fixed + ratio * g_out
+
+
+def _node_heat(q_in, Tm, r_a, r_out, t_inf, g_t, t_t, g_sink=0.0):
     """Heat to the fluid [W/m] and the heated-node temperature [K] at nodes, for given resistances.
 
-    The heated node (pipe outer wall) takes the heat input q_in, loses through R_o to T∞ and gains
-    from steam tracers through 1/g_t from T_t: T_h = (q_in + Tm/R_a + T∞/R_o + g_t·T_t)/(1/R_a + 1/R_o + g_t).
+    The heated node (pipe outer wall) takes the heat input q_in, loses through R_o (and the heat sinks'
+    g_s) to T∞ and gains from steam tracers and self-limiting heaters through 1/g_t from T_t:
+    T_h = (q_in + Tm/R_a + (1/R_o + g_s)·T∞ + g_t·T_t)/(1/R_a + 1/R_o + g_s + g_t).
     """
     with np.errstate(divide="ignore"):
         g_out = np.where(np.isinf(r_out), 0.0, 1.0 / r_out)  # inf for a fixed wall (R_o = 0)
     fixed = np.isinf(g_out)
+    g_out = g_out + g_sink
     g_a = 1.0 / r_a
     g_sum = g_a + np.where(fixed, 0.0, g_out) + g_t
     t_heated = (q_in + g_a * Tm + np.where(fixed, 0.0, g_out) * t_inf + g_t * t_t) / g_sum

@@ -33,6 +33,21 @@ from solver.safe_write import WriteRefused, atomic_write_text
 MIGRATIONS: dict[int, Callable[[dict], dict]] = {}
 
 
+def _v1_to_v2(data: dict) -> dict:
+    """Schema 2 describes tracing as a heater (kind, output, runs): schema 1's ``heat_input_W_per_m`` (a
+    constant output per metre of pipe) becomes a constant heater of that output, or no heater at 0."""
+    for alt in data.get("alternatives") or []:
+        for seg in (alt.get("segments") or []) if isinstance(alt, dict) else []:
+            if isinstance(seg, dict) and "heat_input_W_per_m" in seg and "heater" not in seg:
+                q = seg.pop("heat_input_W_per_m")
+                if q != 0 or isinstance(q, bool):
+                    seg["heater"] = {"kind": "constant", "output_W_per_m": q}  # a bad value is refused by the heater
+    return data
+
+
+MIGRATIONS[1] = _v1_to_v2
+
+
 def migrate(raw: dict) -> dict:
     """Bring a raw project dict up to ``SCHEMA_VERSION``, one registered step at a time."""
     if not isinstance(raw, dict):
@@ -73,10 +88,11 @@ def _path_text(loc: tuple) -> str:
 
 
 def _strip_union_tags(loc: tuple) -> tuple:
-    tags = {"pure", "solution", "table", "still_air", "wind", "buried", "jacket", "fixed_wall", "adiabatic"}
+    tags = {"pure", "solution", "table", "still_air", "wind", "buried", "jacket", "fixed_wall", "adiabatic",
+            "constant", "self_limiting", "thermostat"}
     cleaned = []
     for i, part in enumerate(loc):
-        if isinstance(part, str) and part in tags and i > 0 and loc[i - 1] in ("fluid", "surroundings"):
+        if isinstance(part, str) and part in tags and i > 0 and loc[i - 1] in ("fluid", "surroundings", "heater"):
             continue
         cleaned.append(part)
     return tuple(cleaned)

@@ -215,7 +215,7 @@ def segment_resistances(line, state) -> "LineResistances":
     sums = np.add.reduceat(np.multiply(rows, dx, out=rows), starts, axis=1)
     # the cell heats are already per cell [W], not per metre
     sums[_Q] = np.add.reduceat(state.Q_cell, starts)
-    sums[_Q_IN] = np.add.reduceat(line.q_in * dx, starts)
+    sums[_Q_IN] = np.add.reduceat(state.q_heater * dx, starts)  # electric heaters as delivered
     length = np.add.reduceat(dx, starts)
     sums[:_Q] /= length
     t_tracer = np.asarray(line.t_tracer, dtype=float)[starts]

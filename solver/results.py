@@ -6,6 +6,7 @@ report can all read it without any physics of their own.
 
 from __future__ import annotations
 
+import math
 import re
 from dataclasses import dataclass, field
 from typing import Literal, Optional
@@ -66,6 +67,13 @@ ASSUMPTIONS: tuple[str, ...] = (
     "Heat input (tracing) is uniform around the pipe and along each segment and enters at the outer "
     "surface of the pipe wall, under the insulation; local hot spots at a tracer's contact line "
     "are not modelled.",
+    "Electric heaters: constant output; self-limiting output falls linearly with the pipe-wall temperature "
+    "through the two rating points and beyond, never below zero (common practice); a thermostat gives the "
+    "steady share of its full output (its duty) that holds the segment's coldest pipe wall at the set point, "
+    "the on/off cycling averaged out.",
+    "Heat sinks (supports, valves, flanges, pumps, instruments) lose as equivalent lengths of the segment's "
+    "insulated or bare pipe, or a direct W/K, spread evenly along the segment (published trace-heating "
+    "allowances; sources in solver.heat_sinks).",
     "Pipe wall and insulation layers conduct radially with the constant conductivities entered or "
     "taken from the material catalogue; no contact resistance between layers. With a jacket or a "
     "fixed wall temperature, insulation layers play no part.",
@@ -109,6 +117,9 @@ class Check:
 
 #: Short plain titles of the check codes (the messages say the rest).
 CHECK_TITLES: dict[str, str] = {
+    "DESIGN_NOT_HELD": "tracing cannot hold in the worst case",
+    "HOT_CASE_WALL": "wall too hot in the hot case",
+    "WORST_CASE_FAILED": "worst case has no solution",
     "BOILING_BULK": "the liquid boils",
     "BOILING_WALL": "boiling at the wall",
     "NEAR_BOILING": "close to boiling",
@@ -185,6 +196,7 @@ PROFILE_COLUMNS: dict[str, tuple[str, str]] = {
     "heat_flux_W_per_m2": ("Heat flux into fluid at inner wall", "W/m²"),
     "heat_to_fluid_W_per_m": ("Heat to fluid per length", "W/m"),
     "heat_loss_W_per_m": ("Heat loss per length (− = gained)", "W/m"),
+    "heater_output_W_per_m": ("Heater output delivered per length of pipe", "W/m"),
     "inside_coefficient_W_per_m2K": ("Inside film coefficient", "W/(m²·K)"),
     "reynolds": ("Reynolds number", "-"),
     "velocity_m_per_s": ("Velocity", "m/s"),
@@ -217,6 +229,8 @@ class Profile:
     #: local velocity / speed of sound (CoolProp) at the nodes; None where the property source has no speed
     #: of sound (solutions, user tables: liquids, whose Mach number is negligible). Not a CSV column.
     mach_number: Optional[np.ndarray] = None
+    #: electric heater output delivered at the node's pipe-wall temperature [W per m of pipe], 0 without a heater
+    heater_output_W_per_m: Optional[np.ndarray] = None
 
     def columns(self) -> dict[str, np.ndarray]:
         return {key: getattr(self, key) for key in PROFILE_COLUMNS}
@@ -237,8 +251,27 @@ class SegmentSpan:
     fittings_K: float  # sum of loss coefficients (count included)
     duty_W: float
     heat_input_W: float  # tracing + heat from heating/cooling media
-    heat_loss_W: float  # to the ambient
+    heat_loss_W: float  # to the ambient, heat sinks included
     pressure_drop_Pa: float
+    heater_kind: str = ""  # "constant", "self_limiting", "thermostat"; "" without an electric heater
+    heater_rated_W_per_m: float = 0.0  # rated output per metre of pipe (Segment.heat_input_W_per_m)
+    heater_output_W_per_m: float = 0.0  # delivered, length-mean per metre of pipe at the solved wall temperature
+    thermostat_duty: float = math.nan  # share of full output a thermostat gives (0–1); NaN without one
+    heat_sink_loss_W: float = 0.0  # of heat_loss_W, what the segment's heat sinks lose
+
+    @property
+    def length_m(self) -> float:
+        return self.x_end_m - self.x_start_m
+
+    @property
+    def heat_loss_W_per_m(self) -> float:
+        """The segment's heat loss per metre of pipe, heat sinks included [W/m] (what a heater is sized by)."""
+        return self.heat_loss_W / self.length_m
+
+    @property
+    def pipe_heat_loss_W_per_m(self) -> float:
+        """The pipe's own heat loss per metre, without the heat sinks [W/m]."""
+        return (self.heat_loss_W - self.heat_sink_loss_W) / self.length_m
 
 
 @dataclass(frozen=True)
@@ -324,6 +357,12 @@ KEY_FIGURES: tuple[KeyFigure, ...] = (
     _kf("heat_loss_W", "Heat loss to surroundings", "power", "Heat",
         "Heat to the ambient air and soil; negative when the surroundings heat the line.",
         negative_label="Heat gained from surroundings"),
+    _kf("heat_sink_loss_W", "heat sinks", "power", "Heat",
+        "Loss of supports, valves, flanges, pumps and instruments: equivalent lengths of the segment's insulated "
+        "or bare pipe at its solved temperatures, or a direct W/K (solver.heat_sinks names each value's source).",
+        part_of="heat_loss_W"),
+    _kf("max_heat_loss_per_length_W_per_m", "Highest heat loss per metre (a segment)", "power_per_length", "Heat",
+        "The largest of the segments' heat loss ÷ length, heat sinks included: what a heater is chosen by."),
     _kf("energy_balance_residual_W", "Energy balance residual", "power", "Heat",
         "m·(h_out − h_in + g·Δz) − heat to fluid; round-off when the march has closed.", compared=False),
     _kf("max_inner_wall_temperature_K", "Max inner-wall temperature", "temperature", "Wall and flow",
@@ -396,6 +435,14 @@ class Result:
     methods: list[str] = field(default_factory=list)  # correlations used, with sources
     # per segment: its heat path as resistances per metre (solver.resistances.SegmentResistances)
     resistances: list = field(default_factory=list)
+    # the design cases (solver.design_cases.DesignResult) when solve(..., design=...) asked for them
+    design: object = None
+    heat_sink_loss_W: float = 0.0  # of heat_loss_W, what the heat sinks lose
+
+    @property
+    def max_heat_loss_per_length_W_per_m(self) -> float:
+        """The largest segment heat loss per metre, heat sinks included [W/m]."""
+        return max((s.heat_loss_W_per_m for s in self.segments), default=math.nan)
 
     @property
     def pressure_drop_Pa(self) -> float:
@@ -435,6 +482,8 @@ class Result:
             "heat_input_tracing_W": self.heat_input_tracing_W,
             "heat_input_media_W": self.heat_input_media_W,
             "heat_loss_W": self.heat_loss_W,
+            "heat_sink_loss_W": self.heat_sink_loss_W,
+            "max_heat_loss_per_length_W_per_m": self.max_heat_loss_per_length_W_per_m,
             "energy_balance_residual_W": self.energy_balance_residual_W,
             "max_inner_wall_temperature_K": self.max_inner_wall_temperature_K,
             "max_inner_wall_position_m": self.max_inner_wall_position_m,
@@ -472,6 +521,13 @@ class Result:
                 "heat_input_W": s.heat_input_W,
                 "heat_loss_W": s.heat_loss_W,
                 "pressure_drop_Pa": s.pressure_drop_Pa,
+                "heat_loss_W_per_m": s.heat_loss_W_per_m,
+                "pipe_heat_loss_W_per_m": s.pipe_heat_loss_W_per_m,
+                "heat_sink_loss_W": s.heat_sink_loss_W,
+                "heater_kind": s.heater_kind or None,
+                "heater_rated_W_per_m": s.heater_rated_W_per_m,
+                "heater_output_W_per_m": s.heater_output_W_per_m,
+                "thermostat_duty_fraction": None if not math.isfinite(s.thermostat_duty) else s.thermostat_duty,
             }
             for s in self.segments
         ]

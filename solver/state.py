@@ -53,6 +53,12 @@ class MarchState:
     factors: MethodFactors = NEUTRAL  # multipliers the solve used (uncertainty bands)
     gas: bool = False  # the fluid is compressible (property correction by temperature ratio)
     wall_groups: dict = None  # the property-ratio groups per cell (for the validity check), or None
+    q_heater: np.ndarray = None  # electric heater output delivered [W/m of pipe], cell means
+    g_heater: np.ndarray = None  # self-limiting heater slope in use [W/(m·K)]: 0 where it gives nothing
+    duty: np.ndarray = None  # per segment: thermostat duty (0–1), NaN without a thermostat
+    g_sink: np.ndarray = None  # heat-sink conductance to the surroundings [W/(m·K)] per cell, 0 without
+    g_sink_fixed: np.ndarray = None  # its bare-pipe and direct part (the rest scales with the outside path)
+    q_sink: np.ndarray = None  # heat-sink loss [W/m of pipe], cell means
 
     @property
     def dp_cell(self) -> np.ndarray:

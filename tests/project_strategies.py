@@ -39,6 +39,11 @@ from solver.fittings import FITTINGS
 from solver.model import (
     Alternative,
     Buried,
+    ConstantHeater,
+    DesignCases,
+    HeatSink,
+    SelfLimitingHeater,
+    ThermostatHeater,
     Feed,
     Fitting,
     FixedWall,
@@ -387,7 +392,11 @@ def segments(draw, wild: int = 0, index: int = 0):
         seg["elevation_change_m"] = max(-length, min(length, frac * length))
     seg["fittings"] = draw(st.lists(fittings(wild), max_size=4 if not wild else 6))
     if sur["kind"] != "fixed_wall" and _optional(draw, 35):
-        seg["heat_input_W_per_m"] = number(draw, Segment, "heat_input_W_per_m", (1.0, 150.0), wild)
+        seg["heater"] = draw(heaters(wild))
+    if sur["kind"] not in ("fixed_wall", "adiabatic") and _optional(draw, 20):
+        seg["heat_sinks"] = draw(st.lists(heat_sinks(wild), min_size=1, max_size=3))
+    if _optional(draw, 10):
+        seg["design_margin"] = number(draw, Segment, "design_margin", (0.0, 0.3), wild)
     if sur["kind"] not in ("fixed_wall", "jacket") and _optional(draw, 15):
         seg["steam_tracer"] = {
             "steam_pressure_Pa": number(draw, SteamTracer, "steam_pressure_Pa", (1.5e5, 1.2e6), wild),
@@ -401,10 +410,54 @@ def segments(draw, wild: int = 0, index: int = 0):
     seg["insulation"] = [
         {"material": draw(st.sampled_from(sorted(catalogue.INSULATION_MATERIALS))),
          "thickness_m": number(draw, Layer, "thickness_m", (0.01, 0.15), wild),
-         "conductivity_W_per_mK": number(draw, Layer, "conductivity_W_per_mK", (0.015, 0.12), wild)}
+         # about half the layers take the material's k(T) (no conductivity given)
+         **({} if _optional(draw, 50) else
+            {"conductivity_W_per_mK": number(draw, Layer, "conductivity_W_per_mK", (0.015, 0.12), wild)})}
         for _ in range(n_layers)
     ]
     return seg
+
+
+@st.composite
+def heaters(draw, wild: int = 0):
+    """Electric tracing of each kind the model offers, with runs and spiralling now and then."""
+    kind = draw(st.sampled_from(["constant", "self_limiting", "thermostat"]))
+    heater: dict = {"kind": kind}
+    if _optional(draw, 15):
+        heater["count"] = int(number(draw, ConstantHeater, "count", (1, 3), wild))
+    if _optional(draw, 15):
+        heater["heater_per_pipe_length"] = number(draw, ConstantHeater, "heater_per_pipe_length", (1.0, 2.5), wild)
+    if kind == "constant":
+        heater["output_W_per_m"] = number(draw, ConstantHeater, "output_W_per_m", (1.0, 150.0), wild)
+    elif kind == "thermostat":
+        heater["output_W_per_m"] = number(draw, ThermostatHeater, "output_W_per_m", (5.0, 150.0), wild)
+        heater["set_point_K"] = number(draw, ThermostatHeater, "set_point_K", (275.0, 420.0), wild)
+    else:
+        t_low = number(draw, SelfLimitingHeater, "temperature_low_K", (270.0, 300.0), wild)
+        t_high = number(draw, SelfLimitingHeater, "temperature_high_K", (t_low + 20.0, t_low + 120.0), wild)
+        q_low = number(draw, SelfLimitingHeater, "output_low_W_per_m", (10.0, 100.0), wild)
+        q_high = number(draw, SelfLimitingHeater, "output_high_W_per_m", (0.0, q_low), wild)
+        assume(t_high > t_low and q_high < q_low)
+        heater.update(output_low_W_per_m=q_low, temperature_low_K=t_low, output_high_W_per_m=q_high,
+                      temperature_high_K=t_high)
+    return heater
+
+
+@st.composite
+def heat_sinks(draw, wild: int = 0):
+    kind = draw(st.sampled_from(["pipe_support", "valve", "flange_pair", "pump", "instrument", "other"]))
+    sink: dict = {"kind": kind, "count": int(number(draw, HeatSink, "count", (1, 12), wild)),
+                  "label": _name(draw, "", wild)}
+    how = draw(st.sampled_from(["catalogue", "equivalent_length_m", "bare_length_m", "loss_W_per_K"]))
+    if kind == "other" and how == "catalogue":
+        how = "equivalent_length_m"
+    if how == "equivalent_length_m":
+        sink[how] = number(draw, HeatSink, how, (0.1, 5.0), wild)
+    elif how == "bare_length_m":
+        sink[how] = number(draw, HeatSink, how, (0.05, 1.0), wild)
+    elif how == "loss_W_per_K":
+        sink[how] = number(draw, HeatSink, how, (0.05, 3.0), wild)
+    return sink
 
 
 # --------------------------------------------------------------------------- alternative, project
@@ -426,6 +479,9 @@ def alternatives(draw, wild: int = 0, name: str = "Base case", max_segments: Opt
     if _optional(draw, 20):
         limits["min_bulk_temperature_K"] = number(draw, Limits, "min_bulk_temperature_K",
                                                   (t_rng[0] - 20.0, t_rng[0] + 10.0), wild)
+    if _optional(draw, 20):
+        limits["maintain_temperature_K"] = number(draw, Limits, "maintain_temperature_K",
+                                                  (t_rng[0] - 10.0, t_rng[0] + 20.0), wild)
     alt["limits"] = limits
     return alt
 
@@ -441,8 +497,29 @@ def project_dicts(draw, wild: Optional[int] = None, max_alternatives: int = 3, m
     n_alt = draw(st.integers(1, max_alternatives))
     alts = [draw(alternatives(wild, name=f"Alternative {i + 1}" if i else "Base case", max_segments=max_segments))
             for i in range(n_alt)]
-    project = {"format": "calorun-project", "schema_version": 1, "name": _name(draw, "Fuzz line", wild),
-               "alternatives": alts}
+    # schema 1 now and then, so the migration (tracing as heat_input_W_per_m) is fuzzed too
+    old_file = all("heater" not in seg or seg["heater"]["kind"] == "constant" and len(seg["heater"]) == 2
+                   for alt in alts for seg in alt["segments"]) and _optional(draw, 20)
+    if old_file:
+        for alt in alts:
+            for seg in alt["segments"]:
+                seg.pop("heat_sinks", None), seg.pop("design_margin", None)
+                for layer in seg["insulation"]:
+                    layer.setdefault("conductivity_W_per_mK", 0.04)
+                if "heater" in seg:
+                    seg["heat_input_W_per_m"] = seg.pop("heater")["output_W_per_m"]
+            alt["limits"].pop("maintain_temperature_K", None)
+    project = {"format": "calorun-project", "schema_version": 1 if old_file else 2,
+               "name": _name(draw, "Fuzz line", wild), "alternatives": alts}
+    if not old_file and _optional(draw, 40):
+        cases = {}
+        for key, typical in (("worst_air_temperature_K", (235.0, 275.0)), ("worst_wind_speed_m_per_s", (2.0, 20.0)),
+                             ("hot_air_temperature_K", (295.0, 320.0)), ("design_margin", (0.0, 0.3))):
+            if _optional(draw, 50):
+                cases[key] = number(draw, DesignCases, key, typical, wild)
+        if _optional(draw, 30):
+            cases["worst_no_flow"] = draw(st.booleans())
+        project["design_cases"] = cases
     targets = {}
     if _optional(draw, 20):
         targets["outlet_temperature_min_K"] = number(draw, Targets, "outlet_temperature_min_K", (250.0, 350.0), wild)
@@ -458,6 +535,9 @@ def project_dicts(draw, wild: Optional[int] = None, max_alternatives: int = 3, m
     project["targets"] = targets
     if n_alt > 1 and _optional(draw, 30):
         project["baseline"] = alts[draw(st.integers(0, n_alt - 1))]["name"]
+    if old_file:
+        from solver.project_io import migrate
+        project = migrate(project)
     try:
         validated = Project.model_validate(project)
     except ValidationError:

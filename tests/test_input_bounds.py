@@ -115,7 +115,7 @@ S = A0 + ".segments"
 TOO_BIG = [
     (f"{S}[0].insulation[0].thickness_m", 1e308, "must be at most 1 m, got 1e+308 m"),  # the crash
     (f"{S}[0].length_m", 1e6, "at most 100000 m"),
-    (f"{S}[0].heat_input_W_per_m", 1e9, "at most 10000 W/m"),
+    (f"{S}[0].heater.output_W_per_m", 1e9, "at most 10000 W/m"),
     (f"{S}[0].inside_fouling_m2K_per_W", 5.0, "at most 0.01 m²·K/W"),
     (f"{S}[0].insulation[0].conductivity_W_per_mK", 1e9, "at most 500 W/(m·K)"),
     (f"{S}[0].fittings[1].K", 1e12, "at most 1000"),
@@ -169,7 +169,7 @@ TOO_SMALL = [
     (f"{S}[1].surroundings.wind_speed_m_per_s", 1e-300, "at least 0.1 m/s"),
     (f"{S}[2].surroundings.soil_temperature_K", 100.0, "at least 223.15 K"),
     (f"{S}[2].surroundings.depth_m", 1e-6, "at least 0.01 m"),
-    (f"{S}[0].heat_input_W_per_m", -5.0, "at least 0 W/m"),
+    (f"{S}[0].heater.output_W_per_m", -5.0, "at least 0 W/m"),
     (f"{A0}.feed.mass_flow_kg_per_s", 5e-324, "at least 1e-06 kg/s"),
     (f"{A0}.feed.inlet_pressure_Pa", 1.0, "at least 1000 Pa"),
     (f"{A0}.feed.inlet_temperature_K", 0, "must be more than 0 K"),
@@ -192,7 +192,7 @@ def test_the_edges_of_each_range_are_accepted():
     data = raw()
     for path, value in [(f"{S}[0].length_m", 1e5), (f"{S}[0].insulation[0].thickness_m", 1.0),
                         (f"{S}[0].surroundings.temperature_K", 173.15), (f"{S}[1].surroundings.temperature_K", 473.15),
-                        (f"{S}[0].heat_input_W_per_m", 1e4), (f"{S}[1].pipe.inner_diameter_m", 3.0),
+                        (f"{S}[0].heater.output_W_per_m", 1e4), (f"{S}[1].pipe.inner_diameter_m", 3.0),
                         (f"{A0}.feed.inlet_pressure_Pa", 1e8), (f"{A0}.feed.mass_flow_kg_per_s", 1e-6)]:
         put(data, path, value)
     project = parse_project(json.dumps(data))

@@ -104,7 +104,7 @@ def test_round_trip_equal_and_byte_identical():
     assert again == project
     assert dump_project(again) == text
     data = json.loads(text)  # plain JSON (RFC 8259): no NaN/Infinity tokens, format tag and version present
-    assert data["format"] == "calorun-project" and data["schema_version"] == 1
+    assert data["format"] == "calorun-project" and data["schema_version"] == 2
     assert "NaN" not in text and "Infinity" not in text
     assert text.endswith("\n")
 
@@ -226,7 +226,7 @@ def test_newer_schema_version():
     data = raw()
     data["schema_version"] = 99
     msg = find(problems_of(data), "schema_version")
-    assert "99" in msg and "1" in msg
+    assert "99" in msg and "2" in msg
     data["schema_version"] = "one"
     assert "one" in find(problems_of(data), "schema_version")
 
@@ -346,3 +346,25 @@ def test_saved_files_get_the_usual_permissions_not_the_temporary_files(tmp_path)
         assert existing.stat().st_mode & 0o777 == 0o664 and existing.read_text() == "new"
     finally:
         os.umask(umask)
+
+
+def test_schema_1_tracing_becomes_a_constant_heater():
+    # schema 1 (before heaters) gave tracing as one number per metre of pipe; the file keeps its meaning
+    data = json.loads(dump_project(rich_project()))
+    data["schema_version"] = 1
+    for seg in data["alternatives"][0]["segments"]:
+        seg.pop("heater", None), seg.pop("heat_sinks", None), seg.pop("design_margin", None)
+        seg["heat_input_W_per_m"] = 0.0
+    data.pop("design_cases", None)
+    data["alternatives"][0]["limits"].pop("maintain_temperature_K", None)
+    segs = data["alternatives"][0]["segments"]
+    segs[0]["heat_input_W_per_m"] = 25.0
+    project = parse_project(json.dumps(data))
+    first = project.alternatives[0].segments[0]
+    assert first.heater is not None and first.heater.kind == "constant"
+    assert first.heater.output_W_per_m == 25.0 and first.heat_input_W_per_m == 25.0
+    assert all(s.heater is None for s in project.alternatives[0].segments[1:])
+    assert json.loads(dump_project(project))["schema_version"] == 2
+    segs[0]["heat_input_W_per_m"] = -5.0  # still refused, on the heater it became
+    msg = find(problems_of(json.dumps(data)), "alternatives[0].segments[0].heater.output_W_per_m")
+    assert "-5" in msg
