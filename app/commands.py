@@ -27,7 +27,17 @@ FIELD_LABELS = {
     "name": "name",
     "length_m": "length",
     "elevation_change_m": "elevation change",
-    "heat_input_W_per_m": "heat input",
+    "heater": "heater",
+    "heater.output_W_per_m": "heater output",
+    "heater.output_low_W_per_m": "heater output at the lower rating temperature",
+    "heater.temperature_low_K": "heater lower rating temperature",
+    "heater.output_high_W_per_m": "heater output at the upper rating temperature",
+    "heater.temperature_high_K": "heater upper rating temperature",
+    "heater.set_point_K": "thermostat set point",
+    "heater.count": "heater runs",
+    "heater.heater_per_pipe_length": "heater per metre of pipe",
+    "heat_sinks": "heat sinks",
+    "design_margin": "design margin",
     "inside_fouling_m2K_per_W": "inside fouling",
     "steam_tracer": "steam tracer",
     "steam_tracer.steam_pressure_Pa": "tracer steam pressure",
@@ -55,6 +65,7 @@ FIELD_LABELS = {
     "feed.inlet_flow": "flow at inlet",
     "limits.max_inner_wall_temperature_K": "max inner-wall temperature",
     "limits.min_bulk_temperature_K": "min bulk temperature",
+    "limits.maintain_temperature_K": "maintain temperature",
     "description": "description",
 }
 
@@ -63,7 +74,7 @@ def field_label(path: str) -> str:
     if path in FIELD_LABELS:
         return FIELD_LABELS[path]
     head = path.split(".")[0]
-    if head in ("insulation", "fittings", "surroundings"):
+    if head in ("insulation", "fittings", "surroundings", "heat_sinks"):
         return FIELD_LABELS[head]
     return path.split(".")[-1].replace("_", " ")
 
@@ -245,13 +256,13 @@ class DuplicateSegment(InsertSegment):
 def continuation_of(segment: Segment, name: str) -> Segment:
     """A new segment that continues ``segment``'s pipe and wall model.
 
-    It keeps what sets the heat path (pipe, heat input, steam tracer, inside fouling, insulation,
-    surroundings), so a segment
+    It keeps what sets the heat path (pipe, heater, steam tracer, inside fouling, insulation,
+    surroundings) and the segment's design margin on its tracing, so a segment
     inserted into a traced, insulated run is traced and insulated too and opens no cold gap;
-    it starts level, without fittings and at the default length, since those belong to the
-    place along the line, not to the wall.
+    it starts level, without fittings or heat sinks and at the default length, since those belong
+    to the place along the line, not to the wall.
     """
-    return Segment(name=name, pipe=segment.pipe, heat_input_W_per_m=segment.heat_input_W_per_m,
+    return Segment(name=name, pipe=segment.pipe, heater=segment.heater, design_margin=segment.design_margin,
                    steam_tracer=segment.steam_tracer, inside_fouling_m2K_per_W=segment.inside_fouling_m2K_per_W,
                    insulation=list(segment.insulation), surroundings=segment.surroundings)
 

@@ -10,10 +10,17 @@ The solve runner is the one place in the app that calls the solver (:func:`run_s
 every view, the report export and any later tool get the same results and the same error
 messages:
 
-- Results are cached by content: the key is a hash of the alternative's JSON dump (everything
-  ``solve`` reads), so an unchanged alternative is never solved twice, an undo brings its result
-  back at once, and an edit of one alternative leaves the others' results in place. The cache
-  holds the last :data:`RESULT_CACHE_SIZE` outcomes; a hit returns the same ``Result`` object.
+- Every alternative is solved with the project's design cases (``solve(alt, design=...)``): the
+  worst and hot cases and the tracing need come with each result (``result.design``). Its Hold Time
+  (``result.design.hold_time``, worked out when first read: 10-30 ms) is read on the worker, never by
+  a view: a worker solve reads it in the same job; after a solve run inline on the GUI thread it
+  follows as a job of its own, announced by :attr:`hold_time_ready`. Views ask
+  :meth:`Document.hold_time_of`, which gives it only once it has been worked out.
+- Results are cached by content: the key is a hash of the alternative's JSON dump and the project's
+  design cases (everything ``solve`` reads), so an unchanged alternative is never solved twice, an
+  undo brings its result back at once, an edit of one alternative leaves the others' results in
+  place, and an edit of a design case solves them again. The cache holds the last
+  :data:`RESULT_CACHE_SIZE` outcomes; a hit returns the same ``Result`` object.
 - The current alternative (Profiles, Key Figures, Checks): :meth:`request_solve` is debounced (a
   burst of edits gives one solve) and its outcome arrives as :attr:`result_ready` or
   :attr:`solve_failed`. A solve known to be quick (a few ms of CPU last time, same fluid) runs on
@@ -38,8 +45,9 @@ Uncertainty bands (:mod:`solver.uncertainty`: each method re-solved at the edges
 accuracy) of the current alternative are computed on the same worker after its result is on
 screen and the edits have paused for :data:`BANDS_DELAY_MS`, at the lowest priority, one job
 that checks between its solves whether it is still wanted: an edit cancels it, so a new result
-waits at most for one perturbed solve. Bands are cached by the same content key as results and
-announced by :attr:`bands_ready`; :meth:`bands_for_result` gives the bands of a result on screen.
+waits at most for one perturbed solve. Bands are solved without the design cases and cached by the
+alternative's content alone (an edit of a design case keeps them), and announced by
+:attr:`bands_ready`; :meth:`bands_for_result` gives the bands of a result on screen.
 """
 
 from __future__ import annotations
@@ -59,7 +67,7 @@ from typing import Optional, Union
 from PySide6.QtCore import QCoreApplication, QEvent, QObject, QRunnable, QThreadPool, Qt, QTimer, Signal
 from PySide6.QtGui import QUndoCommand, QUndoStack
 
-from solver.model import Alternative, Project, Segment
+from solver.model import Alternative, DesignCases, Project, Segment
 
 log = logging.getLogger(__name__)
 
@@ -107,34 +115,81 @@ def default_project() -> Project:
     )
 
 
-def alternative_key(alternative: Alternative) -> str:
-    """The content key of ``alternative``: a hash of its JSON dump, i.e. of everything ``solve`` reads.
+def alternative_key(alternative: Alternative, design: Optional[DesignCases] = None) -> str:
+    """The content key of ``alternative`` solved with ``design``: a hash of their JSON dumps, i.e. of
+    everything ``solve`` reads.
 
     Floats are dumped exactly (shortest round-trip form), so two alternatives share a key only when
     the solver would see the same inputs.
     """
-    return hashlib.blake2b(alternative.model_dump_json().encode("utf-8"), digest_size=16).hexdigest()
+    text = alternative.model_dump_json()
+    if design is not None:
+        text += "\x00" + design.model_dump_json()
+    return hashlib.blake2b(text.encode("utf-8"), digest_size=16).hexdigest()
 
 
-def run_solver(alternative: Alternative):
+def run_solver(alternative: Alternative, design: Optional[DesignCases] = None, hold_time: bool = True):
     """``(result, error, cpu_seconds)`` of one solve; never raises. The one call of the solver in the app.
 
-    ``error`` is "" when solved. A :class:`solver.errors.CalorunError` (bad input, a state the solver
-    cannot handle) gives its own plain message; any other exception is a bug: it is logged with its
-    traceback and reported as "internal error (…)", so one broken alternative cannot take the app down.
+    With ``design`` (the project's design cases) the result carries ``result.design``; with
+    ``hold_time`` its Hold Time is worked out here too (it is computed when first read: on the solving
+    thread, never by a view; see :func:`run_hold_time` for a solve that leaves it for later).
+    ``error`` is "" when solved. A :class:`solver.errors.CalorunError` (bad input, a state the
+    solver cannot handle) gives its own plain message; any other exception is a bug: it is logged with
+    its traceback and reported as "internal error (…)", so one broken alternative cannot take the app down.
     """
     from solver import solve
     from solver.errors import CalorunError
 
     cpu0 = time.thread_time()
     try:
-        result = solve(alternative)
+        result = solve(alternative, design=design)
+        if hold_time and result.design is not None:
+            result.design.hold_time  # noqa: B018 - worked out now, on this thread (see DesignResult.hold_time)
     except CalorunError as exc:
         return None, str(exc), time.thread_time() - cpu0
     except Exception as exc:  # noqa: BLE001 - the boundary between the app and a solver bug: log it, keep running
         log.exception("internal error while solving alternative %r", getattr(alternative, "name", "?"))
         return None, f"internal error ({type(exc).__name__}: {exc})", time.thread_time() - cpu0
     return result, "", time.thread_time() - cpu0
+
+
+def run_hold_time(result) -> str:
+    """Work out ``result.design.hold_time`` (of a result solved with ``hold_time=False``); "" or the
+    error. Never raises: the Hold Time's own error leaves the result as it is and is logged."""
+    from solver.errors import CalorunError
+
+    try:
+        result.design.hold_time  # noqa: B018 - worked out when first read
+    except CalorunError as exc:
+        return str(exc)
+    except Exception as exc:  # noqa: BLE001 - the boundary between the app and a solver bug: log it, keep running
+        log.exception("internal error while working out the Hold Time of %r", getattr(result, "name", "?"))
+        return f"internal error ({type(exc).__name__}: {exc})"
+    return ""
+
+
+class _HoldJob(QRunnable):
+    """The Hold Time of a result solved inline on the GUI thread, worked out on the worker."""
+
+    def __init__(self, ticket: "_HoldTicket", sink: "_SolveSink"):
+        super().__init__()
+        self.setAutoDelete(True)
+        self._ticket = ticket
+        self._sink = sink
+
+    def run(self) -> None:  # worker thread
+        self._ticket.error = run_hold_time(self._ticket.result)
+        self._sink.finished.emit(self._ticket)
+
+
+class _HoldTicket:
+    __slots__ = ("result", "error", "handled")
+
+    def __init__(self, result):
+        self.result = result
+        self.error = ""
+        self.handled = False  # taken in on the GUI thread (by the queued signal or by _hold_now)
 
 
 def run_bands(alternative: Alternative, result, cancelled=None):
@@ -192,12 +247,15 @@ class SolveFailure(Exception):
 class _Ticket:
     """One solve: what to solve, why, and (once done) its outcome. Passed whole through the queued signal."""
 
-    __slots__ = ("key", "alternative", "generation", "cancelled", "started", "skipped", "done", "handled",
-                 "result", "error", "cpu")
+    __slots__ = ("key", "alternative", "design", "generation", "cancelled", "started", "skipped", "done",
+                 "handled", "result", "error", "cpu", "inline")
 
-    def __init__(self, key: str, alternative: Alternative, generation: Optional[int]):
+    def __init__(self, key: str, alternative: Alternative, generation: Optional[int],
+                 design: Optional[DesignCases] = None):
         self.key = key
         self.alternative = alternative
+        self.design = design  # the project's design cases when the job was made (a value: safe to read off-thread)
+        self.inline = False  # run on the GUI thread: its Hold Time follows on the worker (Document._hold_later)
         # the model generation of the current alternative this solve is for; None for a background solve
         self.generation = generation
         self.cancelled = False  # set on the GUI thread when the alternative changed before the job ran
@@ -231,7 +289,7 @@ class _SolveJob(QRunnable):
         if t.cancelled:
             t.skipped = True  # edited before its turn came: nothing to solve
         else:
-            t.result, t.error, t.cpu = run_solver(t.alternative)
+            t.result, t.error, t.cpu = run_solver(t.alternative, t.design, hold_time=not t.inline)
         t.done = True
         self._sink.finished.emit(t)
 
@@ -255,6 +313,8 @@ class Document(QObject):
     alternative_solved = Signal(str, object, str)
     # uncertainty bands ready: (alternative name, solver.uncertainty.Bands)
     bands_ready = Signal(str, object)
+    # the Hold Time of a result worked out (after an inline solve): the Result
+    hold_time_ready = Signal(object)
 
     def __init__(self, project: Optional[Project] = None, unit_system: str = "SI", parent: Optional[QObject] = None):
         super().__init__(parent)
@@ -305,6 +365,12 @@ class Document(QObject):
         self._bands_timer.setSingleShot(True)
         self._bands_timer.setInterval(BANDS_DELAY_MS)
         self._bands_timer.timeout.connect(self._start_bands)
+
+        # results whose Hold Time has been worked out (on the worker, or by a synchronous call): by id,
+        # with the result held so the id stays its own
+        self._hold_done: dict[int, object] = {}
+        self._hold_sink = _SolveSink(self)
+        self._hold_sink.finished.connect(self._arrived_hold)
 
         self.undo_stack.cleanChanged.connect(self._on_clean_changed)
         _LIVE_DOCUMENTS.add(self)
@@ -496,10 +562,11 @@ class Document(QObject):
 
     def _solve_inline(self) -> None:
         alt = self.current_alternative
-        key = alternative_key(alt)
+        key = self._key(alt)
         if self._serve_current_from_cache(key):
             return
-        ticket = _Ticket(key, alt, self._model_generation)
+        ticket = _Ticket(key, alt, self._model_generation, self.project.design_cases)
+        ticket.inline = True
         self._solve_started_at = time.perf_counter()
         self._last_solved_fluid = alt.fluid
         self.solve_started.emit()
@@ -518,7 +585,7 @@ class Document(QObject):
         if self._published_generation == self._model_generation:
             return  # what was asked for is on screen already (e.g. the debounce timer fired after the result)
         alt = self.current_alternative
-        key = alternative_key(alt)
+        key = self._key(alt)
         if self._serve_current_from_cache(key):
             return
         if self._running_generation is not None:
@@ -533,7 +600,7 @@ class Document(QObject):
         if running is not None and not running.cancelled:
             running.generation = self._model_generation  # already on its way as a background solve: adopt it
             return
-        self._submit(_Ticket(key, alt, self._model_generation), _PRIORITY_CURRENT)
+        self._submit(_Ticket(key, alt, self._model_generation, self.project.design_cases), _PRIORITY_CURRENT)
 
     def _submit(self, ticket: _Ticket, priority: int) -> None:
         self._in_flight[ticket.key] = ticket
@@ -557,6 +624,11 @@ class Document(QObject):
         if self._in_flight.get(ticket.key) is ticket:
             del self._in_flight[ticket.key]
         if not ticket.skipped:
+            if ticket.result is not None and ticket.result.design is not None:
+                if ticket.inline:
+                    self._hold_later(ticket.result)
+                else:
+                    self._hold_done[id(ticket.result)] = ticket.result
             # content-keyed, so right for its content even if the model has moved on (an undo may want
             # it back); announced only to alternatives that still have this content
             self._cache_put(ticket.key, (ticket.result, ticket.error))
@@ -615,6 +687,7 @@ class Document(QObject):
         self._running_generation = None
         self._solve_wanted = False
         self._solve_inline()
+        self._hold_now(self.result)  # a script wants the whole result: its Hold Time on this thread too
         return self.result
 
     @property
@@ -636,8 +709,12 @@ class Document(QObject):
         raise KeyError(f"no alternative named {which!r}; the project has {', '.join(repr(a.name) for a in alts)}")
 
     def outcome_for(self, which: Union[int, str]) -> Optional[tuple]:
-        """``(Result or None, error or "")`` held for this alternative (index or name), or None if not solved yet."""
-        return self._cache_get(alternative_key(self._alternative(which)))
+        """``(Result or None, error or "")`` held for this alternative (index or name), or None if not solved yet.
+
+        Its Hold Time may still be on its way (after an inline solve): read it with :meth:`hold_time_of`,
+        or take the results from :meth:`results_now`, which waits for it.
+        """
+        return self._cache_get(self._key(self._alternative(which)))
 
     def result_for(self, which: Union[int, str]):
         """The held Result of this alternative (index or name), or None (not solved yet, or failed)."""
@@ -653,14 +730,14 @@ class Document(QObject):
         alts = [self._alternative(n) for n in names] if names is not None else list(self.project.alternatives)
         pending = []
         for alt in alts:
-            key = alternative_key(alt)
+            key = self._key(alt)
             if self._cache_get(key) is not None:
                 continue
             pending.append(alt.name)
             running = self._in_flight.get(key)
             if running is None or running.cancelled:
                 self._hold_bands()  # results someone waits for go first; the bands follow them
-                self._submit(_Ticket(key, alt, None), _PRIORITY_BACKGROUND)
+                self._submit(_Ticket(key, alt, None, self.project.design_cases), _PRIORITY_BACKGROUND)
         return pending
 
     def cancel_results(self) -> None:
@@ -675,13 +752,17 @@ class Document(QObject):
         self._drain()
         out = {}
         for alt in alts:
-            key = alternative_key(alt)
+            key = self._key(alt)
             held = self._cache_get(key)
             if held is None:
-                result, error, _cpu = run_solver(alt)
+                result, error, _cpu = run_solver(alt, self.project.design_cases)
+                if result is not None and result.design is not None:
+                    self._hold_done[id(result)] = result
                 held = (result, error)
                 self._cache_put(key, held)
                 self._announce(key, result, error)
+            else:
+                self._hold_now(held[0])  # held from an inline solve: its Hold Time may still be on its way
             out[alt.name] = held
         return out
 
@@ -692,15 +773,19 @@ class Document(QObject):
 
     def _announce(self, key: str, result, error: str) -> None:
         for alt in self.project.alternatives:
-            if alternative_key(alt) == key:
+            if self._key(alt) == key:
                 self.alternative_solved.emit(alt.name, result, error)
 
     def _cancel_stale_jobs(self) -> None:
         """Cancel queued background solves whose alternative no longer exists as it was."""
-        live = {alternative_key(a) for a in self.project.alternatives}
+        live = {self._key(a) for a in self.project.alternatives}
         for t in self._in_flight.values():
             if t.generation is None and t.key not in live:
                 t.cancelled = True
+
+    def _key(self, alt: Alternative) -> str:
+        """The result cache's key of ``alt``: its content and the project's design cases."""
+        return alternative_key(alt, self.project.design_cases)
 
     def _cache_get(self, key: str) -> Optional[tuple]:
         held = self._cache.get(key)
@@ -712,7 +797,54 @@ class Document(QObject):
         self._cache[key] = outcome
         self._cache.move_to_end(key)
         while len(self._cache) > RESULT_CACHE_SIZE:
-            self._cache.popitem(last=False)
+            _key, (old, _error) = self._cache.popitem(last=False)
+            self._hold_done.pop(id(old), None)
+
+    # ------------------------------------------------------------------ the Hold Time
+
+    def hold_time_of(self, result):
+        """``result.design.hold_time`` once it has been worked out off the views' path, else None
+        (none asked for, none applies, or still on its way: :attr:`hold_time_ready` follows)."""
+        if result is None or getattr(result, "design", None) is None or id(result) not in self._hold_done:
+            return None
+        return result.design.hold_time
+
+    def hold_time_pending(self, result) -> bool:
+        """Whether the Hold Time of ``result`` is still being worked out."""
+        return result is not None and getattr(result, "design", None) is not None and id(result) not in self._hold_done
+
+    def _hold_later(self, result) -> None:
+        """After an inline solve: the Hold Time on the worker, ahead of background solves (GUI thread)."""
+        ticket = _HoldTicket(result)
+        self._emitted.add(ticket)
+        # not counted in _jobs_out: the next edit may still be solved inline while this runs (as bands do)
+        self._pool.start(_HoldJob(ticket, self._hold_sink), _PRIORITY_CURRENT)
+
+    def _arrived_hold(self, ticket: _HoldTicket) -> None:  # GUI thread: the worker's signal came in
+        self._emitted.discard(ticket)
+        self._on_hold(ticket)
+
+    def _on_hold(self, ticket: _HoldTicket) -> None:  # GUI thread
+        if ticket.handled:
+            return  # already taken in by _hold_now
+        ticket.handled = True
+        if ticket.result is self.result or any(r is ticket.result for r, _e in self._cache.values()):
+            self._hold_done[id(ticket.result)] = ticket.result  # (not for a result the cache has let go)
+        if ticket.error:
+            log.warning("Hold Time of %r not worked out: %s", ticket.result.name, ticket.error)
+        self.hold_time_ready.emit(ticket.result)
+
+    def _hold_now(self, result) -> None:
+        """Wait for the Hold Time of ``result`` (scripts, start-up, tests): worked out here if need be."""
+        if not self.hold_time_pending(result):
+            return
+        self._pool.waitForDone()
+        for ticket in [t for t in self._emitted if isinstance(t, _HoldTicket) and t.result is result]:
+            self._on_hold(ticket)  # stays referenced until its queued signal has arrived
+        if self.hold_time_pending(result):
+            run_hold_time(result)
+            self._hold_done[id(result)] = result
+            self.hold_time_ready.emit(result)
 
     # ------------------------------------------------------------------ uncertainty bands
 
@@ -728,8 +860,8 @@ class Document(QObject):
         if not self.bands_enabled or result is None or self.result_is_stale or self.last_error or self.solving:
             return
         alt = self.current_alternative
-        key = alternative_key(alt)
-        held = self._cache.get(key)
+        key = alternative_key(alt)  # bands are solved without the design cases: keyed by the alternative alone
+        held = self._cache.get(self._key(alt))
         if held is None or held[0] is not result:
             return  # the result on screen is not this content's (an edit is on its way)
         if self._bands_held(key, result) is not None:
@@ -785,11 +917,10 @@ class Document(QObject):
     def bands_for(self, which: Union[int, str]):
         """The held bands of this alternative (index or name), or None (not computed yet, or it failed)."""
         alt = self._alternative(which)
-        key = alternative_key(alt)
-        held = self._cache_get(key)
+        held = self._cache_get(self._key(alt))
         if held is None or held[0] is None:
             return None
-        return self._bands_held(key, held[0])
+        return self._bands_held(alternative_key(alt), held[0])
 
     def bands_now(self, which: Union[int, str, None] = None):
         """Solve (if need be) and compute the bands of this alternative (default the current) on this

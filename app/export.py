@@ -35,6 +35,7 @@ COLUMN_QUANTITY: dict[str, str] = {
     "heat_flux_W_per_m2": "heat_flux",
     "heat_to_fluid_W_per_m": "power_per_length",
     "heat_loss_W_per_m": "power_per_length",
+    "heater_output_W_per_m": "power_per_length",
     "inside_coefficient_W_per_m2K": "film_coefficient",
     "reynolds": "dimensionless",
     "velocity_m_per_s": "velocity",

@@ -33,6 +33,9 @@ FIELDS: dict[str, FieldInfo] = {
     "length_m": FieldInfo("Length", "length"),
     "elevation_change_m": FieldInfo("Elevation change", "elevation"),
     "heat_input_W_per_m": FieldInfo("Tracing power", "power_per_length"),
+    "heater": FieldInfo("Heater"),
+    "heat_sinks": FieldInfo("Heat sinks"),
+    "design_margin": FieldInfo("Design margin", "fraction"),
     "inside_fouling_m2K_per_W": FieldInfo("Inside fouling", "fouling_resistance"),
     "steam_tracer": FieldInfo("Steam tracer"),
     "pipe": FieldInfo("Pipe"),
@@ -72,12 +75,32 @@ FIELDS: dict[str, FieldInfo] = {
     # SteamTracer
     "tube_outer_diameter_m": FieldInfo("Tracer tube outside diameter", "diameter"),
     "contact": FieldInfo("Tracer contact"),
+    # Heaters (electric tracing): outputs are per metre of heater
+    "output_W_per_m": FieldInfo("Heater output", "power_per_length"),
+    "output_low_W_per_m": FieldInfo("Output at the lower rating temperature", "power_per_length"),
+    "temperature_low_K": FieldInfo("Lower rating temperature", "temperature"),
+    "output_high_W_per_m": FieldInfo("Output at the upper rating temperature", "power_per_length"),
+    "temperature_high_K": FieldInfo("Upper rating temperature", "temperature"),
+    "set_point_K": FieldInfo("Thermostat set point", "temperature"),
+    "heater_per_pipe_length": FieldInfo("Heater per metre of pipe", "dimensionless"),
+    # HeatSink
+    "equivalent_length_m": FieldInfo("Equivalent length", "length"),
+    "bare_length_m": FieldInfo("Bare pipe length", "length"),
+    "loss_W_per_K": FieldInfo("Loss per kelvin", "conductance"),
+    # DesignCases
+    "design_cases": FieldInfo("Design cases"),
+    "worst_air_temperature_K": FieldInfo("Worst-case air temperature", "temperature"),
+    "worst_wind_speed_m_per_s": FieldInfo("Worst-case wind speed", "speed"),
+    "worst_soil_temperature_K": FieldInfo("Worst-case soil temperature", "temperature"),
+    "worst_no_flow": FieldInfo("No flow in the worst case"),
+    "hot_air_temperature_K": FieldInfo("Hot-case air temperature", "temperature"),
     # Fluid
     "fluid": FieldInfo("Fluid"),
     "solute": FieldInfo("Solution"),
     "concentration": FieldInfo("Concentration", "fraction"),
     "rows": FieldInfo("Property table"),
     "freezing_point_K": FieldInfo("Freezing point", "temperature"),
+    "latent_heat_J_per_kg": FieldInfo("Latent heat of fusion", "energy_per_mass"),
     "boiling_point_K": FieldInfo("Boiling point", "temperature"),
     "density_kg_per_m3": FieldInfo("Density", "density"),
     "specific_heat_J_per_kgK": FieldInfo("Specific heat", "specific_heat"),
@@ -93,6 +116,7 @@ FIELDS: dict[str, FieldInfo] = {
     "limits": FieldInfo("Limits"),
     "max_inner_wall_temperature_K": FieldInfo("Max inner-wall temperature", "temperature"),
     "min_bulk_temperature_K": FieldInfo("Min bulk temperature", "temperature"),
+    "maintain_temperature_K": FieldInfo("Maintain temperature", "temperature"),
     # Targets
     "targets": FieldInfo("Targets"),
     "outlet_temperature_min_K": FieldInfo("Outlet temperature target (at least)", "temperature"),
@@ -131,27 +155,35 @@ CONTEXT_FIELDS: dict[tuple[str, str], FieldInfo] = {
     ("targets", "max_inner_wall_temperature_K"): FieldInfo("Inner-wall temperature target (at most)", "temperature"),
     ("steam_tracer", "steam_pressure_Pa"): FieldInfo("Tracer steam pressure", "pressure"),
     ("steam_tracer", "count"): FieldInfo("Number of tracer tubes", "dimensionless"),
+    ("heater", "count"): FieldInfo("Heater runs", "dimensionless"),
+    ("heat_sinks", "count"): FieldInfo("Heat sink count", "dimensionless"),
+    ("heat_sinks", "kind"): FieldInfo("Heat sink"),
+    ("heat_sinks", "label"): FieldInfo("Heat sink label"),
+    ("design_cases", "design_margin"): FieldInfo("Project design margin", "fraction"),
 }
 
 #: Parts of a path that set the context of the fields below them (lists, sub-models, union tags).
 _CONTEXTS = {"rows", "insulation", "pipe", "fittings", "surroundings", "fluid", "segments", "alternatives",
-             "targets", "limits", "feed", "steam_tracer", "still_air", "wind", "buried", "jacket", "fixed_wall", "adiabatic",
+             "targets", "limits", "feed", "steam_tracer", "heater", "heat_sinks", "design_cases",
+             "constant", "self_limiting", "thermostat", "still_air", "wind", "buried", "jacket", "fixed_wall", "adiabatic",
              "pure", "solution", "table"}
-UNION_TAGS = {"pure", "solution", "table", "still_air", "wind", "buried", "jacket", "fixed_wall", "adiabatic"}
+UNION_TAGS = {"pure", "solution", "table", "still_air", "wind", "buried", "jacket", "fixed_wall", "adiabatic",
+              "constant", "self_limiting", "thermostat"}
 
 #: A whole item of a list or a sub-model, for errors about the item rather than one field.
 OBJECTS: dict[str, str] = {
     "alternatives": "Alternative", "segments": "Segment", "insulation": "Insulation layer",
     "fittings": "Fitting", "rows": "Table row", "pipe": "Pipe", "feed": "Feed", "surroundings": "Surroundings",
     "fluid": "Fluid", "limits": "Limits", "targets": "Targets", "steam_tracer": "Steam tracer",
+    "heater": "Heater", "heat_sinks": "Heat sink", "design_cases": "Design cases",
 }
 
 #: Position words for items of the lists inside a segment or fluid (1-based, as people count).
-_ITEM_WORDS = {"insulation": "layer", "fittings": "fitting", "rows": "row", "segments": "segment",
+_ITEM_WORDS = {"insulation": "layer", "fittings": "fitting", "rows": "row", "heat_sinks": "heat sink", "segments": "segment",
                "alternatives": "alternative"}
 
 UNIT_SUFFIX = re.compile(
-    r"_(K|m|Pa|W|s|W_per_m|W_per_mK|W_per_m2K|m2K_per_W|m_per_s|kg_per_s|m3_per_s|kg_per_m3|J_per_kgK|Pa_s)$")
+    r"_(K|m|Pa|W|s|W_per_m|W_per_K|W_per_mK|W_per_m2K|m2K_per_W|m_per_s|kg_per_s|m3_per_s|kg_per_m3|J_per_kgK|Pa_s)$")
 
 
 def split_path(path: Path) -> tuple:
@@ -204,7 +236,7 @@ def field_label(path: Path) -> str:
     return field_info(path).label
 
 
-def item_words(path: Path, lists: Iterable[str] = ("insulation", "fittings", "rows")) -> str:
+def item_words(path: Path, lists: Iterable[str] = ("insulation", "fittings", "heat_sinks", "rows")) -> str:
     """Where in a list the field sits, in words: ``'insulation[1].thickness_m'`` -> ``'layer 2'``."""
     parts = split_path(path)
     out = []
@@ -221,7 +253,7 @@ QUANTITY_WORDS: dict[str, str] = {
     "elevation": "elevation change", "diameter": "diameter", "thickness": "thickness",
     "roughness": "roughness", "depth": "depth", "mass_flow": "mass flow", "volume_flow": "volume flow",
     "power": "power", "power_per_length": "power per length", "heat_flux": "heat flux",
-    "film_coefficient": "film coefficient", "fouling_resistance": "fouling resistance", "conductivity": "thermal conductivity", "velocity": "velocity",
+    "film_coefficient": "film coefficient", "conductance": "heat loss per kelvin", "fouling_resistance": "fouling resistance", "conductivity": "thermal conductivity", "velocity": "velocity",
     "speed": "speed", "density": "density", "specific_heat": "specific heat", "viscosity": "viscosity",
     "time": "time", "energy_per_mass": "energy per mass", "dimensionless": "plain number",
     "fraction": "fraction", "mass": "mass", "volume": "volume", "area": "area", "energy": "energy",
@@ -248,6 +280,7 @@ EXAMPLES: dict[str, tuple[str, str]] = {
     "film_coefficient": ("1000 W/(m²·K)", "176 Btu/(h·ft²·°F)"),
     "fouling_resistance": ("0.0002 m²·K/W", "0.001 h·ft²·°F/Btu"),
     "conductivity": ("0.04 W/(m·K)", "0.023 Btu/(h·ft·°F)"),
+    "conductance": ("0.5 W/K", "0.95 Btu/(h·°F)"),
     "velocity": ("2 m/s", "6 ft/s"),
     "speed": ("5 m/s", "10 mph"),
     "density": ("1000 kg/m³", "62.4 lb/ft³"),

@@ -215,6 +215,7 @@ class MainWindow(QMainWindow):
     def _build_panels(self) -> None:
         from app.panels.checks_panel import ChecksPanel
         from app.panels.feed_panel import FeedPanel
+        from app.panels.hold_time_view import HoldTimeView
         from app.panels.key_figures import KeyFiguresPanel
         from app.panels.line_strip import LineStrip
         from app.panels.profiles import ProfilesPanel
@@ -238,6 +239,7 @@ class MainWindow(QMainWindow):
         self.feed_panel = FeedPanel(d)
         self.key_figures = KeyFiguresPanel(d)
         self.checks = ChecksPanel(d)
+        self.hold_time = HoldTimeView(d)
 
         self.line_strip_dock = self._dock("Line Strip", self.line_strip, Qt.TopDockWidgetArea)
         self.line_strip_dock.setTitleBarWidget(QWidget())  # the strip's own toolbar carries its title
@@ -247,6 +249,10 @@ class MainWindow(QMainWindow):
         self.alternatives_dock = self._dock("Alternatives", self.alternatives_panel, Qt.RightDockWidgetArea)
         self.splitDockWidget(self.alternatives_dock, self.key_dock, Qt.Vertical)
         self.checks_dock = self._dock("Checks", self.checks, Qt.BottomDockWidgetArea)
+        self.hold_time_dock = self._dock("Hold Time", self._scrolling(self.hold_time), Qt.BottomDockWidgetArea)
+        self.tabifyDockWidget(self.checks_dock, self.hold_time_dock)
+        self.checks_dock.raise_()  # the Checks first; the Hold Time one tab away (View menu)
+        self.hold_time_dock.visibilityChanged.connect(self._on_hold_time_shown)
         self.splitDockWidget(self.feed_dock, self.card_dock, Qt.Vertical)
         # the strip spans the full width; the side columns sit below it
         self.setCorner(Qt.TopLeftCorner, Qt.TopDockWidgetArea)
@@ -268,7 +274,7 @@ class MainWindow(QMainWindow):
         """
         comparing = self.centre_tabs.widget(index) is self.side_by_side
         docks = [self.line_strip_dock, self.feed_dock, self.card_dock, self.key_dock, self.alternatives_dock,
-                 self.checks_dock]
+                 self.checks_dock, self.hold_time_dock]
         if comparing and self._docks_before_comparison is None:
             self._docks_before_comparison = [d for d in docks if not d.isHidden()]
             for d in self._docks_before_comparison:
@@ -279,6 +285,19 @@ class MainWindow(QMainWindow):
             for d in self._docks_before_comparison:
                 d.show()
             self._docks_before_comparison = None
+
+    def _on_hold_time_shown(self, visible: bool) -> None:
+        """Drawn when shown (it waits while out of sight); the plot and its table need more height than
+        the Checks list: grow the bottom area."""
+        if not visible:
+            return
+        self.hold_time.refresh(shown=True)
+        QTimer.singleShot(0, self._grow_hold_time)  # once the tab switch has laid the dock out
+
+    def _grow_hold_time(self) -> None:
+        dock = self.hold_time_dock
+        if dock.isVisible() and not dock.visibleRegion().isEmpty() and not dock.isFloating() and dock.height() < 420:
+            self.resizeDocks([dock], [420], Qt.Vertical)
 
     @staticmethod
     def _scrolling(widget: QWidget) -> QScrollArea:
@@ -438,7 +457,7 @@ class MainWindow(QMainWindow):
         units_menu.addActions([self.si_action, self.us_action])
         view_menu.addSeparator()
         for dock in (self.line_strip_dock, self.feed_dock, self.card_dock, self.alternatives_dock, self.key_dock,
-                     self.checks_dock):
+                     self.checks_dock, self.hold_time_dock):
             view_menu.addAction(dock.toggleViewAction())
         view_menu.addAction(self.banner_bar.toggleViewAction())
 

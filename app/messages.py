@@ -187,10 +187,84 @@ def _elevation_rule(m, obj, system):
 
 
 def _tracing_rule(m, obj, system):
-    q = _get(obj, "heat_input_W_per_m")
-    return ("Tracing power cannot be combined with a fixed wall temperature (the wall already has its "
-            f"temperature); you entered {entered(q, 'power_per_length', system)} — set it to 0 or choose other "
-            "surroundings")
+    """Electric tracing on a held wall: the wall already has its temperature, so the heater has no place."""
+    heater = _get(obj, "heater")
+    entry = heater_words(heater, system) if heater is not None else ""
+    if not entry:  # a file of schema 1 or a message without the heater: the figure the model quotes
+        q = _number_in(m.string)
+        entry = entered(q, "power_per_length", system) if q is not None else ""
+    return ("Electric tracing cannot be combined with a fixed wall temperature (the wall already has its "
+            f"temperature){'; you entered ' + entry if entry else ''} — choose no heater or other surroundings")
+
+
+#: Heater kind -> what the editor and the messages call it (order = the editor's choices after "none").
+HEATER_KINDS: dict[str, str] = {
+    "constant": "Constant output",
+    "self_limiting": "Self-limiting (output falls as the pipe warms)",
+    "thermostat": "Thermostat-controlled",
+}
+
+
+def heater_words(heater: Any, system: str) -> str:
+    """A heater in a few words, in the user's units: ``'constant output 25 W/m × 2 runs'``."""
+    kind = _get(heater, "kind")
+    runs = _get(heater, "count")
+    ratio = _get(heater, "heater_per_pipe_length")
+    if kind == "self_limiting":
+        lo, t_lo = _get(heater, "output_low_W_per_m"), _get(heater, "temperature_low_K")
+        hi, t_hi = _get(heater, "output_high_W_per_m"), _get(heater, "temperature_high_K")
+        text = (f"self-limiting {entered(lo, 'power_per_length', system)} at {entered(t_lo, 'temperature', system)}, "
+                f"{entered(hi, 'power_per_length', system)} at {entered(t_hi, 'temperature', system)}")
+    elif kind == "thermostat":
+        text = (f"thermostat-controlled {entered(_get(heater, 'output_W_per_m'), 'power_per_length', system)} "
+                f"set at {entered(_get(heater, 'set_point_K'), 'temperature', system)}")
+    elif kind == "constant":
+        text = f"constant output {entered(_get(heater, 'output_W_per_m'), 'power_per_length', system)}"
+    else:
+        return ""
+    if _is_number(runs) and runs != 1:
+        text += f" × {plural(int(runs), 'run')}"
+    if _is_number(ratio) and ratio != 1:
+        text += f", {units.format_number(float(ratio), 3)} m of heater per m of pipe"
+    return text
+
+
+def _number_in(text: str, after: str = ", got ") -> Optional[float]:
+    """The first number after ``after`` in a model validator's message (None when there is none)."""
+    _, _, got = text.rpartition(after)
+    hit = re.match(r"\s*([-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?)", got)
+    return float(hit.group(1)) if hit else None
+
+
+def _heater_total_rule(m, obj, system):
+    total = _number_in(m.string)
+    heater = _get(obj, "heater")
+    shown = f"; you entered {heater_words(heater, system)}" if heater is not None else ""
+    if total is not None:
+        shown += f", {entered(total, 'power_per_length', system)} per length of pipe"
+    return ("Heater output per length of pipe (output × runs × heater per metre of pipe) must be at most "
+            f"{entered(1e4, 'power_per_length', system)}{shown}")
+
+
+def _rating_temperatures_rule(m, obj, system):
+    lo, hi = _get(obj, "temperature_low_K"), _get(obj, "temperature_high_K")
+    return ("Upper rating temperature must be above the lower rating temperature; you entered "
+            f"{entered(hi, 'temperature', system)} and {entered(lo, 'temperature', system)}")
+
+
+def _rating_outputs_rule(m, obj, system):
+    lo, hi = _get(obj, "output_low_W_per_m"), _get(obj, "output_high_W_per_m")
+    return ("Output at the upper rating temperature must be below the output at the lower one (a self-limiting "
+            f"heater gives less when hotter); you entered {entered(hi, 'power_per_length', system)} and "
+            f"{entered(lo, 'power_per_length', system)}")
+
+
+def _one_sink_size_rule(m, obj, system):
+    given = [f"{label} {entered(_get(obj, key), quantity, system)}" for key, label, quantity in (
+        ("equivalent_length_m", "equivalent length", "length"), ("bare_length_m", "bare pipe length", "length"),
+        ("loss_W_per_K", "loss per kelvin", "conductance")) if _get(obj, key) is not None]
+    return ("A heat sink takes one of equivalent length, bare pipe length or loss per kelvin, not several; "
+            f"you entered {' and '.join(given)}")
 
 
 def _flow_rule(m, obj, system):
@@ -235,6 +309,14 @@ def _rows_rule(m, obj, system):
 _VALUE_RULES: tuple[tuple[re.Pattern, Any], ...] = (
     (re.compile(r"^elevation_change_m must not exceed length_m"), _elevation_rule),
     (re.compile(r"^heat_input_W_per_m cannot be combined with a fixed wall"), _tracing_rule),
+    (re.compile(r"^heater output per metre of pipe .* must be at most"), _heater_total_rule),
+    (re.compile(r"^temperature_high_K must be above temperature_low_K"), _rating_temperatures_rule),
+    (re.compile(r"^output_high_W_per_m must be below output_low_W_per_m"), _rating_outputs_rule),
+    (re.compile(r"^give at most one of equivalent_length_m, bare_length_m or loss_W_per_K"), _one_sink_size_rule),
+    (re.compile(r"^an 'other' heat sink needs"),
+     lambda m, obj, s: "An 'other' heat sink needs its size: an equivalent length, a bare pipe length or a loss per kelvin"),
+    (re.compile(r"^give heater or heat_input_W_per_m, not both"),
+     lambda m, obj, s: "Give the heater or the tracing power, not both"),
     (re.compile(r"^give exactly one of mass_flow_kg_per_s or volume_flow_m3_per_s"), _flow_rule),
     (re.compile(r"^give exactly one of wall_temperature_K or steam_pressure_Pa"), _fixed_wall_rule),
     (re.compile(r"^steam_tracer cannot be combined with a jacket or a fixed wall"), _steam_tracer_rule),
@@ -305,9 +387,10 @@ def input_error_message(exc, system: str) -> str:
 
 
 def _strip_tags(loc: tuple) -> tuple:
-    """The file path leaves out the union tag pydantic puts after ``fluid``/``surroundings``."""
+    """The file path leaves out the union tag pydantic puts after ``fluid``/``surroundings``/``heater``."""
     return tuple(p for i, p in enumerate(loc)
-                 if not (isinstance(p, str) and p in UNION_TAGS and i > 0 and loc[i - 1] in ("fluid", "surroundings")))
+                 if not (isinstance(p, str) and p in UNION_TAGS and i > 0
+                         and loc[i - 1] in ("fluid", "surroundings", "heater")))
 
 
 def path_text(loc: Sequence) -> str:

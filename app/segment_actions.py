@@ -16,17 +16,21 @@ from PySide6.QtGui import QAction, QKeySequence
 from PySide6.QtWidgets import QMenu, QWidget
 
 from app import commands
+from app.messages import HEATER_KINDS
 from app.units import format_value
 
 _NEED_ONE = "A line needs at least one segment: the only segment cannot be deleted."
 
 
 def wall_model_words(segment, system: str) -> str:
-    """What an inserted segment took over, in words: 'heat input 25 W/m, insulation 50 mm, still air 20 °C'
-    ('steam tracer 2 × 12.7 mm at 4.50 bar(a), ...' for a steam-traced one)."""
-    q = segment.heat_input_W_per_m
+    """What an inserted segment took over, in words: 'heat input 25 W/m (constant output), insulation 50 mm,
+    still air 20 °C' ('steam tracer 2 × 12.7 mm at 4.50 bar(a), ...' for a steam-traced one)."""
+    q = segment.heat_input_W_per_m  # the heater's rated output per metre of pipe
     tracer = segment.steam_tracer
-    heat = "heat input " + format_value(q, "power_per_length", system, digits=3) if q > 0 else ""
+    heat = ""
+    if segment.heater is not None:
+        kind = HEATER_KINDS[segment.heater.kind].split(" (")[0].lower()
+        heat = f"heat input {format_value(q, 'power_per_length', system, digits=3)} ({kind})"
     if tracer is not None:
         heat = ", ".join(filter(None, (heat, f"steam tracer {tracer.count} × "
                                              f"{format_value(tracer.tube_outer_diameter_m, 'diameter', system, digits=3)}"

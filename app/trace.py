@@ -341,13 +341,24 @@ def check_basis(code: str, system: str) -> str:
         "INSULATION_IGNORED": "With a jacket or a wall held at temperature the heat path has no insulation: "
                               "the layers entered play no part.",
         "CORRELATION_RANGE": "A correlation is used outside its published range of validity.",
-        "NO_FLOW_FREEZE": "With the flow stopped each cell settles where its heat input balances the loss: "
-                          "T = T∞ + q′ · R_o (outside path per metre, outer film at its flowing value); "
-                          "below the freezing point (common practice in tracing design).",
-        "NO_FLOW_HOLD": "With the flow stopped: T = T∞ + q′ · R_o (outside path per metre) below the "
-                        "minimum bulk temperature (common practice in tracing design).",
-        "NO_FLOW_OVERHEAT": "With the flow stopped: T = T∞ + q′ · R_o above the wall-temperature limit "
+        "NO_FLOW_FREEZE": "With the flow stopped each cell settles where what its heater delivers balances "
+                          "the loss through the outside path and its heat sinks: T = T∞ + q′(T) / G′ (per metre; "
+                          "a self-limiting heater's output falls with T, a thermostat's runs full; outer film at "
+                          "its flowing value); below the freezing point (common practice in tracing design).",
+        "NO_FLOW_HOLD": "With the flow stopped: T = T∞ + q′(T) / G′ (outside path and heat sinks per metre) "
+                        "below the minimum bulk temperature (common practice in tracing design).",
+        "NO_FLOW_OVERHEAT": "With the flow stopped: T = T∞ + q′(T) / G′ above the wall-temperature limit "
                             "(common practice in tracing design).",
+        "DESIGN_NOT_HELD": "Worst case (design cases of the project: coldest air, strongest wind, optionally no "
+                           "flow): required output = (loss per metre at the maintain temperature + heat sinks "
+                           "per metre) × (1 + design margin) against what the heater delivers at the maintain "
+                           "temperature (common practice in trace-heating design).",
+        "HOT_CASE_WALL": "Hot case (warmest air, no flow, heaters full on): the pipe wall settles where the "
+                         "heater's full output balances the loss; compared with the inner-wall limit. The "
+                         "heater's own sheath runs hotter: its maker's stabilised-design data and the applicable "
+                         "standard for trace heating in hazardous areas decide (common practice).",
+        "WORST_CASE_FAILED": "The flowing worst case (design cases with flow) is solved like the operating case "
+                             "in the worst surroundings; its refusal is quoted.",
         "TRACER_IDLE": "Pipe wall at or above the saturation temperature of the tracer's steam (CoolProp): "
                        "the steam cannot condense, so the tracer gives no heat there.",
         "SURFACE_CONDENSATION": "Outer surface below the dew point of the surrounding air, "

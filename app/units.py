@@ -106,6 +106,10 @@ QUANTITIES: dict[str, tuple[DisplayUnit, DisplayUnit]] = {
         DisplayUnit("W/(m·K)", 1.0, 0.0, "W/m/K"),
         DisplayUnit("Btu/(h·ft·°F)", 3600.0 * _FT / _BTU / _F_PER_K, 0.0, "Btu/hour/ft/delta_degF"),
     ),
+    "conductance": (  # heat lost per kelvin of difference, W/K (a heat sink's loss)
+        DisplayUnit("W/K", 1.0, 0.0, "W/K"),
+        DisplayUnit("Btu/(h·°F)", 3600.0 / _BTU / _F_PER_K, 0.0, "Btu/hour/delta_degF"),
+    ),
     "resistance_per_length": (  # thermal resistance per metre of pipe (ΔT per W/m): the inverse of W/(m·K)
         DisplayUnit("K·m/W", 1.0, 0.0, "K*m/W"),
         DisplayUnit("h·ft·°F/Btu", _BTU / (3600.0 * _FT) * _F_PER_K, 0.0, "hour*ft*delta_degF/Btu"),
@@ -151,6 +155,7 @@ _SI_BASE: dict[str, str] = {
     "fouling_resistance": "m**2*K/W",
     "conductivity": "W/m/K",
     "resistance_per_length": "K*m/W",
+    "conductance": "W/K",
     "velocity": "m/s",
     "speed": "m/s",
     "density": "kg/m**3",

@@ -69,7 +69,7 @@ def test_compound_edit_is_one_undo_step(doc):
     seg_before = doc.current_alternative.segments[0]
     assert seg_before.heat_input_W_per_m == 30.0
     # a fixed wall cannot take tracing (model rule), so the switch clears the heat input in the same step
-    doc.push(C.SetSegmentFields(doc, 0, 0, {"surroundings": {"kind": "fixed_wall"}, "heat_input_W_per_m": 0.0}))
+    doc.push(C.SetSegmentFields(doc, 0, 0, {"surroundings": {"kind": "fixed_wall"}, "heater": None}))
     seg = doc.current_alternative.segments[0]
     assert isinstance(seg.surroundings, FixedWall) and seg.heat_input_W_per_m == 0.0
     assert doc.undo_stack.count() == 1
@@ -215,7 +215,7 @@ def test_undo_of_an_edit_in_another_alternative_shows_that_alternative(doc, qtbo
     doc.push(InsertAlternative(doc, 1, doc.project.alternatives[0].model_copy(update={"name": "Other"})))
     doc.set_current_alternative(1)
     before = doc.project.alternatives[1].segments[0].heat_input_W_per_m
-    doc.push(C.SetSegmentField(doc, 1, 0, "heat_input_W_per_m", before + 40.0))
+    doc.push(C.SetSegmentField(doc, 1, 0, "heater.output_W_per_m", before + 40.0))
     doc.set_current_alternative(0)
     doc.undo_stack.undo()
     assert doc.current_index == 1  # the undone change is on screen, not out of sight

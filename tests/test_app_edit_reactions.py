@@ -55,19 +55,19 @@ def test_segment_card_shows_edits_made_elsewhere_and_their_undo(qtbot, doc):
     doc.select_segment(0)
     # edits made outside the card (as the Line Strip or a script would), one section each
     doc.push(C.SetSegmentFields(doc, 0, 0, {"pipe.nps": "3", "pipe.schedule": "80"}))
-    doc.push(C.SetSegmentField(doc, 0, 0, "heat_input_W_per_m", 42.0))
+    doc.push(C.SetSegmentField(doc, 0, 0, "heater.output_W_per_m", 42.0))
     doc.push(C.SetSegmentField(doc, 0, 0, "insulation", [Layer(thickness_m=0.065, conductivity_W_per_mK=0.04)]))
     assert (card.nps_combo.currentText(), card.schedule_combo.currentText()) == ("3", "80")
-    assert card.heat_edit.text() == "42"
+    assert card.heater.edits["constant.output_W_per_m"].text() == "42"
     assert card.layer_table.cellWidget(0, 1).text() == "65"  # mm in SI
     # an edit of the other segment leaves the card's segment as shown
     doc.push(C.SetSegmentField(doc, 0, 1, "length_m", 9.5))
-    assert card.heat_edit.text() == "42"
+    assert card.heater.edits["constant.output_W_per_m"].text() == "42"
     for _ in range(4):
         doc.undo_stack.undo()
     first = make_project().alternatives[0].segments[0]  # as the project was made
     assert card.layer_table.cellWidget(0, 1).text() == "20"
-    assert card.heat_edit.text() == "15"
+    assert card.heater.edits["constant.output_W_per_m"].text() == "15"
     assert (card.nps_combo.currentText(), card.schedule_combo.currentText()) == (first.pipe.nps, first.pipe.schedule)
 
 
@@ -85,7 +85,7 @@ def test_segment_card_edit_typed_in_the_card_then_undone(qtbot, doc):
     card.length_edit.setText("-3")
     card.length_edit.commit()
     assert card.length_edit.has_error
-    doc.push(C.SetSegmentField(doc, 0, 0, "heat_input_W_per_m", 20.0))
+    doc.push(C.SetSegmentField(doc, 0, 0, "heater.output_W_per_m", 20.0))
     assert card.length_edit.text() == "-3" and card.length_edit.has_error
 
 
@@ -121,7 +121,7 @@ def test_checks_show_the_findings_of_the_edited_line_once_solved(qtbot, doc):
     qtbot.addWidget(panel)
     doc.solve_now()
     # no tracing on a long untraced tail: the checks list must change with the result
-    doc.push(C.SetSegmentField(doc, 0, 0, "heat_input_W_per_m", 0.0))
+    doc.push(C.SetSegmentField(doc, 0, 0, "heater", None))
     doc.solve_now()
     assert panel.tree.topLevelItemCount() > 0
     assert panel.header.toolTip() == count_text(doc.result.check_counts())
@@ -189,7 +189,7 @@ def test_key_figures_redraw_the_same_result_in_new_units_and_after_an_undo(qtbot
     assert panel.value_text("outlet_temperature_K").endswith("°F")
     assert float(panel.value_text("outlet_temperature_K").split()[0]) == pytest.approx(t_f, abs=0.15)
     doc.set_unit_system("SI")
-    doc.push(C.SetSegmentField(doc, 0, 0, "heat_input_W_per_m", 60.0))
+    doc.push(C.SetSegmentField(doc, 0, 0, "heater.output_W_per_m", 60.0))
     doc.solve_now()
     assert panel.value_text("outlet_temperature_K") != si  # four times the tracing: a warmer outlet
     doc.undo_stack.undo()

@@ -106,7 +106,7 @@ def test_insert_keeps_the_wall_model_says_so_and_undoes_in_one_step(win):
 
 def test_insert_before_takes_the_selected_segments_wall_model(doc):
     strip = LineStrip(doc)
-    doc.push(C.SetSegmentField(doc, 0, 0, "heat_input_W_per_m", 40.0))
+    doc.push(C.SetSegmentField(doc, 0, 0, "heater.output_W_per_m", 40.0))
     doc.select_segment(0)
     strip.segment_actions.insert_before.trigger()
     assert names(doc) == ["Segment 1", "Tank outlet", "Pipe rack", "Unit feed"]

@@ -28,7 +28,7 @@ from app.main_window import MainWindow  # noqa: E402
 from app.panels.checks_panel import ChecksPanel  # noqa: E402
 from app.panels.project_details import ProjectDetailsDialog  # noqa: E402
 from app.panels.profiles import ProfilesPanel  # noqa: E402
-from solver.model import Alternative, Feed, Limits, Project, Segment  # noqa: E402
+from solver.model import Alternative, ConstantHeater, Feed, Limits, Project, Segment  # noqa: E402
 from solver.project_io import load_project  # noqa: E402
 from solver.results import KEY_FIGURES, Check  # noqa: E402
 
@@ -355,7 +355,7 @@ def test_checks_counts_use_plurals_and_messages_are_not_cut(qtbot):
 
 def test_alternatives_list_shows_all_rows_for_five(qtbot):
     seg = Segment(name="Run", length_m=20.0, heat_input_W_per_m=10.0)
-    alts = [Alternative(name=f"Option {i + 1}: {t} W/m tracing", segments=[seg.model_copy(update={"heat_input_W_per_m": t})])
+    alts = [Alternative(name=f"Option {i + 1}: {t} W/m tracing", segments=[seg.model_copy(update={"heater": ConstantHeater(output_W_per_m=t) if t else None})])
             for i, t in enumerate((0.0, 5.0, 10.0, 15.0, 20.0))]
     project = Project(name="Five options", alternatives=alts, baseline=alts[-1].name)
     w = window(qtbot, project, 1280, 800)
@@ -369,7 +369,8 @@ def test_alternatives_list_shows_all_rows_for_five(qtbot):
         assert not lst.verticalScrollBar().isVisible()
         # the current alternative carries its verdict mark; its words are in the tooltip
         assert w.alternatives_panel.list.item(0).data(Qt.UserRole + 2) in ("danger", "missed", "warning", "met")
-        assert "targets" in lst.item(0).toolTip() or "warning" in lst.item(0).toolTip()
+        # (an untraced water line outdoors freezes in the project's default worst case: a danger)
+        assert any(word in lst.item(0).toolTip() for word in ("targets", "warning", "danger"))
         # once the others are solved, every row carries its mark
         w.doc.results_now()
         settle(qtbot)

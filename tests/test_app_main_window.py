@@ -184,7 +184,7 @@ def test_surroundings_switch_carries_temperature_and_is_one_step(win):
     seg = win.doc.current_alternative.segments[0]
     assert seg.surroundings.kind == "fixed_wall" and seg.heat_input_W_per_m == 0.0
     assert card.surr_stack.currentWidget() is card.surr_pages["fixed_wall"]
-    assert not card.heat_edit.isEnabled()
+    assert not card.heater.kind_combo.isEnabled()  # a held wall takes no tracing
     win.doc.undo_stack.undo()
     seg = win.doc.current_alternative.segments[0]
     assert seg.surroundings.kind == "still_air" and seg.heat_input_W_per_m == 20.0

@@ -21,6 +21,7 @@ from PySide6.QtGui import QColor, QFont, QFontMetrics  # noqa: E402
 import solver  # noqa: E402
 from app import comparison, style  # noqa: E402
 from app.main_window import MainWindow  # noqa: E402
+from solver.model import ConstantHeater  # noqa: E402
 from solver.project_io import load_project  # noqa: E402
 from solver.results import SEVERITY_ORDER, check_sort_key  # noqa: E402
 
@@ -34,7 +35,7 @@ def long_named_project(n: int):
     template = base.alternatives[0]
 
     def variant(name, tracing, mm, material):
-        segs = [s.model_copy(update={"heat_input_W_per_m": tracing,
+        segs = [s.model_copy(update={"heater": ConstantHeater(output_W_per_m=tracing),
                                      "pipe": s.pipe.model_copy(update={"material": material}),
                                      "insulation": [s.insulation[0].model_copy(update={"thickness_m": mm / 1000})]})
                 for s in template.segments]

@@ -128,7 +128,8 @@ def test_model_rules_are_told_in_the_users_units():
     assert "Concentration must be at most 100 %; you entered 150 %" in text
     assert "Table temperatures must increase row by row; row 2 has 62.33 °F after 80.33 °F" in text
     assert "An alternative needs at least 1 segment" in text
-    assert "Tracing power must be a number; you entered 'lots'" in text
+    # a schema-1 tracing power is read as a constant heater's output (solver.model), and refused as such
+    assert "Heater output must be a number; you entered 'lots'" in text
 
 
 def test_every_numeric_field_has_a_label_and_the_quantity_its_key_names():
@@ -137,6 +138,7 @@ def test_every_numeric_field_has_a_label_and_the_quantity_its_key_names():
 
     reg = units.registry()
     suffix_unit = {"_K": "kelvin", "_m": "m", "_Pa": "Pa", "_W": "W", "_W_per_m": "W/m", "_W_per_mK": "W/m/K",
+                   "_W_per_K": "W/K",
                    "_W_per_m2K": "W/m**2/K", "_m2K_per_W": "m**2*K/W", "_m_per_s": "m/s", "_kg_per_s": "kg/s", "_m3_per_s": "m**3/s",
                    "_kg_per_m3": "kg/m**3", "_J_per_kgK": "J/kg/K", "_Pa_s": "Pa*s"}
     checked = 0
@@ -205,3 +207,27 @@ def test_catalogue_refusals_name_the_field_by_its_label():
         InputError("pipe.inner_diameter_m", None, "bore 'diameter' needs inner_diameter_m and wall_thickness_m"), "SI")
     assert text.startswith("Inner diameter: ")
     assert not set(re.findall(r"[A-Za-z0-9_]+", text)) & _model_keys(), text
+
+
+def test_heater_and_heat_sink_rules_are_told_in_the_users_units():
+    """The model's heater and heat-sink rules (solver.model) in the user's words; 1 ft = 0.3048 m,
+    T[°F] = T[°C]·9/5 + 32, 1 W/K = 1.8956 Btu/(h·°F) (1 Btu/h = 0.293 071 W)."""
+    data = json.loads(dump_project(Project(alternatives=[Alternative(segments=[Segment()])])))
+    seg = data["alternatives"][0]["segments"][0]
+    seg["surroundings"] = {"kind": "fixed_wall", "wall_temperature_K": 423.15}
+    seg["heater"] = {"kind": "thermostat", "output_W_per_m": 10 / 0.3048, "set_point_K": 278.15, "count": 2}
+    data["alternatives"][0]["segments"].append(  # (a field's error stops the segment's own rules: apart)
+        {"length_m": 5, "heat_sinks": [{"kind": "valve", "bare_length_m": 0.3048, "loss_W_per_K": 1.0}]})
+    data["alternatives"][0]["segments"].append(
+        {"length_m": 5, "heater": {"kind": "self_limiting", "output_low_W_per_m": 10, "temperature_low_K": 283.15,
+                                   "output_high_W_per_m": 5, "temperature_high_K": 273.15}})
+    found = messages.problems(_errors(data), "US")
+    text = _spaced("\n".join(m for _p, m in found))
+    assert ("Electric tracing cannot be combined with a fixed wall temperature (the wall already has its "
+            "temperature); you entered thermostat-controlled 10 W/ft set at 41 °F × 2 runs") in text
+    assert ("A heat sink takes one of equivalent length, bare pipe length or loss per kelvin, not several; "
+            "you entered bare pipe length 1 ft and loss per kelvin 1.8956 Btu/(h·°F)") in text
+    assert "Upper rating temperature must be above the lower rating temperature; you entered 32 °F and 50 °F" in text
+    keys = _model_keys()
+    for path, message in found:
+        assert not set(re.findall(r"[A-Za-z0-9_]+", message)) & keys, (path, message)

@@ -147,7 +147,7 @@ def test_no_flow_finding_gives_the_outside_path(solved):
     alt, res = solved
     check = Check("warning", "NO_FLOW_HOLD", "If the flow stops ...", segment=0, x_m=20.0)
     text = trace.check_trace(check, res, alt, "SI")
-    assert "T = T∞ + q′ · R_o" in text
+    assert "T = T∞ + q′(T) / G′" in text
     r_o = re.search(r"Outside path R_o: ([0-9.]+) K·m/W", text)
     assert r_o is not None
     # R_o = insulation ln(Do/Di)/(2πk) + outer film; the insulation alone is ln(160.3/60.3)/(2π·0.04) = 3.89

@@ -331,6 +331,14 @@ class FeedPanel(EditorPanel):
         self.min_bulk_edit.line_edit.setToolTip(
             "Lowest allowed bulk temperature (e.g. pour or cloud point). Empty = none.")
         form.addRow("Min bulk temperature", self.min_bulk_edit)
+        self.maintain_edit = self.quantity_edit("temperature", "Maintain temperature",
+                                                "limits.maintain_temperature_K", allow_empty=True,
+                                                empty_text="min bulk, else 5 K above freezing")
+        self.maintain_edit.line_edit.setToolTip(
+            "The temperature the tracing must hold in the worst design case (Project details). Empty = the min "
+            "bulk temperature, else 5 K above the freezing point (freeze protection, common practice). The "
+            "owner's specification decides it.")
+        form.addRow("Maintain temperature", self.maintain_edit)
         col.addWidget(box)
         col.addStretch(1)
 
@@ -442,6 +450,7 @@ class FeedPanel(EditorPanel):
     def _show_limits(self, alt) -> None:
         self.max_wall_edit.set_value(alt.limits.max_inner_wall_temperature_K)
         self.min_bulk_edit.set_value(alt.limits.min_bulk_temperature_K)
+        self.maintain_edit.set_value(alt.limits.maintain_temperature_K)
 
     # ------------------------------------------------------------------ widgets -> commands
 

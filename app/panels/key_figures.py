@@ -6,6 +6,10 @@ thing. Above the table, the at-a-glance design verdict (targets and checks judge
 Values come straight from the Result (SI) through ``app.units``; nothing is computed here beyond
 picking and formatting. Beside each value, once the Document has them, its ± from the methods'
 published accuracy (:mod:`solver.uncertainty`), as a difference in the value's unit.
+
+Above the table, the design cases side by side (operating, worst, hot; :mod:`app.design_figures`):
+the maintain check, the lowest bulk and highest wall temperatures, heat sinks, heater output and the
+shortest hold after a power failure, with the hot case's caution under them.
 """
 
 from __future__ import annotations
@@ -24,7 +28,7 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from app import style, trace
+from app import design_figures, style, trace
 from app.comparison import design_verdict
 from app.texts import key_figure_parts, plus_minus_text
 from app.units import format_value
@@ -60,6 +64,135 @@ def key_figure_rows(result, system: str) -> list[tuple[str, str, str, str, str]]
             rows.append(("", group, "", "", ""))
         rows.append((figure.key, *figure_row(figure, values, system)))
     return rows
+
+
+class DesignCasesTable(QWidget):
+    """The design cases side by side for the result on show: ``table`` (label + one column per case),
+    ``where`` (which segments do not hold) and ``caution`` (the hot case's caution) QLabels."""
+
+    HEADERS = ("", *design_figures.CASE_TITLES.values())
+
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        self.rows: list = []
+        self.table = QTableWidget(0, len(self.HEADERS), self)
+        self.table.setObjectName("DesignCasesTable")
+        self.table.setHorizontalHeaderLabels(list(self.HEADERS))
+        self.table.verticalHeader().hide()
+        self.table.setEditTriggers(QAbstractItemView.NoEditTriggers)
+        self.table.setSelectionMode(QAbstractItemView.NoSelection)
+        self.table.setShowGrid(False)
+        self.table.setWordWrap(True)
+        self.table.setTextElideMode(Qt.ElideNone)
+        self.table.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
+        self.table.setVerticalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
+        self.table.verticalHeader().setDefaultSectionSize(22)
+        # short labels sized to their contents; the three cases share the rest and wrap when narrow
+        h = self.table.horizontalHeader()
+        h.setSectionResizeMode(0, QHeaderView.ResizeToContents)
+        for col in range(1, len(self.HEADERS)):
+            h.setSectionResizeMode(col, QHeaderView.Stretch)
+        h.setDefaultAlignment(Qt.AlignLeft | Qt.AlignVCenter)
+        # rows refitted to their wrapped texts once the columns have their widths (after any resize)
+        self._fit_timer = QTimer(self)
+        self._fit_timer.setSingleShot(True)
+        self._fit_timer.setInterval(0)
+        self._fit_timer.timeout.connect(self._fit_height)
+        h.sectionResized.connect(lambda *_a: self._fit_timer.start())
+        for col, text in enumerate(("", "Each segment's own surroundings, flowing: the ordinary solve.",
+                                    "Coldest design air, strongest wind (the line standing still unless set "
+                                    "otherwise): what the tracing must hold.",
+                                    "Warmest design air, no flow, heaters at full output: how hot the pipe gets.")):
+            if text:
+                self.table.horizontalHeaderItem(col).setToolTip(text)
+        self.where = QLabel("")
+        self.where.setWordWrap(True)
+        self.caution = QLabel("")
+        self.caution.setWordWrap(True)
+        self.caution.setStyleSheet(f"color: {style.WARNING_TEXT}; padding: 2px 6px; font-size: 8.5pt;")
+        title = QLabel("Design cases")
+        title.setStyleSheet(f"color: {style.SELECTION}; font-weight: 600; padding: 4px 6px 2px 6px;")
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(0, 0, 0, 4)
+        lay.setSpacing(2)
+        lay.addWidget(title)
+        lay.addWidget(self.table)
+        lay.addWidget(self.where)
+        lay.addWidget(self.caution)
+
+    def show_result(self, result, system: str, hold=None, hold_pending: bool = False) -> None:
+        """Fill from ``result.design`` and its Hold Time ``hold`` (hidden when the result has no design)."""
+        design = getattr(result, "design", None)
+        if design is None:
+            self.rows = []
+            self.hide()
+            return
+        rows = design_figures.case_rows(result, system, hold, hold_pending)
+        if hold_pending:  # the last Hold Time figure stays until the new one is in (a few ms): no flicker
+            before = {r.key: r for r in self.rows}
+            rows = [before.get("hold", r) if r.key == "hold" else r for r in rows]
+        self.rows = rows
+        if self.table.rowCount() != len(self.rows):
+            self.table.setRowCount(len(self.rows))
+        for i, row in enumerate(self.rows):
+            for col, text in enumerate((row.label, *row.texts)):
+                item = self.table.item(i, col)
+                if item is None:
+                    item = QTableWidgetItem("")
+                    if col == 0:
+                        item.setForeground(QBrush(style.qcolor(style.INK)))
+                    self.table.setItem(i, col, item)
+                if item.text() != text:
+                    item.setText(text)
+                colour = style.INK
+                if text.startswith("✗"):
+                    colour = style.MISSED_COLOUR
+                elif text.startswith("✓"):
+                    colour = style.MET_COLOUR
+                elif text.endswith("⚠"):
+                    colour = style.WARNING_TEXT
+                if col > 0:
+                    item.setForeground(QBrush(style.qcolor(colour if text != "—" else style.INK_MUTED)))
+                item.setToolTip(f"{row.label}: {text}\n{row.tip}" if row.tip else "")
+        self._fit_height()
+        self._fit_timer.start()
+        short = [s for s in design.segments if s.holds is False]
+        if short:
+            fmt = design_figures.formatter(system)
+            worst = max(short, key=lambda s: s.required_output_W_per_m - s.available_output_W_per_m)
+            where = "at " + short[0].name if len(short) == 1 else f"at {len(short)} segments"
+            self.where.setText(
+                f"✗ Worst case does not hold {where}. Largest shortfall: "
+                f"{worst.name} {design.tracing_words(worst.index, fmt).removesuffix(': does not hold')}.")
+            self.where.setToolTip("Does not hold at: " + ", ".join(s.name for s in short)
+                                  + ". The Segment Card gives each segment's need.")
+            self.where.setStyleSheet(f"color: {style.MISSED_COLOUR}; padding: 2px 6px;")
+        elif design.worst_case_error:
+            self.where.setText(f"✗ Worst case: {design.worst_case_error}")
+            self.where.setStyleSheet(f"color: {style.MISSED_COLOUR}; padding: 2px 6px;")
+        else:
+            self.where.setText("")
+        self.where.setVisible(bool(self.where.text()))
+        self.caution.setText(design_figures.HOT_CASE_SHORT if design.notes else "")
+        self.caution.setToolTip(" ".join(design.notes))
+        self.caution.setVisible(bool(design.notes))
+        self.show()
+
+    def _fit_height(self) -> None:
+        """Rows as tall as their wrapped texts, the table as tall as its rows (it never scrolls)."""
+        if not self.rows:
+            return
+        self.table.resizeRowsToContents()
+        header = self.table.horizontalHeader().sizeHint().height()
+        self.table.setFixedHeight(header + sum(self.table.rowHeight(i) for i in range(len(self.rows))) + 4)
+
+    def text(self, key: str, case: str) -> str:
+        """The shown text of row ``key`` (e.g. 'maintain', 'lowest', 'hot_wall', 'hold') in ``case``
+        ('operating', 'worst', 'hot')."""
+        for i, row in enumerate(self.rows):
+            if row.key == key:
+                return self.table.item(i, 1 + design_figures.CASES.index(case)).text()
+        raise KeyError(f"no design-case row {key!r}; shown: {', '.join(r.key for r in self.rows)}")
 
 
 class KeyFiguresPanel(QWidget):
@@ -127,13 +260,17 @@ class KeyFiguresPanel(QWidget):
         lay = QVBoxLayout(self)
         lay.setContentsMargins(0, 0, 0, 0)
         lay.setSpacing(0)
+        self.design = DesignCasesTable(self)
+        self.design.hide()
         lay.addWidget(self.verdict)
         lay.addWidget(self.note)
+        lay.addWidget(self.design)
         lay.addWidget(self.table, 1)
 
         # the document holds the result and whether it is stale; this view only redraws
         doc.result_ready.connect(lambda _r: self.refresh())
         doc.bands_ready.connect(self._on_bands)
+        doc.hold_time_ready.connect(lambda r: self._show_design() if r is self.doc.result else None)
         doc.solve_failed.connect(lambda _m: self.refresh())
         doc.units_changed.connect(lambda _s: self.refresh())
         doc.project_replaced.connect(self.refresh)
@@ -189,6 +326,7 @@ class KeyFiguresPanel(QWidget):
             self.table.setRowCount(0)
             self._row_of = {}
             self._layout = []
+            self.design.show_result(None, self.doc.unit_system)
             self._show_verdict()
             self.note.setText("Key figures appear once the line is solved.")
             return
@@ -202,6 +340,7 @@ class KeyFiguresPanel(QWidget):
                  + ("background: #FCF0D8;" if self.doc.result_is_stale else ""))
         if self.note.styleSheet() != sheet:  # re-polishing costs a few ms: only when it changes
             self.note.setStyleSheet(sheet)
+        self._show_design()
         rows = key_figure_rows(res, system)
         layout = [row[0] for row in rows]
         if layout != self._layout:
@@ -271,6 +410,10 @@ class KeyFiguresPanel(QWidget):
         self._layout = [row[0] for row in rows]
         self._label_width = -1
         self._fit_timer.start()
+
+    def _show_design(self) -> None:
+        res = self.doc.result
+        self.design.show_result(res, self.doc.unit_system, self.doc.hold_time_of(res), self.doc.hold_time_pending(res))
 
     # ------------------------------------------------------------------ ± from the uncertainty bands
 

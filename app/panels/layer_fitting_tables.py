@@ -31,7 +31,11 @@ NUMBER_COLUMN = 80  # px: least width of a column of numbers
 HEADER_PADDING = 16  # px: a header section's margins around its text
 
 
-def _setup_table(table: QTableWidget, headers: list[str]) -> None:
+#: what a blank conductivity means (the table shows it in the empty box and in the tooltip)
+FROM_MATERIAL = "k(T)"
+
+
+def setup_table(table: QTableWidget, headers: list[str]) -> None:
     table.setHorizontalHeaderLabels(headers)
     table.verticalHeader().setVisible(False)
     table.setSelectionBehavior(QAbstractItemView.SelectRows)
@@ -43,7 +47,7 @@ def _setup_table(table: QTableWidget, headers: list[str]) -> None:
     table.setMaximumHeight(MAX_TABLE_HEIGHT)
 
 
-def _buttons(add: QPushButton, remove: QPushButton) -> QHBoxLayout:
+def buttons_row(add: QPushButton, remove: QPushButton) -> QHBoxLayout:
     row = QHBoxLayout()
     row.addWidget(add)
     row.addWidget(remove)
@@ -52,7 +56,11 @@ def _buttons(add: QPushButton, remove: QPushButton) -> QHBoxLayout:
 
 
 class InsulationLayersBox(QGroupBox):
-    """Insulation layers of the selected segment: material, thickness, conductivity per row."""
+    """Insulation layers of the selected segment: material, thickness, conductivity per row.
+
+    A blank conductivity is the catalogue material's conductivity at the layer's mean temperature
+    (its k(T), from the material's published specification); a number is a constant k.
+    """
 
     def __init__(self, editor: EditorPanel):
         super().__init__("Insulation layers (innermost first)")
@@ -61,7 +69,7 @@ class InsulationLayersBox(QGroupBox):
         v = QVBoxLayout(self)
         v.setContentsMargins(8, 6, 8, 8)
         self.table = QTableWidget(0, 3)
-        _setup_table(self.table, ["Material", "Thickness", "Conductivity"])
+        setup_table(self.table, ["Material", "Thickness", "Conductivity"])
         hh = self.table.horizontalHeader()
         hh.setSectionResizeMode(0, QHeaderView.Stretch)
         for c in (1, 2):
@@ -71,7 +79,7 @@ class InsulationLayersBox(QGroupBox):
         self.remove_btn = QPushButton("Remove layer")
         self.add_btn.clicked.connect(self.add_layer)
         self.remove_btn.clicked.connect(self.remove_layer)
-        row = _buttons(self.add_btn, self.remove_btn)
+        row = buttons_row(self.add_btn, self.remove_btn)
         self.total = hint("")
         self.total.setWordWrap(False)
         row.addWidget(self.total)
@@ -86,6 +94,9 @@ class InsulationLayersBox(QGroupBox):
         heads = ["Material", f"Thickness [{units.label('thickness', system)}]",
                  f"k [{units.label('conductivity', system)}]"]
         self.table.setHorizontalHeaderLabels(heads)
+        self.table.horizontalHeaderItem(2).setToolTip(
+            "Thermal conductivity of the layer. Leave empty for the material's conductivity at the layer's "
+            "mean temperature (k(T) from its published specification); a number is taken as constant.")
         fm = self.table.horizontalHeader().fontMetrics()
         for c in (1, 2):  # wide enough for the heading with its unit (measured, not guessed)
             self.table.setColumnWidth(c, max(NUMBER_COLUMN, fm.horizontalAdvance(heads[c]) + HEADER_PADDING))
@@ -117,10 +128,12 @@ class InsulationLayersBox(QGroupBox):
                 combo.addItem(mat.label, key)
             combo.activated.connect(lambda _i, row=r, c=combo: self._on_material(row, c.currentData()))
             table.setCellWidget(r, 0, combo)
-            for col, quantity, key, word in ((1, "thickness", "thickness_m", "thickness"),
-                                             (2, "conductivity", "conductivity_W_per_mK", "conductivity")):
+            for col, quantity, key, word, kw in (
+                    (1, "thickness", "thickness_m", "thickness", {}),
+                    (2, "conductivity", "conductivity_W_per_mK", "conductivity",
+                     dict(allow_empty=True, empty_text=FROM_MATERIAL))):
                 e = self.editor.quantity_edit(quantity, f"Layer {r + 1} {word}", f"insulation.{r}.{key}",
-                                              error_label=self.error, compact=True)
+                                              error_label=self.error, compact=True, **kw)
                 e.unit_label.hide()  # the unit is in the column header
                 table.setCellWidget(r, col, e)
         self.editor.forget_dead_edits()
@@ -135,7 +148,7 @@ class InsulationLayersBox(QGroupBox):
         mats = catalogue.INSULATION_MATERIALS
         key = "mineral wool" if "mineral wool" in mats else next(iter(mats))
         layers = [layer.model_dump() for layer in seg.insulation]
-        layers.append({"material": key, "thickness_m": 0.05, "conductivity_W_per_mK": mats[key].conductivity_W_per_mK})
+        layers.append({"material": key, "thickness_m": 0.05, "conductivity_W_per_mK": None})  # the material's k(T)
         self.editor.set_fields({"insulation": layers}, text=f"Add insulation layer to '{seg.name}'",
                                error_label=self.error)
 
@@ -155,7 +168,10 @@ class InsulationLayersBox(QGroupBox):
             return
         changes: dict = {f"insulation.{row}.material": key}
         material = catalogue.INSULATION_MATERIALS.get(key)
-        if material is not None:  # a new material brings its typical conductivity (one undo step)
+        entered_k = seg.insulation[row].conductivity_W_per_mK if row < len(seg.insulation) else None
+        if material is not None and entered_k is not None:
+            # a constant k entered for the old material would not fit the new one: its typical k (one undo
+            # step); a blank k stays blank, so the new material's k(T) applies
             changes[f"insulation.{row}.conductivity_W_per_mK"] = material.conductivity_W_per_mK
         self.editor.set_fields(changes, text=f"Set insulation material of '{seg.name}'", error_label=self.error)
 
@@ -170,7 +186,7 @@ class FittingsBox(QGroupBox):
         v = QVBoxLayout(self)
         v.setContentsMargins(8, 6, 8, 8)
         self.table = QTableWidget(0, 3)
-        _setup_table(self.table, ["Kind", "Count", "K each"])
+        setup_table(self.table, ["Kind", "Count", "K each"])
         self.table.horizontalHeaderItem(2).setToolTip("Loss coefficient per fitting; entered for 'Custom' only")
         hh = self.table.horizontalHeader()
         hh.setSectionResizeMode(0, QHeaderView.Stretch)
@@ -182,7 +198,7 @@ class FittingsBox(QGroupBox):
         self.remove_btn = QPushButton("Remove fitting")
         self.add_btn.clicked.connect(lambda _checked=False: self.add_fitting())
         self.remove_btn.clicked.connect(self.remove_fitting)
-        v.addLayout(_buttons(self.add_btn, self.remove_btn))
+        v.addLayout(buttons_row(self.add_btn, self.remove_btn))
         v.addWidget(hint("K from the published method of each kind, at the local Reynolds number "
                          "and bore; 'Custom' takes K as entered."))
         self.error = error_hint()

@@ -41,6 +41,7 @@ from app.panels.pipe_symbols import (
     diamond,
     elevation_arrow,
     font_px,
+    heat_sink_mark,
     insulation_band_px,
     paint_pipe,
     pipe_extent,
@@ -48,6 +49,8 @@ from app.panels.pipe_symbols import (
     wall_summary,
     wall_summary_parts,
 )
+from app.messages import heater_words
+from app.panels.heat_sinks_table import SINK_KINDS
 from app.segment_actions import SegmentActions
 from app.units import format_value
 from app.widgets.elided import ElidedLabel
@@ -69,8 +72,10 @@ def segment_key(seg) -> tuple:
 
     Plain values only: a model object is not a safe cache key (it is mutable and validated on assignment).
     """
-    return (seg.name, seg.length_m, seg.elevation_change_m, seg.heat_input_W_per_m,
+    return (seg.name, seg.length_m, seg.elevation_change_m,
+            tuple(seg.heater.__dict__.items()) if seg.heater is not None else None,
             tuple(layer.thickness_m for layer in seg.insulation), tuple(f.count for f in seg.fittings),
+            tuple(h.count for h in seg.heat_sinks),
             tuple(seg.surroundings.__dict__.items()),
             tuple(seg.steam_tracer.__dict__.items()) if seg.steam_tracer is not None else None)
 
@@ -124,7 +129,7 @@ def block_widths(lengths: list[float], available: float, minimum: float = MIN_BL
 class Caption:
     """One piece of text in a block: what is drawn, where, and the whole text it stands for."""
 
-    kind: str  # "name", "length", "elevation", "fittings", "wall"
+    kind: str  # "name", "length", "elevation", "fittings", "heat_sinks", "wall"
     text: str  # as drawn
     wording: str  # the wording chosen for the room (a compact one for a narrow block), before eliding
     full: str  # the whole caption (the block's tooltip says it)
@@ -198,7 +203,12 @@ def block_captions(seg, r: QRectF, system: str, base: QFont, *, marked: bool = F
     # upper row, the wall in words on the lower row, or on both rows when a block is narrow
     fittings = sum(f.count for f in seg.fittings)
     fit_text = f"×{fittings}" if fittings else ""
-    left = 12 + _width(fit_text, f_tiny) + gap if fittings else 0.0
+    sinks = sum(h.count for h in seg.heat_sinks)
+    sink_text = f"×{sinks}" if sinks else ""
+    fit_w = 12 + _width(fit_text, f_tiny) + gap if fittings else 0.0
+    sink_w = 13 + _width(sink_text, f_tiny) + gap if sinks else 0.0
+    left = fit_w + sink_w
+    markers = bool(fittings or sinks)
     right = arrow + _width(ez, f_small) + gap if elevation_below else 0.0
     full = wall_summary(seg, system)
     compact_parts = wall_summary_parts(seg, system, compact=True)
@@ -212,7 +222,7 @@ def block_captions(seg, r: QRectF, system: str, base: QFont, *, marked: bool = F
     elif _width(compact, f_tiny) <= room:
         lines = [(compact, inner.left(), row_b, room)]
     else:  # two lines; the fittings marker takes the start of whichever row has room for it
-        for marker_row in ((row_a, row_b) if fittings else (row_a,)):
+        for marker_row in ((row_a, row_b) if markers else (row_a,)):
             a_left = left if marker_row == row_a else 0.0
             b_left = left if marker_row == row_b else 0.0
             split = _two_lines(compact_parts, f_tiny, room - a_left - right, room - b_left)
@@ -230,8 +240,13 @@ def block_captions(seg, r: QRectF, system: str, base: QFont, *, marked: bool = F
     if fittings:
         out.append(Caption("fittings", _fit(fit_text, f_tiny, room - 12), fit_text, fit_text,
                            QRectF(inner.left() + 12, marker_y, min(_width(fit_text, f_tiny), room - 12), 14), f_tiny))
+    if sinks:
+        sink_room = max(0.0, room - fit_w - 13)
+        out.append(Caption("heat_sinks", _fit(sink_text, f_tiny, sink_room), sink_text, sink_text,
+                           QRectF(inner.left() + fit_w + 13, marker_y, min(_width(sink_text, f_tiny), sink_room), 14),
+                           f_tiny))
     if elevation_below:
-        er = max(0.0, room - (left if marker_y == upper_y and fittings else 0.0) - arrow)
+        er = max(0.0, room - (left if marker_y == upper_y and markers else 0.0) - arrow)
         w = min(_width(ez, f_small), er)
         out.append(Caption("elevation", _fit(ez, f_small, er), ez, ez,
                            QRectF(inner.right() - w, upper_y, w, 14), f_small, dz > 0))
@@ -384,7 +399,7 @@ class StripCanvas(QWidget):
             PIPE_CENTRE_Y,
             model=wall_model(seg),
             insulation_px=insulation_band_px(sum(layer.thickness_m for layer in seg.insulation)),
-            heat_input=seg.heat_input_W_per_m > 0,
+            heat_input=seg.heater.kind if seg.heater is not None else "",
             steam_tracer=seg.steam_tracer is not None,
         )
         if severity:
@@ -497,11 +512,15 @@ class StripCanvas(QWidget):
             p.setPen(_pen(style.FITTING, 1.2))
             p.setBrush(_colour("#FFFFFF"))
             diamond(p, cap.rect.left() - 7, cap.rect.center().y())
+        if cap.kind == "heat_sinks":
+            p.setPen(_pen(style.FITTING, 1.2))
+            p.setBrush(_colour("#FFFFFF"))
+            heat_sink_mark(p, cap.rect.left() - 7, cap.rect.center().y())
         if cap.kind == "elevation":
             p.setPen(_pen(style.INK, 1.4))
             p.setBrush(_colour(style.INK))
             elevation_arrow(p, cap.rect.left() - 7, cap.rect.center().y(), cap.up)
-        p.setPen(_colour(style.INK if cap.kind in ("name", "fittings") else style.INK_MUTED))
+        p.setPen(_colour(style.INK if cap.kind in ("name", "fittings", "heat_sinks") else style.INK_MUTED))
         # the rect is as wide as the text measured; a pixel or two of slack so nothing is cut
         p.drawText(cap.rect.adjusted(0, 0, 2, 0), Qt.AlignLeft | Qt.AlignVCenter, cap.text)
 
@@ -751,9 +770,14 @@ class LineStrip(QWidget):
             rows.append(f"Elevation change {format_value(seg.elevation_change_m, 'elevation', system)}")
         for layer in seg.insulation:
             rows.append(f"Layer: {layer.material}, {format_value(layer.thickness_m, 'thickness', system)}")
+        if seg.heater is not None:
+            rows.append("Electric tracing: " + heater_words(seg.heater, system))
         for f in seg.fittings:
             name = f.label or f.kind.replace("_", " ")
             rows.append(f"Fitting: {f.count} × {name}")
+        for h in seg.heat_sinks:
+            name = SINK_KINDS.get(h.kind, h.kind).lower() + (f" ({h.label})" if h.label else "")
+            rows.append(f"Heat sink: {h.count} × {name}")
         res = getattr(self.doc, "result", None)
         if res is not None:
             for c in res.checks:

@@ -1,9 +1,11 @@
 """The Line Strip's drawings: the pipe with its wall model, the symbols and their legend.
 
-Calorun's own symbols (``SYMBOLS``): a zig-zag on the wall for heat input, a small tube along
+Calorun's own symbols (``SYMBOLS``): a line on the wall for electric tracing, its shape telling the
+heater's kind (a zig-zag for constant output, a smooth wave for self-limiting, a square wave for a
+thermostat's on/off; the same colour, so the shape alone tells them apart), a small tube along
 the underside of the pipe for a steam tracer, a hatched band for insulation (thicker band, thicker insulation), a shell band for a jacket, a solid shell for
 a wall held at a temperature, soil hatching for a buried run, streamlines for wind, a double
-outline for adiabatic, a diamond for fittings and an arrow for elevation. Painting only: the
+outline for adiabatic, a diamond for fittings, a finned block for heat sinks and an arrow for elevation. Painting only: the
 canvas that places the blocks and handles the mouse is :mod:`app.panels.line_strip`.
 """
 
@@ -15,13 +17,18 @@ from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QBrush, QFont, QFontMetrics, QPainter, QPainterPath, QPen, QPixmap, QPolygonF
 from PySide6.QtWidgets import QSizePolicy, QWidget
 
+from typing import Union
+
 from app import style
 from app.units import format_value
 
 
 # Symbol legend: key -> (title, explanation). The legend row and tooltips use it.
 SYMBOLS: dict[str, tuple[str, str]] = {
-    "heat_input": ("Heat input", "zig-zag on the pipe wall: tracing, W per metre"),
+    "heat_input": ("Constant tracing", "zig-zag on the pipe wall: electric tracing of constant output"),
+    "heater_self_limiting": ("Self-limiting", "smooth wave on the pipe wall: self-limiting tracing, "
+                                              "its output falls as the pipe warms"),
+    "heater_thermostat": ("Thermostat", "square wave on the pipe wall: tracing switched on and off by a thermostat"),
     "steam_tracer": ("Steam tracer", "small tube along the underside of the pipe: steam tube tracer(s)"),
     "insulation": ("Insulation", "hatched band; thicker band = thicker insulation"),
     "jacket": ("Jacket", "outer shell band: a jacket or bath medium at its own temperature"),
@@ -31,12 +38,23 @@ SYMBOLS: dict[str, tuple[str, str]] = {
     "adiabatic": ("Adiabatic", "double outline: no exchange with the surroundings"),
     "bare": ("Still air", "plain pipe: still ambient air, no extras"),
     "fittings": ("Fittings", "diamond with the number of fittings"),
+    "heat_sinks": ("Heat sinks", "finned block with the number of supports, valves, flanges and other items "
+                                 "that lose heat beyond the pipe"),
     "elevation": ("Elevation", "arrow up or down with the elevation change"),
 }
 
 BORE_HALF = 8  # half height of the drawn bore
 TRACER_PX = 6.0  # room a drawn steam tracer takes below the pipe wall (the insulation wraps it too)
 STEAM_TRACER = style.OKABE_ITO["reddish_purple"]  # not the tracing zig-zag's colour: another heat source
+
+#: heater kind -> the shape of its line on the wall (one colour for all electric tracing: the shape tells
+#: the kind, so colour is never the cue; a sharp zig-zag, a smooth wave, a square on/off wave)
+HEATER_SHAPES: dict[str, str] = {"constant": "zigzag", "self_limiting": "wave", "thermostat": "square"}
+#: a smooth wave at the zig-zag's period reads as one more zig-zag: drawn twice as long, it reads as a wave
+_PERIOD_SCALE = {"wave": 2.0, "square": 1.25}
+#: heater kind -> its legend key in SYMBOLS
+HEATER_SYMBOLS: dict[str, str] = {"constant": "heat_input", "self_limiting": "heater_self_limiting",
+                                  "thermostat": "heater_thermostat"}
 
 
 def font_px(base: QFont, px: int, bold: bool = False) -> QFont:
@@ -71,7 +89,8 @@ def wall_model(segment) -> str:
 
 
 def wall_summary(segment, system: str, compact: bool = False) -> str:
-    """One short line saying what happens at the wall, e.g. 'traced 30 W/m · ins 50 mm · still air'.
+    """One short line saying what happens at the wall, e.g. 'traced 30 W/m · ins 50 mm · still air'
+    ('self-limiting 30 W/m', 'thermostat 30 W/m' for those heaters: their rated output per metre of pipe).
 
     ``compact`` drops the words the drawing already says (the zig-zag is the tracing, the
     hatched band the insulation) for a narrow block: '30 W/m · 50 mm · still air'.
@@ -84,8 +103,12 @@ def wall_summary_parts(segment, system: str, compact: bool = False) -> list[str]
     parts: list[str] = []
     s = segment.surroundings
     traced, ins = ("", "") if compact else ("traced ", "ins ")
-    if segment.heat_input_W_per_m > 0:
-        parts.append(traced + format_value(segment.heat_input_W_per_m, "power_per_length", system, digits=3))
+    heater = getattr(segment, "heater", None)
+    if heater is not None:
+        q = format_value(segment.heat_input_W_per_m, "power_per_length", system, digits=3)
+        word = {"constant": "", "self_limiting": "self-lim. " if compact else "self-limiting ",
+                "thermostat": "thermostat "}[heater.kind]
+        parts.append((word or traced) + q)
     tracer = getattr(segment, "steam_tracer", None)
     if tracer is not None:
         pressure = format_value(tracer.steam_pressure_Pa, "pressure", system, digits=3)
@@ -117,12 +140,29 @@ def wall_summary_parts(segment, system: str, compact: bool = False) -> list[str]
 # --------------------------------------------------------------------------- symbol painting
 
 
-def _zigzag_path(x0: float, x1: float, y: float, amp: float, period: float) -> QPainterPath:
+def _zigzag_path(x0: float, x1: float, y: float, amp: float, period: float, shape: str = "zigzag") -> QPainterPath:
+    """The heater's line from x0 to x1 about y: ``"zigzag"``, ``"wave"`` (smooth) or ``"square"``."""
     path = QPainterPath(QPointF(x0, y))
     x, up = x0, True
+    if shape == "square":
+        path.moveTo(QPointF(x0, y - amp))
+        while x < x1:
+            level = y - amp if up else y + amp
+            x = min(x + period / 2, x1)
+            path.lineTo(QPointF(x, level))
+            if x < x1:
+                path.lineTo(QPointF(x, y + amp if up else y - amp))
+            up = not up
+        return path
     while x < x1:
-        x = min(x + period / 2, x1)
-        path.lineTo(QPointF(x, y - amp if up else y + amp))
+        x_next = min(x + period / 2, x1)
+        peak = y - amp if up else y + amp
+        if shape == "wave":  # half a sine period as one cubic (control points at the peak height)
+            path.cubicTo(QPointF(x + (x_next - x) * 0.36, peak), QPointF(x + (x_next - x) * 0.64, peak),
+                         QPointF(x_next, y))
+        else:
+            path.lineTo(QPointF(x_next, peak))
+        x = x_next
         up = not up
     return path
 
@@ -134,8 +174,8 @@ _ZIGZAG_PAD = 3  # px around the stroke (pen width and antialiasing)
 _zigzag_pixmaps: dict[tuple, QPixmap] = {}
 
 
-def _zigzag_pixmap(pen: QPen, amp: float, period: float, dpr: float) -> QPixmap:
-    key = (pen.color().rgba(), pen.widthF(), amp, period, dpr)
+def _zigzag_pixmap(pen: QPen, amp: float, period: float, dpr: float, shape: str = "zigzag") -> QPixmap:
+    key = (pen.color().rgba(), pen.widthF(), amp, period, dpr, shape)
     pix = _zigzag_pixmaps.get(key)
     if pix is None:
         w, h = _ZIGZAG_LENGTH + 2 * _ZIGZAG_PAD, 2 * (amp + _ZIGZAG_PAD)
@@ -147,24 +187,26 @@ def _zigzag_pixmap(pen: QPen, amp: float, period: float, dpr: float) -> QPixmap:
             q.setRenderHint(QPainter.Antialiasing, True)
             q.setPen(pen)
             q.setBrush(Qt.NoBrush)
-            q.drawPath(_zigzag_path(_ZIGZAG_PAD, _ZIGZAG_PAD + _ZIGZAG_LENGTH, h / 2, amp, period))
+            q.drawPath(_zigzag_path(_ZIGZAG_PAD, _ZIGZAG_PAD + _ZIGZAG_LENGTH, h / 2, amp, period, shape))
         finally:
             q.end()
         _zigzag_pixmaps[key] = pix
     return pix
 
 
-def _zigzag(painter: QPainter, x0: float, x1: float, y: float, amp: float = 2.6, period: float = 8.0) -> None:
-    """A zig-zag from x0 to x1 about y with the painter's pen (copied from a cached stroke)."""
+def _zigzag(painter: QPainter, x0: float, x1: float, y: float, amp: float = 2.6, period: float = 8.0,
+            shape: str = "zigzag") -> None:
+    """A heater's line (``HEATER_SHAPES``) from x0 to x1 about y with the painter's pen (copied from a cached
+    stroke)."""
     span = x1 - x0
     if span <= 0:
         return
     if span > _ZIGZAG_LENGTH:
-        painter.drawPath(_zigzag_path(x0, x1, y, amp, period))
+        painter.drawPath(_zigzag_path(x0, x1, y, amp, period, shape))
         return
     dev = painter.device()
     dpr = dev.devicePixelRatioF() if dev is not None else 1.0
-    pix = _zigzag_pixmap(painter.pen(), amp, period, dpr)
+    pix = _zigzag_pixmap(painter.pen(), amp, period, dpr, shape)
     h = 2 * (amp + _ZIGZAG_PAD)
     w = span + 2 * _ZIGZAG_PAD - 1  # the stroke ends at x1 (+ about a pixel of its width)
     painter.drawPixmap(QRectF(x0 - _ZIGZAG_PAD, y - h / 2, w, h), pix, QRectF(0, 0, w * dpr, h * dpr))
@@ -218,6 +260,14 @@ def diamond(painter: QPainter, cx: float, cy: float, r: float = 4.0) -> None:
     painter.drawPolygon(QPolygonF([QPointF(cx, cy - r), QPointF(cx + r, cy), QPointF(cx, cy + r), QPointF(cx - r, cy)]))
 
 
+def heat_sink_mark(painter: QPainter, cx: float, cy: float, r: float = 4.5) -> None:
+    """A heat sink: a small block with three fins below it (heat leaving), centred on (cx, cy); the
+    painter's pen and brush."""
+    painter.drawRect(QRectF(cx - r, cy - r, 2 * r, r))
+    for dx in (-r + 1, 0.0, r - 1):
+        painter.drawLine(QPointF(cx + dx, cy), QPointF(cx + dx, cy + r))
+
+
 def elevation_arrow(painter: QPainter, x: float, y_mid: float, up: bool, size: float = 5.0) -> None:
     tip = y_mid - size if up else y_mid + size
     base = y_mid + size if up else y_mid - size
@@ -233,15 +283,16 @@ def paint_pipe(
     *,
     model: str,
     insulation_px: float,
-    heat_input: bool,
+    heat_input: Union[bool, str],
     bore_half: float = BORE_HALF,
     compact: bool = False,
     steam_tracer: bool = False,
 ) -> float:
     """Paint one run of pipe with its wall model between rect.left and rect.right.
 
-    ``steam_tracer`` draws a steam tube tracer along the underside of the pipe, inside the
-    insulation. Returns the half height of the outer extent (so callers can place things below it).
+    ``heat_input`` is the heater's kind (``"constant"``, ``"self_limiting"``, ``"thermostat"``; True is
+    constant, False or "" none). ``steam_tracer`` draws a steam tube tracer along the underside of the
+    pipe, inside the insulation. Returns the half height of the outer extent (so callers can place things below it).
     """
     painter.save()
     try:  # the caller's painter comes back as it was, whatever happens here
@@ -250,7 +301,8 @@ def paint_pipe(
         painter.restore()
 
 
-def _paint_pipe(painter: QPainter, rect: QRectF, yc: float, model: str, insulation_px: float, heat_input: bool,
+def _paint_pipe(painter: QPainter, rect: QRectF, yc: float, model: str, insulation_px: float,
+                heat_input: Union[bool, str],
                 bore_half: float, compact: bool, steam_tracer: bool) -> float:
     x0, x1 = rect.left(), rect.right()
     painter.setRenderHint(QPainter.Antialiasing, True)
@@ -312,13 +364,14 @@ def _paint_pipe(painter: QPainter, rect: QRectF, yc: float, model: str, insulati
     painter.drawRect(QRectF(x0, yc - bore_half, x1 - x0, 2 * bore_half))
 
     if heat_input:
+        shape = HEATER_SHAPES.get(heat_input if isinstance(heat_input, str) else "constant", "zigzag")
         pen = QPen(style.qcolor(style.HEAT_INPUT), 1.7)
         painter.setPen(pen)
         painter.setBrush(Qt.NoBrush)
         off, amp, period = (2.0, 1.6, 6.0) if compact else (3.0, 2.6, 8.0)
         # with a steam tracer below, the zig-zag keeps to the top so the two stay apart
         for y in (yc - ext - off,) + (() if tracer_px else (yc + ext + off,)):
-            _zigzag(painter, x0 + 2, x1 - 2, y, amp, period)
+            _zigzag(painter, x0 + 2, x1 - 2, y, amp, period * _PERIOD_SCALE.get(shape, 1.0), shape)
 
     if tracer_px:
         _steam_tube(painter, x0 + 2, x1 - 2, yc + ext + 0.5, tracer_px - 1.0)
@@ -395,7 +448,8 @@ def _steam_tube(painter: QPainter, x0: float, x1: float, top: float, height: flo
 class SymbolLegend(QWidget):
     """A row of the Line Strip's symbols with short names; the tooltip explains each."""
 
-    ORDER = ("heat_input", "steam_tracer", "insulation", "jacket", "fixed_wall", "buried", "wind", "adiabatic", "fittings", "elevation")
+    ORDER = ("heat_input", "heater_self_limiting", "heater_thermostat", "steam_tracer", "insulation", "jacket",
+             "fixed_wall", "buried", "wind", "adiabatic", "fittings", "heat_sinks", "elevation")
 
     def __init__(self, parent=None):
         super().__init__(parent)
@@ -421,6 +475,10 @@ class SymbolLegend(QWidget):
                 p.setPen(QPen(style.qcolor(style.FITTING), 1.2))
                 p.setBrush(style.qcolor("#FFFFFF"))
                 diamond(p, x + 13, yc)
+            elif key == "heat_sinks":
+                p.setPen(QPen(style.qcolor(style.FITTING), 1.2))
+                p.setBrush(style.qcolor("#FFFFFF"))
+                heat_sink_mark(p, x + 13, yc)
             elif key == "elevation":
                 p.setPen(QPen(style.qcolor(style.INK), 1.4))
                 p.setBrush(style.qcolor(style.INK))
@@ -434,7 +492,7 @@ class SymbolLegend(QWidget):
                     yc,
                     model=model if key != "wind" else "bare",
                     insulation_px=3.0 if key == "insulation" else 0.0,
-                    heat_input=key == "heat_input",
+                    heat_input=next((k for k, v in HEATER_SYMBOLS.items() if v == key), ""),
                     bore_half=3.0 if key != "buried" else 2.0,
                     compact=True,
                     steam_tracer=key == "steam_tracer",

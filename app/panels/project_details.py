@@ -1,5 +1,6 @@
-"""Project details and design targets: the title block of the report and the targets every
-alternative is judged against in Side-by-Side. Edits go through commands in one undo step."""
+"""Project details, design targets and design cases: the title block of the report, the targets every
+alternative is judged against in Side-by-Side, and the worst and hot cases every alternative is
+designed for (:mod:`app.panels.design_cases_box`). Edits go through commands in one undo step."""
 
 from __future__ import annotations
 
@@ -18,8 +19,9 @@ from PySide6.QtWidgets import (
 )
 
 from app import commands, messages
+from app.panels.design_cases_box import DesignCasesBox
 from app.widgets.quantity_edit import QuantityEdit
-from solver.model import Targets
+from solver.model import DesignCases, Targets
 
 # target field -> (label, quantity)
 TARGET_FIELDS: dict[str, tuple[str, str]] = {
@@ -32,7 +34,7 @@ TARGET_FIELDS: dict[str, tuple[str, str]] = {
 
 
 class ProjectDetailsDialog(QDialog):
-    """``ProjectDetailsDialog(doc)``: edit name, description, prepared by, revision and targets.
+    """``ProjectDetailsDialog(doc)``: edit name, description, prepared by, revision, targets and design cases.
 
     :meth:`apply` pushes the changes (one undo step) and returns an error text or None.
     """
@@ -40,7 +42,7 @@ class ProjectDetailsDialog(QDialog):
     def __init__(self, doc, parent=None):
         super().__init__(parent)
         self.doc = doc
-        self.setWindowTitle("Project details and design targets")
+        self.setWindowTitle("Project details, design targets and design cases")
         self.setObjectName("ProjectDetailsDialog")
         self.setMinimumWidth(560)
         project = doc.project
@@ -68,6 +70,8 @@ class ProjectDetailsDialog(QDialog):
             self.target_edits[key] = edit
             tform.addRow(label, edit)
 
+        self.cases_box = DesignCasesBox(project.design_cases, system)
+
         self.error_label = QLabel("")
         self.error_label.setWordWrap(True)
         self.error_label.setStyleSheet("color: #B04A00;")
@@ -79,8 +83,10 @@ class ProjectDetailsDialog(QDialog):
         layout = QVBoxLayout(self)
         layout.addWidget(details)
         layout.addWidget(targets)
+        layout.addWidget(self.cases_box)
         layout.addWidget(self.error_label)
         layout.addWidget(buttons)
+        self._fit_height()
 
     def _accept(self) -> None:
         error = self.apply()
@@ -94,12 +100,20 @@ class ProjectDetailsDialog(QDialog):
             if edit.has_error:  # the box says what is wrong, under itself
                 self.error_label.hide()
                 return edit.error_text
+        refused = self.cases_box.commit()
+        if refused is not None:  # the box says what is wrong, under itself
+            self.error_label.hide()
+            return refused
         values = {key: edit.value() for key, edit in self.target_edits.items()}
         self.error_label.hide()  # shown again below if this try is refused too
         try:
             new_targets = Targets(**values)
         except ValidationError as exc:  # in the user's words: the field's label, the display unit
             return self._show(messages.validation_message(exc, self.doc.unit_system, prefix="targets"))
+        try:
+            new_cases = DesignCases(**self.cases_box.values())
+        except ValidationError as exc:
+            return self._show(messages.validation_message(exc, self.doc.unit_system, prefix="design_cases"))
         project = self.doc.project
         changes = {
             "name": self.name_edit.text().strip() or project.name,
@@ -107,6 +121,7 @@ class ProjectDetailsDialog(QDialog):
             "revision": self.revision_edit.text().strip(),
             "description": self.description_edit.toPlainText().strip(),
             "targets": new_targets,
+            "design_cases": new_cases,
         }
         changed = {k: v for k, v in changes.items() if getattr(project, k) != v}
         if not changed:
@@ -121,13 +136,16 @@ class ProjectDetailsDialog(QDialog):
         self.error_label.hide()
         return None
 
-    def _show(self, text: str) -> str:
-        self.error_label.setText(text)
-        self.error_label.show()
-        # a wrapped message needs more height than the dialog had: grow to show all of it
+    def _fit_height(self) -> None:
+        """Tall enough for the wrapped notes: a size hint leaves out what word-wrapped labels need."""
         layout = self.layout()
         layout.activate()
         needed = layout.totalHeightForWidth(self.width()) if layout.hasHeightForWidth() else layout.sizeHint().height()
         if needed > self.height():
             self.resize(self.width(), needed)
+
+    def _show(self, text: str) -> str:
+        self.error_label.setText(text)
+        self.error_label.show()
+        self._fit_height()  # a wrapped message needs more height than the dialog had: grow to show all of it
         return text

@@ -6,9 +6,10 @@ value never sends it back as an edit. Entries go through the one edit/refuse pat
 :mod:`app.panels.editing`: an entry the model refuses is marked in place with the reason, in
 the user's words and units, and nothing changes.
 
-The card holds the segment, pipe and heat-input fields itself; the insulation and fittings
-tables are :mod:`app.panels.layer_fitting_tables` and the surroundings section is
-:mod:`app.panels.surroundings_box`.
+The card holds the segment and pipe fields itself; the electric tracing is
+:mod:`app.panels.heater_box`, the insulation and fittings tables are
+:mod:`app.panels.layer_fitting_tables`, the heat sinks :mod:`app.panels.heat_sinks_table` and the
+surroundings section is :mod:`app.panels.surroundings_box`.
 """
 
 from __future__ import annotations
@@ -40,16 +41,18 @@ from app.panels.editing import (
     set_combo_data,
 )
 from app.panels.fouling_field import FoulingField
+from app.panels.heat_sinks_table import HeatSinksBox
+from app.panels.heater_box import HeaterBox
 from app.panels.layer_fitting_tables import FittingsBox, InsulationLayersBox
 from app.panels.resistance_bar import HeatPathBox
 from app.panels.steam_tracer_box import SteamTracerBox
 from app.panels.surroundings_box import SurroundingsBox
+from app.panels.tracing_need import TracingNeedBox
 from app.widgets.elided import ElidedComboBox, ElidedLabel
 from app.widgets.quantity_edit import QuantityEdit
 from solver import catalogue
 from solver.errors import CalorunError
 
-HEAT_HINT = "Electric tracing: enters at the pipe's outer wall, under the insulation. 0 = none."
 INSIDE_FOULING_HINT = "Deposit on the bore, per m² of inside surface; 0 = clean. ▾ lists published typical values."
 
 
@@ -98,10 +101,13 @@ class SegmentCard(EditorPanel):
         self.fittings = FittingsBox(self)
         self.surroundings = SurroundingsBox(self)
         self.tracer = SteamTracerBox(self)
+        self.heater = HeaterBox(self)
+        self.heat_sinks = HeatSinksBox(self)
         # the solved segment's resistances (reads the result), first: why it loses what it loses, at a glance
         self.heat_path = HeatPathBox(doc, self)
-        for box in (self.heat_path, self._build_segment_section(), self._build_pipe_section(),
-                    self._build_heat_section(), self.tracer, self.layers, self.fittings, self.surroundings):
+        self.tracing_need = TracingNeedBox(doc, self)  # the design cases: need, delivered, hold time
+        for box in (self.heat_path, self.tracing_need, self._build_segment_section(), self._build_pipe_section(),
+                    self.heater, self.tracer, self.layers, self.fittings, self.heat_sinks, self.surroundings):
             col.addWidget(box)
         self.card_error = error_hint()
         self.panel_error = self.card_error
@@ -183,14 +189,6 @@ class SegmentCard(EditorPanel):
         self.fouling = FoulingField(self, "Inside fouling", "inside_fouling_m2K_per_W", "inside")
         form.addRow("Inside fouling", self.fouling)
         form.addRow("", hint(INSIDE_FOULING_HINT))
-        return box
-
-    def _build_heat_section(self) -> QGroupBox:
-        box, form = section("Heat input")
-        self.heat_edit = self.quantity_edit("power_per_length", "Tracing power", "heat_input_W_per_m")
-        form.addRow("Tracing power", self.heat_edit)
-        self.heat_hint = hint(HEAT_HINT)
-        form.addRow("", self.heat_hint)
         return box
 
     # ---- the sections' widgets under the names the card has always had
@@ -277,13 +275,15 @@ class SegmentCard(EditorPanel):
         self.loading = True
         try:
             self._show_segment_fields(seg)
+            self.heater.show_project_margin()  # a project edit (Project details) leaves the segment as it was
             if seg is not prev:
                 fixed_changed = seg.surroundings.kind != prev.surroundings.kind
                 if seg.pipe != prev.pipe or seg.inside_fouling_m2K_per_W != prev.inside_fouling_m2K_per_W:
                     self._show_pipe(seg)
-                if fixed_changed or seg.heat_input_W_per_m != prev.heat_input_W_per_m:
-                    self._show_heat(seg)
-                for box, same in ((self.layers, seg.insulation == prev.insulation and not fixed_changed),
+                for box, same in ((self.heater, seg.heater == prev.heater and seg.design_margin == prev.design_margin
+                                   and not fixed_changed),
+                                  (self.heat_sinks, seg.heat_sinks == prev.heat_sinks),
+                                  (self.layers, seg.insulation == prev.insulation and not fixed_changed),
                                   (self.fittings, seg.fittings == prev.fittings),
                                   (self.surroundings, seg.surroundings == prev.surroundings),
                                   (self.tracer, seg.steam_tracer == prev.steam_tracer and not fixed_changed)):
@@ -298,7 +298,8 @@ class SegmentCard(EditorPanel):
     def _show(self, seg) -> None:
         self._show_segment_fields(seg)
         self._show_pipe(seg)
-        self._show_heat(seg)
+        self.heater.show_segment(seg)
+        self.heat_sinks.show_segment(seg)
         self.layers.show_segment(seg)
         self.fittings.show_segment(seg)
         self.surroundings.show_segment(seg)
@@ -335,12 +336,6 @@ class SegmentCard(EditorPanel):
         self.fouling.edit.set_value(seg.inside_fouling_m2K_per_W)
         self.fouling.set_unit_system(self.doc.unit_system)
         self._show_dimensions(seg)
-
-    def _show_heat(self, seg) -> None:
-        fixed = seg.surroundings.kind == "fixed_wall"
-        self.heat_edit.set_value(seg.heat_input_W_per_m)
-        self.heat_edit.setEnabled(not fixed)
-        self.heat_hint.setText("Not used with a fixed wall temperature." if fixed else HEAT_HINT)
 
     def _show_material_defaults(self, material: str) -> None:
         system = self.doc.unit_system

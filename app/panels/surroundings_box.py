@@ -3,9 +3,13 @@
 One page of fields per kind (still air, wind, buried, jacket, fixed wall, adiabatic). Switching
 the kind carries the temperature over, remembers what the segment had under the kind it left
 (switching back restores it), and is one undo step; a fixed wall takes no tracing, so switching
-to it sets the heat input to 0 in the same step and switching away gives the tracing back. A
+to it removes the heater (electric tracing) in the same step and switching away gives it back. A
 jacket or a fixed wall takes no steam tracer either: switching to one removes the tracer in the same
 step, and switching on to surroundings that take one gives it back.
+
+In air (still or wind) the outer surface's finish can be chosen from the usual jacketing
+(:data:`solver.catalogue.JACKETING`): the choice sets the surface emissivity, which the box still
+shows and takes as typed; an emissivity no finish has shows as "as entered".
 
 The fixed wall is given either as a temperature (an idealisation: the wall is held exactly there)
 or as the pressure of saturated steam condensing on the pipe, which heats the wall through the
@@ -29,6 +33,12 @@ from app.panels.editing import EditorPanel, hint, section_form, set_combo_data
 from app.panels.fouling_field import FoulingField
 from app.widgets.elided import ElidedComboBox
 from app.widgets.quantity_edit import QuantityEdit
+from solver import catalogue
+
+#: the jacketing combo's entry for an emissivity no finish in the catalogue has
+AS_ENTERED = "As entered (emissivity below)"
+#: the surroundings with an outer surface in air, where the finish sets the emissivity
+_AIR_KINDS = ("still_air", "wind")
 
 #: surroundings kind -> label shown in the combo (order = combo order)
 SURROUNDINGS_KINDS: dict[str, str] = {
@@ -50,6 +60,7 @@ FIXED_STEAM_HINT = ("Steam condenses on the pipe and heats the wall through the 
 
 #: surroundings that take no steam tracer (the model refuses one with them)
 _NO_TRACER = ("jacket", "fixed_wall")
+_NO_SINKS = ("fixed_wall", "adiabatic")  # surroundings a heat sink has nothing to lose heat to
 
 # the temperature key of each surroundings kind (carried over when the kind changes)
 _TEMPERATURE_KEY = {
@@ -88,6 +99,8 @@ class SurroundingsBox(QGroupBox):
         super().__init__("Surroundings")
         self.editor = editor
         self._memory: dict = {}  # (alternative, segment, name) -> settings per kind
+        self._finish: dict = {}  # (alternative, segment, name) -> the jacketing key last chosen
+        self.jacketing: dict[str, ElidedComboBox] = {}  # air kind -> its finish combo
         form = section_form(self)
         self.combo = ElidedComboBox()
         for key, text in SURROUNDINGS_KINDS.items():
@@ -121,12 +134,26 @@ class SurroundingsBox(QGroupBox):
         w = QWidget()
         f = self._form(w)
         for label_text, quantity, key, kw in rows:
+            if key == "emissivity" and kind in _AIR_KINDS:
+                f.addRow("Outer surface", self._jacketing_combo(kind))
             e = self.editor.quantity_edit(quantity, label_text, f"surroundings.{key}", **kw)
             self.edits[f"{kind}.{key}"] = e
             f.addRow(label_text, e)
         if note:
             f.addRow(hint(note))
         self._add_page(kind, w)
+
+    def _jacketing_combo(self, kind: str) -> ElidedComboBox:
+        combo = ElidedComboBox()
+        combo.addItem(AS_ENTERED, None)
+        for key, label, emissivity, source in catalogue.jacketing_choices():
+            combo.addItem(f"{label} (ε {emissivity:g})", key)
+            combo.setItemData(combo.count() - 1, f"Emissivity {emissivity:g}: {source}", Qt.ToolTipRole)
+        combo.setToolTip("The finish of the outer surface (jacketing over the insulation, or the bare pipe): "
+                         "it sets the surface emissivity, which drives the surface temperature.")
+        combo.activated.connect(lambda _i, c=combo: self.on_jacketing(c.currentData()))
+        self.jacketing[kind] = combo
+        return combo
 
     def _fixed_wall_page(self) -> None:
         fw = QWidget()
@@ -161,6 +188,8 @@ class SurroundingsBox(QGroupBox):
             kind, field = key.split(".", 1)
             if kind == s.kind:
                 edit.set_value(getattr(s, field))
+        if s.kind in _AIR_KINDS:
+            set_combo_data(self.jacketing[s.kind], self._finish_of(seg))
         if s.kind == "fixed_wall":
             by_steam = s.steam_pressure_Pa is not None
             self.fixed_by_steam.setChecked(by_steam)
@@ -185,8 +214,8 @@ class SurroundingsBox(QGroupBox):
         # remember what this segment had under the kind it leaves, so switching back restores it
         remembered = self._memory.setdefault((doc.current_index, doc.selected_segment, seg.name), {})
         remembered[seg.surroundings.kind] = seg.surroundings.model_dump()
-        if seg.heat_input_W_per_m > 0:
-            remembered["heat_input_W_per_m"] = seg.heat_input_W_per_m
+        if seg.heater is not None:
+            remembered["heater"] = seg.heater.model_dump()
         if kind in remembered:
             new: dict = dict(remembered[kind])
         else:
@@ -196,10 +225,10 @@ class SurroundingsBox(QGroupBox):
             if old_key and new_key and kind != "fixed_wall" and seg.surroundings.kind != "fixed_wall":
                 new[new_key] = getattr(seg.surroundings, old_key)
         changes: dict = {"surroundings": new}
-        if kind == "fixed_wall" and seg.heat_input_W_per_m > 0:
-            changes["heat_input_W_per_m"] = 0.0  # a held wall takes no tracing; one undo step restores both
-        elif seg.surroundings.kind == "fixed_wall" and seg.heat_input_W_per_m == 0 and "heat_input_W_per_m" in remembered:
-            changes["heat_input_W_per_m"] = remembered["heat_input_W_per_m"]  # the tracing it had before
+        if kind == "fixed_wall" and seg.heater is not None:
+            changes["heater"] = None  # a held wall takes no tracing; one undo step restores both
+        elif seg.surroundings.kind == "fixed_wall" and seg.heater is None and remembered.get("heater"):
+            changes["heater"] = remembered["heater"]  # the tracing it had before
         text = f"Set surroundings of '{seg.name}' to {SURROUNDINGS_KINDS[kind].split(' (')[0]}"
         if kind in _NO_TRACER and seg.surroundings.kind not in _NO_TRACER:
             # the steam tracer goes in the same undo step; remembered (or None), so leaving gives it back
@@ -210,7 +239,47 @@ class SurroundingsBox(QGroupBox):
         elif seg.surroundings.kind in _NO_TRACER and kind not in _NO_TRACER and seg.steam_tracer is None \
                 and remembered.get("steam_tracer"):
             changes["steam_tracer"] = remembered["steam_tracer"]  # the tracer it had before
+        # heat sinks lose heat to surroundings a held wall or an adiabatic outside does not have: they go in
+        # the same undo step, remembered, and come back when the segment returns to air, soil or a jacket
+        if kind in _NO_SINKS and seg.surroundings.kind not in _NO_SINKS:
+            remembered["heat_sinks"] = [sink.model_dump() for sink in seg.heat_sinks]
+            if seg.heat_sinks:
+                changes["heat_sinks"] = []
+                text += " (heat sinks removed)"
+        elif seg.surroundings.kind in _NO_SINKS and kind not in _NO_SINKS and not seg.heat_sinks \
+                and remembered.get("heat_sinks"):
+            changes["heat_sinks"] = remembered["heat_sinks"]
         self.editor.set_fields(changes, text=text)
+
+    def _key(self, seg) -> tuple:
+        doc = self.editor.doc
+        return (doc.current_index, doc.selected_segment, seg.name)
+
+    def _finish_of(self, seg):
+        """The jacketing the segment's emissivity stands for: the one last chosen if it still fits, else the
+        first with that emissivity, else None (as entered)."""
+        emissivity = seg.surroundings.emissivity
+        chosen = self._finish.get(self._key(seg))
+        if chosen in catalogue.JACKETING and catalogue.JACKETING[chosen].emissivity == emissivity:
+            return chosen
+        return next((k for k, j in catalogue.JACKETING.items() if j.emissivity == emissivity), None)
+
+    def on_jacketing(self, key) -> None:
+        """A finish chosen: its emissivity goes to the surroundings (one undo step)."""
+        seg = self.editor.doc.selected
+        if seg is None or self.editor.loading or seg.surroundings.kind not in _AIR_KINDS:
+            return
+        if key is None:  # the emissivity is typed in its box
+            self._finish.pop(self._key(seg), None)
+            self.edits[f"{seg.surroundings.kind}.emissivity"].line_edit.setFocus()
+            return
+        self._finish[self._key(seg)] = key
+        finish = catalogue.JACKETING[key]
+        if not self.editor.set_fields({"surroundings.emissivity": finish.emissivity},
+                                      text=f"Outer surface of '{seg.name}': {finish.label.lower()}"):
+            return
+        # the same emissivity as before changes no model value: show the choice all the same
+        set_combo_data(self.jacketing[seg.surroundings.kind], self._finish_of(seg))
 
     def on_fixed_source(self, button_id: int) -> None:
         seg = self.editor.doc.selected
