@@ -218,7 +218,9 @@ def _headless(argv: list[str]) -> int:
         if alt.name not in chosen:
             continue
         try:
-            r = solve(alt)
+            r = solve(alt, design=project.design_cases)
+            entry = r.to_dict()
+            entry["design"] = r.design.to_dict()  # reads the Hold Time: a numerical fault there is caught too
         except (CalorunError, ArithmeticError, ValueError) as exc:  # the last two: a numerical failure not worded
             if isinstance(exc, CalorunError):
                 message = str(exc)
@@ -232,7 +234,7 @@ def _headless(argv: list[str]) -> int:
             entries.append({"name": alt.name, "error": message})
             continue
         results.append(r)
-        entries.append(r.to_dict())
+        entries.append(entry)
         if args.uncertainty and args.json:
             from solver.uncertainty import line_bands
 
@@ -242,6 +244,9 @@ def _headless(argv: list[str]) -> int:
     else:
         for r in results:
             print(key_figures_table(r, args.units, targets=project.targets))
+            design = design_table(r, args.units)
+            if design:
+                print(design)
             print()
     if args.csv and results:
         from app.export import write_all_csv
@@ -313,6 +318,65 @@ def key_figures_table(result, system: str = "SI", targets=None) -> str:
             where.append(f"x = {format_value(c.x_m, 'length', system)}")
         at = f" ({', '.join(where)})" if where else ""
         lines.append(f"    {c.severity.upper():7s} {check_message(c, system)}{at} [{c.code}]")
+    return "\n".join(lines)
+
+
+def design_table(result, system: str = "SI") -> str:
+    """The design cases of one result (``result.design``) as a short text table, one row per segment.
+
+    Per segment: heat loss per metre operating (heat sinks included) and worst case (the pipe held at the
+    maintain temperature, without sinks or margin), the heat sinks, the heater and what it delivered
+    operating, the tracing need with its verdict, the time after a power failure to the maintain
+    temperature and to freezing, and the hot case's highest wall temperature. '' without design cases.
+    """
+    from app.design_figures import duration_text, formatter
+    from app.units import format_value, label
+
+    d = result.design
+    if d is None:
+        return ""
+    cases = d.cases
+    t = lambda v: format_value(v, "temperature", system)  # noqa: E731
+    q = lambda v: format_value(v, "power_per_length", system, digits=3, with_unit=False)  # noqa: E731
+    tc = lambda v: format_value(v, "temperature", system, with_unit=False)  # noqa: E731
+    Q, T = label("power_per_length", system), label("temperature", system)
+    worst = (f"air {t(cases.worst_air_temperature_K)}, wind {format_value(cases.worst_wind_speed_m_per_s, 'velocity', system, digits=3)}"
+             + (", no flow" if d.worst_no_flow else ", flowing"))
+    lines = [f"  Design cases: worst case {worst}; hot case still air {t(cases.hot_air_temperature_K)}, no flow, "
+             "heaters full on (the site's meteorological data and the owner's specification decide them)"]
+    if d.maintain_temperature_K is not None:
+        lines.append(f"  Maintain {t(d.maintain_temperature_K)} ({d.maintain_basis})"
+                     + (f"; freezing point {t(d.freezing_point_K)}" if d.freezing_point_K is not None else ""))
+    if d.worst_case_error:
+        lines.append(f"  Worst case (flowing) has no solution: {d.worst_case_error}")
+    hold = d.hold_time
+    by_index = {h.index: h for h in hold.segments} if hold is not None else {}
+    words = formatter(system)
+    header = ("#", "Segment", f"Loss op. [{Q}]", f"Loss worst [{Q}]", f"Sinks [{Q}]", "Heater", f"Delivers [{Q}]",
+              "Tracing need (worst case, margin included)", "Power off: to limit", "to freezing", f"Hot wall [{T}]")
+    rows = []
+    for s in d.segments:
+        span = result.segments[s.index] if s.index < len(result.segments) else None
+        h = by_index.get(s.index)
+        kind = s.heater_kind.replace("_", "-") if s.heater_kind != "none" else "none"
+        rows.append((
+            str(s.index + 1), s.name[:24],
+            q(span.heat_loss_W_per_m) if span is not None else "—",
+            q(s.heat_loss_W_per_m), q(s.heat_sinks_W_per_m), kind,
+            q(span.heater_output_W_per_m) if span is not None and s.heater_kind != "none" else "—",
+            d.tracing_words(s.index, words),
+            duration_text(h.to_limit_off_s) if h is not None else "—",
+            duration_text(h.to_freezing_off_s) if h is not None else "—",
+            tc(s.hot_wall_temperature_K),
+        ))
+    widths = [max(len(r[i]) for r in [header, *rows]) for i in range(len(header))]
+    for r in [header, *rows]:
+        lines.append("  " + "  ".join(c.ljust(w) for c, w in zip(r, widths)).rstrip())
+    lines.append("  Loss op.: operating, heat sinks included; loss worst and sinks: worst case at the maintain "
+                 "temperature, before the margin; the need adds the margin. Hot wall: the pipe under the heater; "
+                 "the heater's own sheath runs hotter (the maker's data and the hazardous-area standard decide).")
+    if hold is not None:
+        lines.extend(f"  Hold Time: {w}" for w in hold.warnings)
     return "\n".join(lines)
 
 

@@ -30,29 +30,53 @@ __all__ = ["write_report", "solve_alternatives", "select_alternatives", "unsolve
 
 
 def solve_alternatives(alternatives: Sequence[Alternative], results: Optional[Mapping[str, object]] = None,
-                       bands: Optional[Mapping[str, object]] = None) -> list[Outcome]:
+                       bands: Optional[Mapping[str, object]] = None, design=None) -> list[Outcome]:
     """Each alternative with its result: taken from ``results`` (name -> Result, or the exception
     its solve raised) when given there, solved here otherwise. A failed solve becomes a message
     printed in the report, not a crash. ``bands`` (name -> Bands of that same result) are used as
-    given; the report computes the rest."""
+    given; the report computes the rest. ``design``: the project's design cases, solved with each
+    alternative here (a given result without them gets them added, see :func:`_add_design`)."""
     from solver import solve
 
     outcomes = []
     for alt in alternatives:
         given = (results or {}).get(alt.name)
         if isinstance(given, Result):
-            outcomes.append(Outcome(alt, given, None, bands=(bands or {}).get(alt.name)))
+            outcome = Outcome(alt, given, None, bands=(bands or {}).get(alt.name))
+            if design is not None and given.design is None:
+                _add_design(outcome, design)
+            outcomes.append(outcome)
             continue
         if isinstance(given, BaseException):
             outcomes.append(Outcome(alt, None, str(given)))
             continue
         try:
-            outcomes.append(Outcome(alt, solve(alt), None))
+            outcomes.append(Outcome(alt, solve(alt, design=design), None))
         except CalorunError as exc:
-            outcomes.append(Outcome(alt, None, str(exc)))
+            outcome = Outcome(alt, None, str(exc))
+            if design is not None:  # the line may solve without its design cases: report it and say why
+                try:
+                    outcome = Outcome(alt, solve(alt), None, design_error=str(exc))
+                except CalorunError:
+                    pass
+            outcomes.append(outcome)
         except (ArithmeticError, ValueError, RuntimeError) as exc:  # a solver bug: say so in the PDF
             outcomes.append(Outcome(alt, None, unexpected_failure(exc)))
     return outcomes
+
+
+def _add_design(outcome: Outcome, design) -> None:
+    """Give a result handed in without design cases its design cases (a copy: the caller's result is
+    left as it was); a failure is said in the report's design section."""
+    import dataclasses
+
+    from solver import design_cases, solve
+
+    try:
+        outcome.result = dataclasses.replace(
+            outcome.result, design=design_cases.evaluate(outcome.alternative, outcome.result, design, solve=solve))
+    except CalorunError as exc:
+        outcome.design_error = str(exc)
 
 
 def select_alternatives(project: Project, names: Optional[Sequence[str]]) -> list[Alternative]:
@@ -100,7 +124,7 @@ def write_report(
 
         project = load_project(project)
     chosen = select_alternatives(project, alternatives)
-    outcomes = solve_alternatives(chosen, results, bands)
+    outcomes = solve_alternatives(chosen, results, bands, design=project.design_cases)
     if outcomes_out is not None:
         outcomes_out.extend(outcomes)
     body = build_html(project, outcomes, unit_system, date or _dt.date.today().isoformat(), bands_max_cells)

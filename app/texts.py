@@ -31,7 +31,7 @@ from solver.results import KeyFigure, Result
 
 __all__ = [
     "esc", "fmt", "num", "ulabel", "fluid_text", "fluid_source_text", "surroundings_text", "pipe_text",
-    "insulation_text", "fittings_text", "steam_tracer_text", "fouling_text", "CONTACT_WORDS", "method_entries", "key_figure_label_and_value",
+    "insulation_text", "fittings_text", "heater_text", "heat_sinks_text", "steam_tracer_text", "fouling_text", "CONTACT_WORDS", "method_entries", "key_figure_label_and_value",
     "shorten", "capped", "unexpected_failure", "SHORT_NAME_CHARS", "HEADING_NAME_CHARS", "FULL_TEXT_CAP_CHARS",
 ]
 
@@ -190,11 +190,45 @@ def insulation_text(seg: Segment, system: str) -> str:
     """Insulation layers from the pipe outwards, or ``'none'``."""
     if not seg.insulation:
         return "none"
+    def k_text(layer) -> str:
+        if layer.conductivity_W_per_mK is None:
+            return "k(T) from its material specification"
+        return f"k {fmt(layer.conductivity_W_per_mK, 'conductivity', system, digits=3)}"
+
     return "; ".join(
-        f"{fmt(layer.thickness_m, 'thickness', system)} {layer.material} "
-        f"(k {fmt(layer.conductivity_W_per_mK, 'conductivity', system, digits=3)})"
+        f"{fmt(layer.thickness_m, 'thickness', system)} {layer.material} ({k_text(layer)})"
         for layer in seg.insulation
     )
+
+
+def heater_text(seg: Segment, system: str) -> str:
+    """The segment's electric heater as the trade specifies it, or ``'none'``: "constant 25 W/m",
+    "self-limiting 40 W/m at 10 °C → 25 W/m at 65 °C", "thermostat 20 W/m, set point 5 °C"; per metre of
+    heater, with the runs and the spiral ratio when not one straight run."""
+    h = seg.heater
+    if h is None:
+        return "none"
+    q = lambda v: fmt(v, "power_per_length", system, digits=3)  # noqa: E731
+    t = lambda v: fmt(v, "temperature", system)  # noqa: E731
+    if h.kind == "self_limiting":
+        text = f"self-limiting {q(h.output_low_W_per_m)} at {t(h.temperature_low_K)} → {q(h.output_high_W_per_m)} at {t(h.temperature_high_K)}"
+    elif h.kind == "thermostat":
+        text = f"thermostat {q(h.output_W_per_m)}, set point {t(h.set_point_K)}"
+    else:
+        text = f"constant {q(h.output_W_per_m)}"
+    runs = []
+    if h.count != 1:
+        runs.append(f"{h.count} runs")
+    if h.heater_per_pipe_length != 1.0:
+        runs.append(f"{h.heater_per_pipe_length:g} m of heater per m of pipe")
+    return text + (f" ({', '.join(runs)})" if runs else "")
+
+
+def heat_sinks_text(seg: Segment) -> str:
+    """The segment's heat sinks with their counts ("4 × pipe support; 1 × valve"), or ``'none'``."""
+    if not seg.heat_sinks:
+        return "none"
+    return "; ".join(f"{h.count} × {h.label or h.kind.replace('_', ' ')}" for h in seg.heat_sinks)
 
 
 def fittings_text(seg: Segment) -> str:

@@ -7,8 +7,9 @@ from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
-from solver.model import (Alternative, Buried, Feed, Fitting, FixedWall, Layer, Limits, Pipe, Project, PureFluid,
-                          Segment, SolutionFluid, StillAir, TableFluid, TableRow, Targets, Wind)
+from solver.model import (Alternative, Buried, ConstantHeater, DesignCases, Feed, Fitting, FixedWall, HeatSink, Layer,
+                          Limits, Pipe, Project, PureFluid, Segment, SelfLimitingHeater, SolutionFluid, StillAir,
+                          TableFluid, TableRow, Targets, Wind)
 from solver.project_io import save_project
 from solver import solve
 
@@ -29,29 +30,43 @@ wool = lambda mm: Layer(material="mineral wool", thickness_m=mm / 1000, conducti
 foam = lambda mm: Layer(material="flexible elastomeric foam", thickness_m=mm / 1000, conductivity_W_per_mK=0.036)
 elbows = lambda n: Fitting(kind="elbow_90_standard", count=n)
 
-def traced(tracing, ins_mm):
+def sinks(supports=0, valves=0, flanges=0, instruments=0):
+    """Heat sinks of a segment (catalogue equivalent lengths, solver.heat_sinks); invented counts."""
+    out = []
+    for kind, n in (("pipe_support", supports), ("valve", valves), ("flange_pair", flanges), ("instrument", instruments)):
+        if n:
+            out.append(HeatSink(kind=kind, count=n))
+    return out
+
+def traced(heater, ins_mm):
+    """The residue line's five segments with ``heater`` (None: untraced) on every one."""
     return [
         Segment(name="Tank outlet", length_m=12, pipe=Pipe(nps="2", schedule="40"), insulation=[wool(ins_mm)],
                 fittings=[Fitting(kind="pipe_entrance_sharp"), Fitting(kind="gate_valve_full", count=1), elbows(2)],
-                heat_input_W_per_m=tracing, surroundings=StillAir(temperature_K=C(15))),
+                heater=heater, surroundings=StillAir(temperature_K=C(15))),
         Segment(name="Pipe rack east", length_m=85, pipe=Pipe(nps="2", schedule="40"), insulation=[wool(ins_mm)],
-                heat_input_W_per_m=tracing, fittings=[elbows(4)], elevation_change_m=6.0,
+                heater=heater, fittings=[elbows(4)], elevation_change_m=6.0,
                 surroundings=Wind(temperature_K=C(-5), wind_speed_m_per_s=6.0)),
         Segment(name="Road crossing", length_m=18, pipe=Pipe(nps="2", schedule="40"), insulation=[wool(ins_mm)],
-                heat_input_W_per_m=tracing, elevation_change_m=-7.0, fittings=[elbows(2)],
+                heater=heater, elevation_change_m=-7.0, fittings=[elbows(2)],
                 surroundings=Buried(soil_temperature_K=C(4), depth_m=1.2, soil_conductivity_W_per_mK=1.4)),
         Segment(name="Pipe rack west", length_m=60, pipe=Pipe(nps="2", schedule="40"), insulation=[wool(ins_mm)],
-                heat_input_W_per_m=tracing, elevation_change_m=3.0, fittings=[elbows(3)],
+                heater=heater, elevation_change_m=3.0, fittings=[elbows(3)],
                 surroundings=Wind(temperature_K=C(-5), wind_speed_m_per_s=6.0)),
         Segment(name="Unit feed", length_m=10, pipe=Pipe(nps="2", schedule="40"), insulation=[wool(ins_mm)],
-                heat_input_W_per_m=tracing, fittings=[Fitting(kind="globe_valve"), elbows(2)],
+                heater=heater, fittings=[Fitting(kind="globe_valve"), elbows(2)],
                 surroundings=StillAir(temperature_K=C(18))),
     ]
 
-def resin_alt(name, tracing, ins, desc):
+# Invented demo rating of a self-limiting heater (not any maker's product): per metre of heater,
+# 40 W/m with the pipe at 10 °C falling to 25 W/m at 65 °C (straight line, zero output near 157 °C).
+DEMO_SELF_LIMITING = SelfLimitingHeater(output_low_W_per_m=40.0, temperature_low_K=C(10),
+                                        output_high_W_per_m=25.0, temperature_high_K=C(65))
+
+def resin_alt(name, heater, ins, desc):
     return Alternative(name=name, description=desc, fluid=oil(),
         feed=Feed(inlet_temperature_K=C(75), inlet_pressure_Pa=bar(6), mass_flow_kg_per_s=0.40),
-        segments=traced(tracing, ins),
+        segments=traced(heater, ins),
         limits=Limits(max_inner_wall_temperature_K=C(110), min_bulk_temperature_K=C(55)))
 
 projects = {}
@@ -63,12 +78,18 @@ projects["traced_residue_line"] = Project(
                 "wall below 110 °C (product degradation).",
     prepared_by="Process engineering (demo)", revision="A",
     alternatives=[
-        resin_alt("Trace 25 W/m, 50 mm wool", 25.0, 50, "Self-regulating tracing, 25 W/m, 50 mm mineral wool."),
-        resin_alt("Trace 15 W/m, 80 mm wool", 15.0, 80, "Less tracing power, thicker insulation."),
-        resin_alt("No tracing, 80 mm wool", 0.0, 80, "Insulation only: shows how far the product cools without tracing."),
+        resin_alt("Trace 25 W/m, 50 mm wool", DEMO_SELF_LIMITING, 50,
+                  "Self-limiting tracing, invented demo rating: 40 W/m at 10 °C falling to 25 W/m at 65 °C (per metre "
+                  "of heater, straight between), one run; 50 mm mineral wool."),
+        resin_alt("Trace 15 W/m, 80 mm wool", ConstantHeater(output_W_per_m=15.0), 80,
+                  "Constant-output tracing, 15 W/m; thicker insulation."),
+        resin_alt("No tracing, 80 mm wool", None, 80, "Insulation only: shows how far the product cools without tracing."),
     ],
     targets=Targets(outlet_temperature_min_K=C(60), max_inner_wall_temperature_K=C(110),
                     max_pressure_drop_Pa=bar(3.0), max_heat_input_W=6000.0),
+    # placeholders for the demo: the site's meteorological data and the owner's specification decide
+    design_cases=DesignCases(worst_air_temperature_K=C(-20), worst_wind_speed_m_per_s=10.0, worst_no_flow=True,
+                             hot_air_temperature_K=C(35), design_margin=0.2),
 )
 
 def glycol_alt(name, mm, desc):
@@ -154,13 +175,65 @@ projects["nitrogen_header_outdoors"] = Project(
     targets=Targets(max_pressure_drop_Pa=bar(0.8), outlet_temperature_min_K=C(0)),
 )
 
+# Invented demo rating of a small freeze-protection self-limiting heater (not any maker's product): per metre
+# of heater, 12 W/m with the pipe at 10 °C falling to 5 W/m at 65 °C.
+FREEZE_HEATER = SelfLimitingHeater(output_low_W_per_m=12.0, temperature_low_K=C(10),
+                                   output_high_W_per_m=5.0, temperature_high_K=C(65))
+
+def makeup_alt(name, heater, mm, desc):
+    """Cooling-tower make-up water, NPS 1, outdoors; mineral wool with its catalogue k(T) (no constant k)."""
+    ins = [Layer(material="mineral wool", thickness_m=mm / 1000)]
+    pipe = Pipe(nps="1", schedule="40")
+    return Alternative(name=name, description=desc, fluid=PureFluid(name="Water"),
+        feed=Feed(inlet_temperature_K=C(12), inlet_pressure_Pa=bar(4.0), mass_flow_kg_per_s=0.35),
+        segments=[
+            Segment(name="Pump house wall", length_m=6, pipe=pipe, insulation=ins, heater=heater,
+                    fittings=[Fitting(kind="gate_valve_full"), elbows(2)],
+                    heat_sinks=sinks(supports=2, valves=1, flanges=2),
+                    surroundings=StillAir(temperature_K=C(8))),
+            Segment(name="Yard rack to tower", length_m=64, pipe=pipe, insulation=ins, heater=heater,
+                    fittings=[elbows(4)], heat_sinks=sinks(supports=22, flanges=2),
+                    surroundings=Wind(temperature_K=C(2), wind_speed_m_per_s=5.0)),
+            Segment(name="Tower make-up riser", length_m=9, pipe=pipe, insulation=ins, heater=heater,
+                    elevation_change_m=8.0, fittings=[elbows(2), Fitting(kind="globe_valve")],
+                    heat_sinks=sinks(supports=3, valves=2, flanges=2, instruments=1),
+                    surroundings=Wind(temperature_K=C(2), wind_speed_m_per_s=5.0)),
+        ],
+        limits=Limits())  # freeze protection: the tracing holds the freezing point + 5 K (common practice)
+projects["makeup_water_freeze_protection"] = Project(
+    name="Fernbrook Works — cooling-tower make-up water, freeze protection",
+    description="Invented demo scenario: a small-bore make-up water line runs outdoors from the pump house along the "
+                "yard rack to cooling tower CT-2. It stands still for hours when the tower basin is full. Does the "
+                "tracing hold it above freezing on the coldest, windiest night, and how long does it stay above "
+                "freezing after a power failure? Valves, flanges and pipe supports lose heat as heat sinks.",
+    prepared_by="Utilities engineering (demo)", revision="A",
+    alternatives=[
+        makeup_alt("Self-limiting, 40 mm wool", FREEZE_HEATER, 40,
+                   "Self-limiting freeze-protection heater, invented demo rating: 12 W/m at 10 °C falling to 5 W/m at "
+                   "65 °C, one straight run; 40 mm mineral wool, k(T) from the catalogue."),
+        makeup_alt("Self-limiting, 25 mm wool", FREEZE_HEATER, 25,
+                   "The same heater under thinner insulation: does it still hold with the design margin?"),
+        makeup_alt("No tracing, 40 mm wool", None, 40,
+                   "Insulation only: how long until it freezes once the flow stops?"),
+    ],
+    # a cold, windy site (placeholders: the site's meteorological data and the owner's specification decide)
+    design_cases=DesignCases(worst_air_temperature_K=C(-25), worst_wind_speed_m_per_s=10.0, worst_no_flow=True,
+                             hot_air_temperature_K=C(35), design_margin=0.2),
+)
+
 for key, proj in projects.items():
     for alt in proj.alternatives:
-        r = solve(alt)
+        r = solve(alt, design=proj.design_cases)
         print(f"{key} / {alt.name}: Tout {r.outlet_temperature_K-273.15:.2f} C dp {r.pressure_drop_Pa/1e5:.3f} bar "
               f"Q {r.duty_W:.0f} W in {r.heat_input_W:.0f} loss {r.heat_loss_W:.0f} Twmax {r.max_inner_wall_temperature_K-273.15:.1f} "
               f"Ts {r.max_outer_surface_temperature_K-273.15:.1f} Re {r.reynolds_range[0]:.0f}-{r.reynolds_range[1]:.0f} v {r.velocity_range_m_per_s[1]:.2f}")
         for c in r.checks:
             print("    ", c.severity, c.code, c.message[:150], c.segment, round(c.x_m or 0, 1))
+        hold = r.design.hold_time
+        for i, seg in enumerate(r.design.segments):
+            h = next((x for x in hold.segments if x.index == i), None) if hold is not None else None
+            off = "—" if h is None or h.to_freezing_off_s is None else f"{h.to_freezing_off_s / 3600:.1f} h"
+            print(f"     design {seg.name}: {r.design.tracing_words(i)}; hot wall "
+                  f"{seg.hot_wall_temperature_K - 273.15:.1f} C; to freezing (power off) {off}")
     save_project(proj, ROOT / "sample_projects" / f"{key}.json")
 save_project(projects["traced_residue_line"], ROOT / "app" / "demo_project.json")

@@ -337,3 +337,85 @@ def test_schema_does_not_import_qt():
                           capture_output=True, text=True, timeout=60)
     assert proc.returncode == 0, proc.stderr
     assert "NO-QT-OK" in proc.stdout
+
+
+# --------------------------------------------------------------------------- design cases (issue 10 item 7)
+
+
+#: Design figures that are plain numbers (a fraction, a ratio, a Biot number) and carry no unit suffix.
+DIMENSIONLESS_DESIGN_KEYS = {"index", "design_margin", "worst_thermostat_duty", "biot_number"}
+UNIT_SUFFIXES = ("_K", "_W_per_m", "_s", "_m_per_s", "_J_per_kg", "_J_per_mK", "_J_per_m", "_K_m_per_W")
+
+
+def _numeric_keys(obj, path=""):
+    if isinstance(obj, dict):
+        for k, v in obj.items():
+            if isinstance(v, (int, float)) and not isinstance(v, bool):
+                yield k, f"{path}.{k}"
+            elif isinstance(v, (dict, list)):
+                yield from _numeric_keys(v, f"{path}.{k}")
+    elif isinstance(obj, list):
+        for i, v in enumerate(obj):
+            yield from _numeric_keys(v, f"{path}[{i}]")
+
+
+def test_solve_json_has_the_design_cases_with_units_in_the_key_names(solved_json, project_file):
+    from solver import solve
+    from solver.project_io import load_project
+
+    project = load_project(project_file)
+    for alt, out in zip(project.alternatives, solved_json["alternatives"]):
+        design = out["design"]
+        # every number says its unit in its key name (DESIGN.md: units at the edges), or is a plain number
+        for key, where in _numeric_keys(design):
+            assert key.endswith(UNIT_SUFFIXES) or key in DIMENSIONLESS_DESIGN_KEYS, where
+        assert {"worst_air_temperature_K", "worst_wind_speed_m_per_s", "hot_air_temperature_K", "maintain_temperature_K",
+                "hot_wall_temperature_K", "segments", "hold_time"} <= set(design)
+        seg_keys = {"heat_loss_W_per_m", "heat_sinks_W_per_m", "required_output_W_per_m", "available_output_W_per_m",
+                    "hot_wall_temperature_K", "holds", "heater_kind"}
+        assert all(seg_keys <= set(s) for s in design["segments"])
+        assert all({"to_limit_off_s", "to_freezing_off_s", "frozen_solid_off_s", "warm_up_s"} <= set(s)
+                   for s in design["hold_time"]["segments"])
+        # the numbers round-trip: the same as the library's DesignResult for the same project
+        r = solve(alt, design=project.design_cases)
+        expected = json.loads(json.dumps(r.design.to_dict()))
+        assert design == expected
+    # the defaults of the design cases (solver.model.DesignCases) reach the output
+    assert solved_json["alternatives"][0]["design"]["worst_air_temperature_K"] == pytest.approx(253.15)
+    # an untraced segment standing still has no heat to hold it: it settles at the air (closed form,
+    # T = T∞ + q' R' with q' = 0), in the hot case at the hot air temperature
+    yard = solved_json["alternatives"][0]["design"]["segments"][1]
+    assert yard["heater_kind"] == "none"
+    assert yard["hot_wall_temperature_K"] == pytest.approx(solved_json["alternatives"][0]["design"]["hot_air_temperature_K"],
+                                                           abs=1e-6)
+    # the syrup has no freezing point and the project no maintain or minimum temperature: not assessed
+    assert yard["holds"] is None and solved_json["alternatives"][0]["design"]["maintain_temperature_K"] is None
+    # JSON proper: no NaN or Infinity anywhere (json.loads accepts them unless told not to)
+    proc = run_cli("solve", str(project_file), "--json")
+    json.loads(proc.stdout, parse_constant=lambda c: pytest.fail(f"non-JSON constant {c} in the output"))
+
+
+def test_solve_table_has_the_design_per_segment():
+    # the invented freeze-protection sample: traced segments hold, the untraced alternative does not
+    proc = run_cli("solve", str(ROOT / "sample_projects" / "makeup_water_freeze_protection.json"))
+    assert proc.returncode == 0, proc.stderr
+    out = proc.stdout
+    assert out.count("Design cases: worst case air −25.0 °C, wind 10.0 m/s, no flow") == 3
+    assert "meteorological data" in out
+    blocks = out.split("== ")[1:]
+    traced, bare = blocks[0], blocks[2]
+    for block, verdict in ((traced, ": OK"), (bare, ": does not hold")):
+        rows = [line for line in block.splitlines() if line.strip()[:2] in ("1 ", "2 ", "3 ")]
+        assert len(rows) == 3 and all(verdict in row for row in rows), block
+    assert "self-limiting" in traced and "Hot wall [°C]" in traced
+
+
+def test_a_failed_alternative_still_exits_1_with_design_cases(tmp_path):
+    # the exit codes stay as they were: 1 when an alternative cannot be solved, the rest still printed
+    bad = two_alternative_project()
+    bad.alternatives[1].feed.inlet_temperature_K = 500.0  # water at 227 °C and 4 bar(a) boils at the inlet
+    path = save_project(bad, tmp_path / "bad.json")
+    proc = run_cli("solve", str(path), "--json")
+    assert proc.returncode == 1
+    data = json.loads(proc.stdout)
+    assert "design" in data["alternatives"][0] and "error" in data["alternatives"][1]

@@ -92,7 +92,8 @@ def _sample_project() -> Project:
 def sample(tmp_path_factory):
     project = _sample_project()
     path = write_report(project, tmp_path_factory.mktemp("rep") / "summary.pdf", "SI", date="2026-12-01")
-    results = {a.name: solve(a) for a in project.alternatives}
+    # as the report solves them: with the project's design cases (their checks count in the verdict)
+    results = {a.name: solve(a, design=project.design_cases) for a in project.alternatives}
     return project, path, _pages(path), results
 
 

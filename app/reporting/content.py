@@ -16,6 +16,7 @@ from typing import Optional, Sequence
 
 from app import comparison, heat_path, heat_path_style, units
 from app.reporting.chart import alternative_chart, overlay_chart
+from app.reporting.design import design_section, property_table
 from app.reporting.pdf import Body
 from app.style import (
     ACCENT,
@@ -38,6 +39,7 @@ from app.texts import (
     fluid_source_text,
     fluid_text,
     fmt,
+    heater_text,
     insulation_text,
     key_figure_label_and_value,
     method_entries,
@@ -99,6 +101,7 @@ class Outcome:
     error: Optional[str]
     bands: Optional[Bands] = None
     bands_error: str = ""
+    design_error: str = ""  # why the design cases could not be evaluated (the line itself solved)
 
 
 def add_bands(outcomes: Sequence[Outcome], max_cells: Optional[int] = BANDS_MAX_CELLS) -> None:
@@ -309,6 +312,9 @@ def _alternative_section(doc: Body, project: Project, o: Outcome, system: str, b
                  '<span class="met">\u2713 met</span>' if v.met else '<span class="missed">\u2717 missed</span>']
                 for v in verdicts]
         doc.table(["Target", "Limit", "Value", "Verdict"], rows, num_cols=(2,), widths=[40, 20, 20, 20])
+    long_line = len(alt.segments) > FULL_TABLE_SEGMENTS
+    design_section(doc, alt, r, system, o.design_error,
+                   [g.indices[0] for g in design_groups(alt) if g.design is not None] if long_line else None)
 
 
 def _feed_and_segments(doc: Body, alt: Alternative, r: Optional[Result], system: str) -> None:
@@ -330,12 +336,13 @@ def _feed_and_segments(doc: Body, alt: Alternative, r: Optional[Result], system:
         rows.append(["Minimum bulk temperature", esc(fmt(alt.limits.min_bulk_temperature_K, "temperature", system))])
     doc.heading(3, "Feed")
     doc.table(["Feed", ""], rows, widths=[28, 72])
+    property_table(doc, alt, system)
 
     doc.heading(3, "Segments (in flow order)")
     if len(alt.segments) > FULL_TABLE_SEGMENTS:
         _segment_designs(doc, alt, r, system)
         return
-    L, D, P = ulabel("length", system), ulabel("diameter", system), ulabel("power_per_length", system)
+    L, D = ulabel("length", system), ulabel("diameter", system)
     seg_rows = []
     for i, s in enumerate(alt.segments):
         span = r.segments[i] if r is not None and i < len(r.segments) else None
@@ -348,13 +355,13 @@ def _feed_and_segments(doc: Body, alt: Alternative, r: Optional[Result], system:
         seg_rows.append([
             str(i + 1), esc(shorten(s.name)), esc(num(s.length_m, "length", system)), bore,
             esc(num(s.elevation_change_m, "elevation", system)) if s.elevation_change_m else "0",
-            fit, esc(num(s.heat_input_W_per_m, "power_per_length", system)) if s.heat_input_W_per_m else "—",
+            fit, esc(heater_text(s, system)) if s.heater is not None else "—",
             esc(insulation_text(s, system)), esc(surroundings_text(s.surroundings, system)),
         ])
     doc.table(
-        ["#", "Name", f"Length [{L}]", "Pipe", f"Rise [{ulabel('elevation', system)}]", "Fittings", f"Heat input [{P}]",
+        ["#", "Name", f"Length [{L}]", "Pipe", f"Rise [{ulabel('elevation', system)}]", "Fittings", "Heater",
          "Insulation", "Surroundings"],
-        seg_rows, num_cols=(0, 2, 4, 6), widths=[3, 11, 7, 15, 6, 14, 8, 16, 20], font_pt=7.0,
+        seg_rows, num_cols=(0, 2, 4), widths=[3, 11, 7, 14, 6, 13, 11, 16, 19], font_pt=7.0,
     )
     _full_names(doc, alt)
 
@@ -425,7 +432,7 @@ def _group_head(alt: Alternative, g: DesignGroup) -> tuple[str, str]:
 def _segment_designs(doc: Body, alt: Alternative, r: Optional[Result], system: str) -> None:
     """The segments of a long line, one row per design."""
     groups = design_groups(alt)
-    L, D, P = ulabel("length", system), ulabel("diameter", system), ulabel("power_per_length", system)
+    L, D = ulabel("length", system), ulabel("diameter", system)
     rows = []
     for g in groups:
         count, name = _group_head(alt, g)
@@ -449,7 +456,7 @@ def _segment_designs(doc: Body, alt: Alternative, r: Optional[Result], system: s
         rows.append([
             count, name, length, bore,
             esc(num(s.elevation_change_m, "elevation", system)) if s.elevation_change_m else "0",
-            fit, esc(num(s.heat_input_W_per_m, "power_per_length", system)) if s.heat_input_W_per_m else "—",
+            fit, esc(heater_text(s, system)) if s.heater is not None else "—",
             esc(insulation_text(s, system)), esc(surroundings_text(s.surroundings, system)),
         ])
     doc.add(f'<p class="small muted">A long line: {esc(comparison.plural(len(alt.segments), "segment"))} in '
@@ -460,8 +467,8 @@ def _segment_designs(doc: Body, alt: Alternative, r: Optional[Result], system: s
             'lists every segment.</p>')
     doc.table(
         ["Segments", "Name", f"Length [{L}]", "Pipe", f"Rise each [{ulabel('elevation', system)}]", "Fittings each",
-         f"Heat input [{P}]", "Insulation", "Surroundings"],
-        rows, num_cols=(2, 4, 6), widths=[10, 11, 8, 14, 6, 13, 7, 14, 17], font_pt=7.0,
+         "Heater", "Insulation", "Surroundings"],
+        rows, num_cols=(2, 4), widths=[10, 11, 8, 13, 6, 12, 10, 14, 16], font_pt=7.0,
     )
     _full_names(doc, alt)
 
@@ -652,6 +659,9 @@ def _checks(doc: Body, alt: Alternative, r: Result, system: str) -> None:
         return
     rows = []
     ordered = sorted(r.checks, key=check_sort_key)
+    # a message that quotes a segment's name gets the name as the tables show it (a long name is printed
+    # in full once, under the Segments table)
+    long_names = sorted({seg.name for seg in alt.segments if shorten(seg.name) != seg.name}, key=len, reverse=True)
     for c in ordered[:MAX_CHECK_ROWS]:
         word, colour = SEVERITY_WORDS.get(c.severity, (c.severity.upper(), INK))
         where = []
@@ -660,7 +670,7 @@ def _checks(doc: Body, alt: Alternative, r: Result, system: str) -> None:
         if c.x_m is not None and math.isfinite(c.x_m):
             where.append(esc(fmt(c.x_m, "length", system)))
         rows.append([f'<span style="color: {colour}; font-weight: bold;">{word}</span>',
-                     " at ".join(where) or "whole line", esc(units.check_message(c, system))])
+                     " at ".join(where) or "whole line", esc(_short_names(units.check_message(c, system), long_names))])
     doc.table(["Severity", "Where", "Finding"], rows, widths=[11, 20, 69], font_pt=7.5)
     if len(ordered) > MAX_CHECK_ROWS:
         rest = ordered[MAX_CHECK_ROWS:]
@@ -670,6 +680,13 @@ def _checks(doc: Body, alt: Alternative, r: Result, system: str) -> None:
         said = ", ".join(comparison.plural(n, sev, sev if sev == "info" else "") for sev, n in counts.items())
         doc.add(f'<p class="small muted">… and {esc(comparison.plural(len(rest), "more finding"))} ({esc(said)}), none '
                 'worse than the last shown; <code>calorun solve</code> lists them all.</p>')
+
+
+def _short_names(text: str, long_names: Sequence[str]) -> str:
+    for name in long_names:
+        if name in text:
+            text = text.replace(name, shorten(name))
+    return text
 
 
 def _methods_and_cautions(doc: Body, solved: Sequence[Result], date_text: str) -> None:

@@ -146,6 +146,8 @@ class Body:
                 body.append(f"<h{part.level}{attr}>{part.html}</h{part.level}>")
             elif part.raw is not None:
                 self.table_map.append((part, 0))
+                if 0 in part.splits:  # find_break moved the box to the next page
+                    body.append('<p style="page-break-before: always; margin: 0px;"></p>')
                 body.append(part.raw)
             else:
                 cuts = [0] + sorted(s for s in part.splits if 0 < s < len(part.rows)) + [len(part.rows)]
@@ -208,6 +210,11 @@ def find_break(doc, page_h: float, body: Body) -> bool:
                 last_table = table.firstPosition()
                 table_index += 1
                 part, first_row = body.table_map[table_index]
+                if part.raw is not None and 0 not in part.splits:
+                    # a box (a caution, a note) is read whole: one that straddles a page boundary starts the next
+                    if any(straddles(*row_span(table, row)) for row in range(table.rows())):
+                        part.splits.add(0)
+                        return True
                 if part.raw is None:
                     header_rows = table.format().headerRowCount()
                     for row in range(header_rows, table.rows()):
