@@ -525,7 +525,7 @@ def hold_time(alt, operating, path, heaters, fluid, t_limit: Optional[float], t_
     out_curves["on"][:, segs] = curves[:, n:2 * n]
     out_curves["warm"][:, segs[warm]] = curves[:, 2 * n:]
 
-    records, warnings = [], []
+    records, warnings, high_biot = [], [], []
     plateau_applies = t_freeze is not None and L_f is not None
     for j, i in enumerate(segs):
         name = alt.segments[i].name
@@ -544,11 +544,16 @@ def hold_time(alt, operating, path, heaters, fluid, t_limit: Optional[float], t_
             warm_up_s=float(warm_time[j]) if (exposed and bool(heated[j]) and t_limit is not None) else None,
         ))
         if biot[j] > BIOT_LIMIT:
-            warnings.append(
-                f"segment {i + 1} {name!r}: Biot number {biot[j]:.2f}, above {BIOT_LIMIT}: the standing fluid's own "
-                "conduction resistance is not small against the outside path, so its core stays warmer than the "
-                "wall and ice or a cold layer forms at the wall before the lumped temperature gets there; the "
-                "lumped times are optimistic for the wall (lumped capacitance: Bi < 0.1, Incropera & DeWitt §5.2).")
+            high_biot.append(f"{i + 1} {name!r} ({biot[j]:.2f})")
+    if high_biot:
+        # one sentence for all such segments: the reason is the same for each
+        named = ", ".join(high_biot[:6]) + (f" and {len(high_biot) - 6} more" if len(high_biot) > 6 else "")
+        warnings.append(
+            f"Biot number above {BIOT_LIMIT} in segment{'s' if len(high_biot) > 1 else ''} {named}: the "
+            "standing fluid's own conduction resistance is not small against the outside path, so its core stays "
+            "warmer than the wall and ice or a cold layer forms at the wall before the lumped temperature gets "
+            "there; the lumped times are optimistic for the wall (lumped capacitance: Bi < 0.1, Incropera & DeWitt "
+            "§5.2).")
     return HoldTime(limit_temperature_K=t_limit, freezing_point_K=t_freeze,
                     latent_heat_J_per_kg=L_f if t_freeze is not None else None, latent_heat_source=L_source,
                     time_s=times, bulk_off_K=out_curves["off"], bulk_on_K=out_curves["on"],
