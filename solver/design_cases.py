@@ -65,7 +65,7 @@ def case_alternative(alt: Alternative, cases: DesignCases, case: str) -> Alterna
     for seg in alt.segments:
         sur = seg.surroundings
         new = sur
-        if isinstance(sur, (StillAir, Wind)):
+        if isinstance(sur, (StillAir, Wind)) and not getattr(sur, "indoors", False):  # indoor air: as entered
             if case == "worst":
                 new = Wind(temperature_K=cases.worst_air_temperature_K, wind_speed_m_per_s=cases.worst_wind_speed_m_per_s,
                            emissivity=sur.emissivity)
@@ -436,6 +436,10 @@ class DesignResult:
         if s.holds is None:
             return "not assessed: no maintain temperature (set one, a minimum bulk temperature, or a freezing fluid)"
         has = fmt("q", s.available_output_W_per_m) if s.available_output_W_per_m > 0 else "no heating"
+        if s.required_output_W_per_m <= 0.0:
+            # surroundings at or above the maintain temperature (indoors, say): nothing to make up
+            return (f"needs no heating to hold {fmt('T', s.maintain_temperature_K)} (its surroundings, "
+                    f"{fmt('T', s.worst_surroundings_temperature_K)}, are warmer): OK")
         verdict = "OK" if s.holds else "does not hold"
         return (f"needs {fmt('q', s.required_output_W_per_m)} at {fmt('T', s.maintain_temperature_K)}; "
                 f"has {has}: {verdict}")
@@ -611,6 +615,10 @@ def design_checks(alt: Alternative, design: DesignResult, operating) -> list:
     short = [sd for sd in design.segments if sd.holds is False]
     if short and design.maintain_temperature_K is not None:
         worst = max(short, key=lambda sd: sd.required_output_W_per_m - sd.available_output_W_per_m)
+        sur = alt.segments[worst.index].surroundings
+        if getattr(sur, "indoors", False):
+            where_case = (f"the worst case (indoors: the building's air as entered, {_T(sur.temperature_K)}"
+                          f"{', no flow' if design.worst_no_flow else ''})")
         guards_freezing = design.freezing_point_K is not None and \
             design.maintain_temperature_K <= design.freezing_point_K + 5.0 + 1e-9
         others = f" {len(short) - 1} more segment(s) fall short too." if len(short) > 1 else ""

@@ -485,6 +485,9 @@ class StillAir(_Model):
     kind: Literal["still_air"] = "still_air"
     temperature_K: AirTemperature = 293.15
     emissivity: Emissivity = 0.9
+    indoors: bool = Field(
+        False, description="inside a building: the project's design cases leave this air as entered (the "
+                           "building's heating or cooling decides it, not the outdoor design ambient)")
     relative_humidity: Optional[Fraction] = Field(
         None, description="0–1; when given, cold surfaces are checked against the dew point"
     )

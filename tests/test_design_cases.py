@@ -202,3 +202,40 @@ def test_hot_case_wall_above_the_limit_is_a_check():
     high = solve(_line(t_soil, heater=ConstantHeater(output_W_per_m=q),
                        limits=Limits(max_inner_wall_temperature_K=t_hot + 2.0)), design=DesignCases())
     assert not _codes(high, "HOT_CASE_WALL")
+
+
+def test_indoor_air_keeps_its_temperature_in_the_design_cases():
+    # a run inside a heated building does not see the outdoor design ambient (common practice: indoor lines
+    # are designed for the building's own minimum); the outdoor run beside it does
+    hall = Segment(name="Hall", length_m=20.0, pipe=Pipe(nps="2", schedule="40"),
+                   insulation=[Layer(thickness_m=0.025, conductivity_W_per_mK=0.04)],
+                   surroundings=StillAir(temperature_K=288.15, indoors=True))
+    yard = hall.model_copy(update={"name": "Yard", "surroundings": StillAir(temperature_K=288.15)})
+    alt = Alternative(name="Hall and yard", fluid=PureFluid(name="Water"),
+                      feed=Feed(inlet_temperature_K=293.15, inlet_pressure_Pa=3e5, mass_flow_kg_per_s=0.5),
+                      segments=[hall, yard])
+    cases = DesignCases(worst_air_temperature_K=248.15, hot_air_temperature_K=313.15)
+    result = solve(alt, design=cases)
+    inside, outside = result.design.segments
+    assert inside.worst_surroundings_temperature_K == pytest.approx(288.15)
+    assert outside.worst_surroundings_temperature_K == pytest.approx(248.15)
+    # untraced, standing still: each settles at its own air (closed form: no heat input), 15 °C and -25 °C
+    assert inside.worst_temperature_K == pytest.approx(288.15, abs=1e-6)
+    assert outside.worst_temperature_K == pytest.approx(248.15, abs=1e-6)
+    assert inside.hot_wall_temperature_K == pytest.approx(288.15, abs=1e-6)
+    assert inside.holds is True and outside.holds is False  # freeze protection: 5 °C held indoors only
+    [check] = [c for c in result.checks if c.code == "DESIGN_NOT_HELD"]
+    assert "'Yard'" in check.message and "'Hall'" not in check.message
+
+
+def test_a_segment_in_warmer_air_needs_no_heating_in_words():
+    # indoors at 15 °C, freeze protection holds 5 °C with nothing: the words say so instead of a negative need
+    hall = Segment(name="Hall", length_m=20.0, pipe=Pipe(nps="2", schedule="40"),
+                   surroundings=StillAir(temperature_K=288.15, indoors=True))
+    alt = Alternative(name="Hall", fluid=PureFluid(name="Water"),
+                      feed=Feed(inlet_temperature_K=293.15, inlet_pressure_Pa=3e5, mass_flow_kg_per_s=0.5),
+                      segments=[hall])
+    design = solve(alt, design=DesignCases()).design
+    words = design.tracing_words(0)
+    assert words.startswith("needs no heating to hold 5.0 °C") and "15.0 °C" in words and words.endswith("OK")
+    assert "-" not in words.split("hold")[1]
