@@ -63,6 +63,7 @@ FIELDS: dict[str, FieldInfo] = {
     "temperature_K": FieldInfo("Air temperature", "temperature"),
     "emissivity": FieldInfo("Surface emissivity", "dimensionless"),
     "relative_humidity": FieldInfo("Relative humidity", "fraction"),
+    "indoors": FieldInfo("Indoors"),
     "film_coefficient_W_per_m2K": FieldInfo("Film coefficient", "film_coefficient"),
     "wind_speed_m_per_s": FieldInfo("Wind speed", "speed"),
     "soil_temperature_K": FieldInfo("Soil temperature", "temperature"),

@@ -55,7 +55,7 @@ def traced(heater, ins_mm):
                 surroundings=Wind(temperature_K=C(-5), wind_speed_m_per_s=6.0)),
         Segment(name="Unit feed", length_m=10, pipe=Pipe(nps="2", schedule="40"), insulation=[wool(ins_mm)],
                 heater=heater, fittings=[Fitting(kind="globe_valve"), elbows(2)],
-                surroundings=StillAir(temperature_K=C(18))),
+                surroundings=StillAir(indoors=True, temperature_K=C(18))),
     ]
 
 # Invented demo rating of a self-limiting heater (not any maker's product): per metre of heater,
@@ -98,13 +98,13 @@ def glycol_alt(name, mm, desc):
         segments=[
             Segment(name="Plant room riser", length_m=14, pipe=Pipe(nps="3", schedule="40"), elevation_change_m=8.0,
                     insulation=[foam(mm)], fittings=[elbows(3), Fitting(kind="ball_valve")],
-                    surroundings=StillAir(temperature_K=C(30), emissivity=0.9, relative_humidity=0.80)),
+                    surroundings=StillAir(indoors=True, temperature_K=C(30), emissivity=0.9, relative_humidity=0.80)),
             Segment(name="Packing hall high level", length_m=120, pipe=Pipe(nps="3", schedule="40"),
                     insulation=[foam(mm)], fittings=[elbows(6), Fitting(kind="tee_through_run", count=4)],
-                    surroundings=StillAir(temperature_K=C(32), emissivity=0.9, relative_humidity=0.80)),
+                    surroundings=StillAir(indoors=True, temperature_K=C(32), emissivity=0.9, relative_humidity=0.80)),
             Segment(name="Drop to chiller", length_m=16, pipe=Pipe(nps="3", schedule="40"), elevation_change_m=-8.0,
                     insulation=[foam(mm)], fittings=[elbows(3), Fitting(kind="check_valve_swing")],
-                    surroundings=StillAir(temperature_K=C(26), emissivity=0.9, relative_humidity=0.80)),
+                    surroundings=StillAir(indoors=True, temperature_K=C(26), emissivity=0.9, relative_humidity=0.80)),
         ],
         limits=Limits())
 projects["glycol_return"] = Project(
@@ -124,7 +124,7 @@ def jacket_alt(name, desc, inside_fouling=0.0, steam_fouling=0.0):
         feed=Feed(inlet_temperature_K=C(15), inlet_pressure_Pa=bar(6.0), mass_flow_kg_per_s=2.2),
         segments=[
             Segment(name="Feed from header", length_m=6, pipe=Pipe(nps="2", schedule="40"), insulation=[wool(40)],
-                    fittings=[Fitting(kind="gate_valve_full"), elbows(1)], surroundings=StillAir(temperature_K=C(20))),
+                    fittings=[Fitting(kind="gate_valve_full"), elbows(1)], surroundings=StillAir(indoors=True, temperature_K=C(20))),
             Segment(name="Steam jacket", length_m=14, pipe=Pipe(nps="2", schedule="40", material="stainless steel"),
                     inside_fouling_m2K_per_W=inside_fouling,
                     surroundings=FixedWall(wall_temperature_K=None, steam_pressure_Pa=bar(3.5),
@@ -132,7 +132,7 @@ def jacket_alt(name, desc, inside_fouling=0.0, steam_fouling=0.0):
                     fittings=[Fitting(kind="elbow_180_return", count=3)]),
             Segment(name="Run to washers", length_m=40, pipe=Pipe(nps="2", schedule="40"), insulation=[wool(50)],
                     fittings=[elbows(5), Fitting(kind="globe_valve")], elevation_change_m=4.0,
-                    surroundings=StillAir(temperature_K=C(20))),
+                    surroundings=StillAir(indoors=True, temperature_K=C(20))),
         ],
         limits=Limits(max_inner_wall_temperature_K=C(140)))
 
@@ -159,12 +159,12 @@ def n2_alt(name, nps, mm):
         feed=Feed(inlet_temperature_K=C(45), inlet_pressure_Pa=bar(8.0), mass_flow_kg_per_s=0.25),
         segments=[
             Segment(name="Compressor house", length_m=15, pipe=Pipe(nps=nps, schedule="40"), insulation=ins,
-                    fittings=[elbows(3), Fitting(kind="check_valve_swing")], surroundings=StillAir(temperature_K=C(25))),
+                    fittings=[elbows(3), Fitting(kind="check_valve_swing")], surroundings=StillAir(indoors=True, temperature_K=C(25))),
             Segment(name="Outdoor rack", length_m=180, pipe=Pipe(nps=nps, schedule="40"), insulation=ins,
                     fittings=[elbows(6), Fitting(kind="tee_through_run", count=3)], elevation_change_m=5.0,
                     surroundings=Wind(temperature_K=C(-10), wind_speed_m_per_s=8.0)),
             Segment(name="Analyser house", length_m=20, pipe=Pipe(nps=nps, schedule="40"), insulation=ins,
-                    fittings=[elbows(2), Fitting(kind="ball_valve")], surroundings=StillAir(temperature_K=C(18))),
+                    fittings=[elbows(2), Fitting(kind="ball_valve")], surroundings=StillAir(indoors=True, temperature_K=C(18))),
         ])
 projects["nitrogen_header_outdoors"] = Project(
     name="Fernbrook Works — instrument nitrogen header",

@@ -425,3 +425,13 @@ def test_an_adiabatic_outside_takes_the_heat_sinks_off_and_gives_them_back(doc, 
     doc.undo_stack.undo()
     doc.undo_stack.undo()  # one step each way: surroundings and sinks together
     assert doc.selected.surroundings.kind == "still_air" and doc.selected.heat_sinks == sinks
+
+
+def test_indoors_is_one_undoable_tick_on_still_air(doc, card):
+    # the design cases leave indoor air as entered; the tick is an edit like any other
+    doc.select_segment(0)
+    assert doc.selected.surroundings.kind == "still_air" and not doc.selected.surroundings.indoors
+    card.surroundings.indoors.click()
+    assert doc.selected.surroundings.indoors is True and card.surroundings.indoors.isChecked()
+    doc.undo_stack.undo()
+    assert doc.selected.surroundings.indoors is False and not card.surroundings.indoors.isChecked()

@@ -21,6 +21,7 @@ from __future__ import annotations
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import (
     QButtonGroup,
+    QCheckBox,
     QFormLayout,
     QGroupBox,
     QRadioButton,
@@ -112,6 +113,12 @@ class SurroundingsBox(QGroupBox):
         self.edits: dict[str, QuantityEdit] = {}  # "kind.key" -> box
         for kind, (rows, note) in _PAGES.items():
             self._page(kind, rows, note)
+        # still air may be a building's: then the project's design cases leave it as entered
+        self.indoors = QCheckBox("Indoors: the design cases keep this air")
+        self.indoors.setToolTip("Inside a building, the line sees the building's air, not the outdoor design "
+                                "ambient: the worst and hot cases leave this air as entered.")
+        self.indoors.clicked.connect(self.on_indoors)
+        self.pages["still_air"].layout().addRow(self.indoors)
         self._fixed_wall_page()
         ad = QWidget()
         QVBoxLayout(ad).addWidget(hint("No heat is exchanged with the surroundings "
@@ -190,6 +197,8 @@ class SurroundingsBox(QGroupBox):
                 edit.set_value(getattr(s, field))
         if s.kind in _AIR_KINDS:
             set_combo_data(self.jacketing[s.kind], self._finish_of(seg))
+        if s.kind == "still_air":
+            self.indoors.setChecked(s.indoors)
         if s.kind == "fixed_wall":
             by_steam = s.steam_pressure_Pa is not None
             self.fixed_by_steam.setChecked(by_steam)
@@ -280,6 +289,13 @@ class SurroundingsBox(QGroupBox):
             return
         # the same emissivity as before changes no model value: show the choice all the same
         set_combo_data(self.jacketing[seg.surroundings.kind], self._finish_of(seg))
+
+    def on_indoors(self, checked: bool) -> None:
+        seg = self.editor.doc.selected
+        if seg is None or seg.surroundings.kind != "still_air" or self.editor.loading:
+            return
+        where = "indoors" if checked else "outdoors"
+        self.editor.set_fields({"surroundings.indoors": bool(checked)}, text=f"'{seg.name}' runs {where}")
 
     def on_fixed_source(self, button_id: int) -> None:
         seg = self.editor.doc.selected
