@@ -239,3 +239,17 @@ def test_the_hold_time_dock_in_the_main_window(qtbot):
     assert w.hold_time.hold is w.doc.hold_time_of(w.doc.result)
     qtbot.waitUntil(lambda: w.hold_time_dock.height() >= 300, timeout=5000)  # room for the plot and its table
     w.doc.shutdown()
+
+
+def test_a_result_after_the_segment_card_is_gone_reaches_no_deleted_widget(doc, qtbot):
+    # the Segment Card's heat-path bar and tracing line listened through lambdas, which outlive the widgets:
+    # a result arriving after the card was deleted called into deleted C++ objects (seen as "Internal C++
+    # object already deleted" raised in the Qt event loop, pytest-qt turns that into an error)
+    import shiboken6
+
+    card = SegmentCard(doc)
+    doc.select_segment(0)
+    result = doc.solve_now()
+    shiboken6.delete(card)  # the C++ widgets go now, as when the window closes; the Python side lives on
+    doc.result_ready.emit(result)  # must reach no deleted widget
+    doc.set_unit_system("US")  # a change every listener redraws for

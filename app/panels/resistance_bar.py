@@ -130,11 +130,11 @@ class HeatPathBox(QGroupBox):
         self.setToolTip("Resistances per metre of pipe from the fluid outwards, in series: each block's width is "
                         "its share of the total, i.e. of the temperature drop from the fluid to the surroundings. "
                         "Convection and radiation of the outer air film act in parallel and make one block.")
-        doc.result_ready.connect(lambda _r: self.refresh())
-        doc.solve_failed.connect(lambda _m: self.refresh())
-        doc.units_changed.connect(lambda _s: self.refresh())
-        doc.selection_changed.connect(lambda _i: self.refresh())
-        doc.current_alternative_changed.connect(lambda _i: self.refresh())
+        # bound methods, not lambdas: Qt drops these connections when this widget is deleted (a lambda
+        # would outlive it and call into a deleted C++ object when a late result arrives)
+        for signal in (doc.result_ready, doc.solve_failed, doc.units_changed, doc.selection_changed,
+                       doc.current_alternative_changed):
+            signal.connect(self._on_doc_changed)
         doc.project_replaced.connect(self.refresh)
         self.refresh()
 
@@ -146,6 +146,9 @@ class HeatPathBox(QGroupBox):
             return None
         r = res.resistances[i]
         return r if r.name == seg.name else None  # a result from before segments were added or moved
+
+    def _on_doc_changed(self, *_args) -> None:
+        self.refresh()
 
     def refresh(self) -> None:
         r = self._resistances()

@@ -44,11 +44,11 @@ class TracingNeedBox(QGroupBox):
         self.setToolTip("The tracing need: the heat this segment loses per metre in the worst case with the pipe at "
                         "the maintain temperature, plus its heat sinks, times (1 + design margin); what the "
                         "heater must deliver there (common practice in trace-heating design).")
-        doc.result_ready.connect(lambda _r: self.refresh())
-        doc.solve_failed.connect(lambda _m: self.refresh())
-        doc.units_changed.connect(lambda _s: self.refresh())
-        doc.selection_changed.connect(lambda _i: self.refresh())
-        doc.current_alternative_changed.connect(lambda _i: self.refresh())
+        # bound methods, not lambdas: Qt drops these connections when this widget is deleted (a lambda
+        # would outlive it and call into a deleted C++ object when a late result arrives)
+        for signal in (doc.result_ready, doc.solve_failed, doc.units_changed, doc.selection_changed,
+                       doc.current_alternative_changed):
+            signal.connect(self._on_doc_changed)
         doc.project_replaced.connect(self.refresh)
         doc.hold_time_ready.connect(lambda r: self.refresh(force=True) if r is self.doc.result else None)
         self.refresh()
@@ -63,6 +63,9 @@ class TracingNeedBox(QGroupBox):
         if res.design.segments[i].name != seg.name:
             return None, -1  # a result from before segments were added or moved
         return res, i
+
+    def _on_doc_changed(self, *_args) -> None:
+        self.refresh()
 
     def refresh(self, force: bool = False) -> None:
         res, i = self._segment()
