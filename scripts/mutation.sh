@@ -18,6 +18,7 @@
 # MUTATION_REUSE=1 keeps WORKDIR's copy of the code and its results, refreshes only tests/, and
 # runs the patterns again: how a new test is shown to kill an old survivor.
 # Environment: PYTHON_BIN_DIR (default <repo>/.venv/bin), MUTATION_JOBS (default 2),
+# MUTATION_FILES (the files to mutate, space separated; default the heat-path files above),
 # MUTATION_EXTRA_TESTS (more test files, space separated), MUTATION_DESELECT (pytest node ids
 # to leave out, e.g. a test that is red for an unrelated half-done change).
 # Results: WORKDIR/mutation_survivors.txt (every selected mutant that was not killed, with its
@@ -133,7 +134,7 @@ cd "$WORK"
     echo "[mutmut]"
     echo "source_paths = solver"
     echo "only_mutate ="
-    for f in solver/correlations.py solver/films.py solver/line.py solver/march.py; do echo "    $f"; done
+    for f in ${MUTATION_FILES:-solver/correlations.py solver/films.py solver/line.py solver/march.py}; do echo "    $f"; done
     echo "also_copy ="
     echo "    sample_projects"
     echo "pytest_add_cli_args_test_selection ="
