@@ -101,11 +101,11 @@ def test_the_hold_time_is_worked_out_off_the_gui_thread(doc, qtbot, monkeypatch)
     real = solver.hold_time.hold_time
     threads = []
 
-    def recording(*args, **kwargs):
+    def spy(*args, **kwargs):
         threads.append(threading.get_ident())
         return real(*args, **kwargs)
 
-    monkeypatch.setattr(solver.hold_time, "hold_time", recording)
+    monkeypatch.setattr(solver.hold_time, "hold_time", spy)
     doc.solve_now()
     qtbot.wait(100)
     threads.clear()
