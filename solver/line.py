@@ -390,11 +390,7 @@ def _resolve_segments(alt: Alternative, factors: MethodFactors = NEUTRAL) -> lis
         steep = abs(seg.elevation_change_m) > STEEP_RISE_RATIO * seg.length_m
         heater = _heater_numbers(seg.heater)
         sinks = heat_sinks_mod.sink_conductances(seg, d_po)
-        if sinks.any and isinstance(sur, (Adiabatic, FixedWall)):
-            raise InputError(
-                f"{prefix}.heat_sinks", len(seg.heat_sinks),
-                f"heat sinks lose heat to the surroundings, and {'an adiabatic outside has none' if isinstance(sur, Adiabatic) else 'a wall held at its temperature takes none from the pipe'}: "
-                "remove them or choose air, soil or a jacket as the surroundings")
+        # heat sinks with a held wall or an adiabatic outside are refused by the model (Segment), on entry
         setups.append(
             SegmentSetup(
                 index=i,
