@@ -48,6 +48,7 @@ def line_result(alt: Alternative, fluid, line: LineGrid, state: MarchState, marg
     wall = prof.inner_wall_temperature_K
     surf = prof.outer_surface_temperature_K
     i_wmax, i_wmin = int(np.argmax(wall)), int(np.argmin(wall))
+    i_bmin = int(np.argmin(T))
     surf_exposed = checks_mod.exposed_mask(line, prof)
     if surf_exposed.any():
         i_smax = int(np.argmax(np.where(surf_exposed, surf, -np.inf)))
@@ -81,6 +82,8 @@ def line_result(alt: Alternative, fluid, line: LineGrid, state: MarchState, marg
         heat_loss_W=float(np.sum(q_loss_cell)),
         heat_sink_loss_W=float(np.sum(state.q_sink * line.dx)),
         energy_balance_residual_W=float(residual),
+        min_bulk_temperature_K=float(T[i_bmin]),
+        min_bulk_position_m=float(line.x_node[i_bmin]),
         max_inner_wall_temperature_K=float(wall[i_wmax]),
         max_inner_wall_position_m=float(prof.x_m[i_wmax]),
         min_inner_wall_temperature_K=float(wall[i_wmin]),

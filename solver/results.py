@@ -365,6 +365,9 @@ KEY_FIGURES: tuple[KeyFigure, ...] = (
         "The largest of the segments' heat loss ÷ length, heat sinks included: what a heater is chosen by."),
     _kf("energy_balance_residual_W", "Energy balance residual", "power", "Heat",
         "m·(h_out − h_in + g·Δz) − heat to fluid; round-off when the march has closed.", compared=False),
+    _kf("min_bulk_temperature_K", "Min bulk temperature", "temperature", "Wall and flow",
+        "Lowest bulk (mixing-cup) temperature at a node along the line: what a maintain temperature is held against.",
+        position_key="min_bulk_position_m"),
     _kf("max_inner_wall_temperature_K", "Max inner-wall temperature", "temperature", "Wall and flow",
         "Highest inner-wall temperature along the line (bulk + heat flux × inside film resistance).",
         position_key="max_inner_wall_position_m"),
@@ -438,6 +441,8 @@ class Result:
     # the design cases (solver.design_cases.DesignResult) when solve(..., design=...) asked for them
     design: object = None
     heat_sink_loss_W: float = 0.0  # of heat_loss_W, what the heat sinks lose
+    min_bulk_temperature_K: float = math.nan  # lowest bulk temperature at a node (what a maintain target holds)
+    min_bulk_position_m: float = math.nan
 
     @property
     def max_heat_loss_per_length_W_per_m(self) -> float:
@@ -485,6 +490,8 @@ class Result:
             "heat_sink_loss_W": self.heat_sink_loss_W,
             "max_heat_loss_per_length_W_per_m": self.max_heat_loss_per_length_W_per_m,
             "energy_balance_residual_W": self.energy_balance_residual_W,
+            "min_bulk_temperature_K": self.min_bulk_temperature_K,
+            "min_bulk_position_m": self.min_bulk_position_m,
             "max_inner_wall_temperature_K": self.max_inner_wall_temperature_K,
             "max_inner_wall_position_m": self.max_inner_wall_position_m,
             "min_inner_wall_temperature_K": self.min_inner_wall_temperature_K,
