@@ -11,6 +11,7 @@ every segment repeats its boundary node so that wall values can jump there).
 
 from __future__ import annotations
 
+import copy
 import functools
 import math
 from dataclasses import dataclass, field
@@ -134,6 +135,7 @@ class LineGrid:
     sink_bare_ratio: np.ndarray = None
     sink_direct: np.ndarray = None
     sink_bare_film: np.ndarray = None  # the film entered for the surroundings [W/(m²·K)]; NaN = computed
+    entry_origin: np.ndarray = None  # per segment: where its entry length starts along the line [m]; inf developed
 
     @property
     def any_self_limiting(self) -> bool:
@@ -150,7 +152,8 @@ class LineGrid:
 
     @property
     def n(self) -> int:
-        return self.dx.size
+        """Cells along the line (per variant, when variants are stacked: solver.batch)."""
+        return self.dx.shape[-1]
 
     @property
     def any_fittings(self) -> bool:
@@ -283,8 +286,51 @@ def build_line(alt: Alternative, refine: float, cells_per_segment: int | None,
         x0_entry=x0_entry,
         x1_entry=x1_entry,
         developing=np.array([s.entry_developing for s in setups], dtype=bool)[seg_of_cell],
+        entry_origin=np.array([s.entry_origin_m for s in setups], dtype=float),
         **_heater_and_sink_cells(setups, seg_of_cell),
     )
+
+
+def with_heaters(line: LineGrid, alt: Alternative) -> LineGrid | None:
+    """``line`` with the heaters of ``alt``'s segments, without building it anew; None when that would
+    change more than the heater arrays.
+
+    For variants that differ from the line's alternative only in their heaters (a search on heater output):
+    the same segments otherwise (the very same pipe, insulation, surroundings, fittings and heat sinks) and
+    the same kind of heater, on where it was on. The heaters then change the heater numbers of the segment
+    set-ups and the heater arrays; the cells, the entry lengths and everything else stay.
+    """
+    if len(alt.segments) != len(line.segments):
+        return None
+    setups = []
+    for s, seg in zip(line.segments, alt.segments):
+        numbers = _heater_numbers(seg.heater)
+        if (numbers.get("heater_kind", "") != s.heater_kind
+                or (seg.heat_input_W_per_m > 0.0) != (s.heat_input_W_per_m > 0.0)):
+            return None
+        new = copy.copy(s)  # (dataclasses.replace re-runs __init__: ten times slower here)
+        new.heat_input_W_per_m = seg.heat_input_W_per_m
+        new.__dict__.update(numbers)
+        setups.append(new)
+    out = copy.copy(line)
+    out.__dict__.update(_heater_and_sink_cells(setups, line.seg_of_cell))
+    out.segments = setups
+    out.q_in = np.array([s.heater_constant_W_per_m for s in setups], dtype=float)[line.seg_of_cell]
+    return out
+
+
+def same_but_heaters(a: Alternative, b: Alternative) -> bool:
+    """Whether ``b``'s segments are ``a``'s (the same objects) except for their heaters, with the same feed's
+    entry condition: what :func:`with_heaters` can reuse a line for."""
+    if len(a.segments) != len(b.segments) or a.feed.inlet_flow != b.feed.inlet_flow:
+        return False
+    for sa, sb in zip(a.segments, b.segments):
+        if sa is sb:
+            continue
+        for name in type(sa).model_fields:
+            if name != "heater" and getattr(sa, name) is not getattr(sb, name):
+                return False
+    return True
 
 
 def _heater_and_sink_cells(setups: list[SegmentSetup], seg_of_cell: np.ndarray) -> dict:

@@ -220,30 +220,44 @@ def _solve(alt: Alternative, refine: float, cells_per_segment, max_iterations: i
 
 
 def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max_iterations: int,
-           tol: float, factors: MethodFactors = NEUTRAL, seen: dict | None = None) -> MarchState:
+           tol: float, factors: MethodFactors = NEUTRAL, seen: dict | None = None, feed=None) -> MarchState:
     """Iterate properties, film coefficients, heat and pressure over all cells to a fixed point.
 
     The fixed point is reached when, between two passes, no bulk, inner-wall, outer-surface or
     heated-wall temperature moves by ``tol`` or more and no pressure by ``tol`` × 1 bar or more:
     every reported temperature has settled, not only the bulk.
+
+    ``feed`` = (inlet temperatures, inlet pressures), each shape (V, 1), marches V variants at once
+    (:mod:`solver.batch`): ``line`` is then stacked (cell arrays (V, n)), ``m_dot`` and ``h0`` are (V, 1),
+    and each variant's state is kept from the pass where it alone would have stopped, so it is the state a
+    solve of that variant on its own reaches. A stacked march raises on any failure; the caller then
+    solves the variants one by one, which says what failed where.
     """
-    t_in = alt.feed.inlet_temperature_K
-    p_in = alt.feed.inlet_pressure_Pa
+    batch = feed is not None  # variants stacked along a first axis (solver.batch); 1-D arrays otherwise
+    if batch:
+        t_in, p_in = feed  # per variant, shape (V, 1)
+    else:
+        t_in = alt.feed.inlet_temperature_K
+        p_in = alt.feed.inlet_pressure_Pa
     n = line.n
     dx, D, area, rel_rough = line.dx, line.D, line.area, line.rel_rough
+    cells = np.zeros_like(dx)  # the shape of a cell array (V, n) or (n,)
     t_inf, dz, film_mask, cond_mask = line.t_inf, line.dz, line.film_mask, line.cond_mask
     air = AirAtOneAtmosphere.get() if film_mask.any() else None
     any_cond = bool(cond_mask.any())
     x0_over_d, x1_over_d = line.x0_entry / D, line.x1_entry / D
 
-    T = np.full(n + 1, t_in)
-    p = np.full(n + 1, p_in)
-    T_surface = np.where(np.isfinite(t_inf), 0.5 * (t_in + np.nan_to_num(t_inf, nan=t_in)), t_in)
-    T_wall = np.full(n, t_in)  # inner wall (the surface the fluid touches), cell means
-    T_heated = np.full(n, t_in)  # outer surface of the pipe wall (where tracing heat enters), cell means
+    nodes = np.zeros(cells.shape[:-1] + (n + 1,))
+    T = nodes + t_in
+    p = nodes + p_in
+    t_in_cells = cells + t_in
+    T_surface = np.where(np.isfinite(t_inf), 0.5 * (t_in_cells + np.where(np.isfinite(t_inf), t_inf, t_in_cells)),
+                         t_in_cells)
+    T_wall = t_in_cells.copy()  # inner wall (the surface the fluid touches), cell means
+    T_heated = t_in_cells.copy()  # outer surface of the pipe wall (where tracing heat enters), cell means
     if any_cond:
-        T_heated[cond_mask] = 0.5 * (t_in + t_inf[cond_mask])
-    e_corr = np.zeros(n)  # temperature change not explained by Q / (m cp): pressure effect, cp curvature
+        T_heated[cond_mask] = 0.5 * (t_in_cells[cond_mask] + t_inf[cond_mask])
+    e_corr = np.zeros_like(cells)  # temperature change not explained by Q / (m cp): pressure effect, cp curvature
     t_lo, t_hi = fluid.T_min_K, fluid.T_max_K
     t_inf_eff = np.nan_to_num(t_inf, nan=0.0)
     r_ins_film = line.r_ins[film_mask]
@@ -257,28 +271,31 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
     Q_cell = None  # heat to the fluid per cell from the last pass
     last_step = math.inf
     strikes = 0
-    tsat_in = float(fluid.saturation_temperature(np.array([p_in]))[0])
-    liquid_feed = bool(math.isfinite(tsat_in) and t_in < tsat_in)
+    if batch:  # every variant on the same side of saturation (solver.batch groups them so)
+        liquid_feed, gas_feed = feed_sides(fluid, float(t_in.flat[0]), float(p_in.flat[0]))
+        p_in_max = float(np.max(p_in))
+    else:
+        liquid_feed, gas_feed = feed_sides(fluid, t_in, p_in)
+        p_in_max = p_in
     tsat_nodes = None
-    gas_feed = bool(fluid.compressible and not liquid_feed) or bool(
-        isinstance(fluid, PureFluidModel) and math.isfinite(tsat_in) and t_in > tsat_in)
     mach_peak = 0.0
     choke_strikes = 0
     p_floor = float(getattr(fluid, "p_min_Pa", 0.0))  # the property data end here (CoolProp grid: 1 kPa)
     sat_possible = isinstance(fluid, PureFluidModel) and bool(
-        np.isfinite(fluid.saturation_temperature(np.array([p_in, max(p_in * 0.5, 2e3)]))).any())
+        np.isfinite(fluid.saturation_temperature(np.array([p_in_max, max(p_in_max * 0.5, 2e3)]))).any())
     h_conv = h_rad = np.zeros(0)
-    r_cond = np.full(n, np.nan)
-    wall_factor = np.ones(n)
+    r_cond = np.full_like(cells, np.nan)
+    wall_factor = np.ones_like(cells)
     wall_groups = None
     g_tracer = g_tracer_pass = line.g_tracer
     heaters = _HeaterState(line, t_in, air, factors)
+    kept = _Kept(batch)  # each variant's state from the pass where it stopped
     kt_insulation = insulation.any_on_line(line)
     first_pass = True
     if air is not None:
         # a first surface temperature from the surface balance with the wall at the inlet temperature:
         # a halfway guess leaves the surface tens of kelvin out and costs two more passes
-        t_in_film = np.full(d_film.shape, t_in)
+        t_in_film = t_in_cells[film_mask]
         for _ in range(3):
             h_conv, h_rad = air_film_parts(air, T_surface[film_mask], t_inf[film_mask], d_film,
                                            line.wind_speed[film_mask], line.emissivity[film_mask], factors,
@@ -304,25 +321,35 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
             # temperature from (h, p): a Newton step on h(T, p) = h_target; the part of the temperature
             # change not explained by Q/(m cp) (pressure effect, cp curvature) feeds the recurrence
             T_true = T + (h_target - pn.h) / pn.cp
-            change = max(float(np.max(np.abs(T_true - T))), last_step)
-            if change < tol:
-                converged = True
+            change = np.maximum(np.max(np.abs(T_true - T), axis=-1), last_step)
+            stops = (change < tol) & ~kept.done
+            if np.any(stops):
                 # one more Newton step on h(T, p) = h_target so the reported temperatures agree with
                 # the enthalpy balance to round-off, not just to the iteration tolerance
                 pt = fluid.props(np.clip(T_true, t_lo, t_hi), p)
-                T = T_true + (h_target - pt.h) / pt.cp
-                T = _exact_where_newton_misses(fluid, T, h_target, p, t_lo, t_hi)
-                if p.max() > p_in:  # downhill the pressure rises: the table's enthalpy must still rise with T
+                T_final = T_true + (h_target - pt.h) / pt.cp
+                T_final = _exact_where_newton_misses(fluid, T_final, h_target, p, t_lo, t_hi)
+                if p.max() > p_in_max:  # downhill the pressure rises: the table's enthalpy must still rise with T
                     _check_liquid_model(fluid, float(p.max()), alt.name, "at the highest line pressure,")
-                break
-            last_change = change
-        rho = 0.5 * (pn.rho[:-1] + pn.rho[1:])
-        cp = 0.5 * (pn.cp[:-1] + pn.cp[1:])
+                kept.take(stops, T=T_final, p=p, h_nodes=h_nodes, ke_nodes=ke_nodes, Q_cell=Q_cell,
+                          T_surface=T_surface, r_out_total=r_out_total, Re=Re, Pr=Pr, velocity=velocity, rho=rho,
+                          dp_friction=dp_friction, dp_fittings=dp_fittings, dp_elevation=dp_elevation,
+                          dp_accel=dp_accel, r_in=r_in, wall_factor=wall_factor, h_conv=_on_cells(h_conv, film_mask),
+                          h_rad=_on_cells(h_rad, film_mask), r_cond=r_cond, g_tracer_pass=g_tracer_pass,
+                          T_heated=T_heated, T_wall=T_wall, g_heater=heaters.g_heater, g_sink=heaters.g_sink,
+                          g_sink_fixed=heaters.g_sink_fixed, q_fixed=heaters.q_fixed,
+                          **({"wall_" + k: v for k, v in wall_groups.items()} if wall_groups else {}))
+                if kept.done.all():
+                    converged = True
+                    break
+            last_change = float(np.max(change))
+        rho = 0.5 * (pn.rho[..., :-1] + pn.rho[..., 1:])
+        cp = 0.5 * (pn.cp[..., :-1] + pn.cp[..., 1:])
         if h_target is not None:
             # with this pass's cp, the recurrence reproduces T_true from last pass's heat
             e_corr = np.diff(T_true) - Q_cell / (m_dot * cp)
-        mu = np.sqrt(pn.mu[:-1] * pn.mu[1:])  # viscosity varies exponentially with T
-        k = 0.5 * (pn.k[:-1] + pn.k[1:])
+        mu = np.sqrt(pn.mu[..., :-1] * pn.mu[..., 1:])  # viscosity varies exponentially with T
+        k = 0.5 * (pn.k[..., :-1] + pn.k[..., 1:])
         velocity = m_dot / (rho * area)
         Re = m_dot * D / (area * mu)
         Pr = cp * mu / k
@@ -349,7 +376,7 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
                                            **vertical_kw)
             r_out_total[film_mask] = r_ins_film + 1.0 / ((h_conv + h_rad) * area_film)
         if any_cond:
-            r_cond = np.full(n, np.nan)
+            r_cond = np.full_like(cells, np.nan)
             r_cond[cond_mask] = condensate_resistance(line.steam_pressure[cond_mask], line.d_pipe_outer[cond_mask],
                                                       line.r_steam_foul[cond_mask], T_heated[cond_mask], factors)
             r_out_total[cond_mask] = r_cond[cond_mask]
@@ -363,23 +390,24 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
         # (the first cell at the inlet), so a change of bore takes its kinetic energy in the new segment's
         # first cell and the sum telescopes to the outlet's v²/2 − the inlet's.
         ke_nodes = _kinetic_energy(m_dot, area, pn.rho)
-        h_nodes = np.empty(n + 1)
-        h_nodes[0] = h0
-        np.cumsum(Q_cell / m_dot - GRAVITY * dz - (ke_nodes[1:] - ke_nodes[:-1]), out=h_nodes[1:])
-        h_nodes[1:] += h0
+        h_nodes = np.empty_like(nodes)
+        h_nodes[..., :1] = h0
+        np.cumsum(Q_cell / m_dot - GRAVITY * dz - (ke_nodes[..., 1:] - ke_nodes[..., :-1]), axis=-1,
+                  out=h_nodes[..., 1:])
+        h_nodes[..., 1:] += h0
 
         # pressure: friction + fittings + elevation + acceleration (density from the previous iterate)
         dp_parts = _pressure_drops(line, fluid, m_dot, T, p, rho, velocity, Re, f * factors.friction)
         dp_friction, dp_fittings, dp_elevation, dp_accel = dp_parts
         dp_cell = dp_friction + dp_fittings + dp_elevation + dp_accel
-        p_new = np.empty(n + 1)
-        p_new[0] = p_in
-        np.cumsum(dp_cell, out=p_new[1:])
-        p_new[1:] = p_in - p_new[1:]
-        if p_new[-1] <= p_floor or np.any(p_new <= p_floor):
+        p_new = np.empty_like(nodes)
+        p_new[..., :1] = p_in
+        np.cumsum(dp_cell, axis=-1, out=p_new[..., 1:])
+        p_new[..., 1:] = p_in - p_new[..., 1:]
+        if np.any(p_new <= p_floor):
             # no pressure left: a gas has choked, a liquid with a boiling point has flashed on the way
             raise _pressure_failure(alt, fluid, line, m_dot, T_new, p_new, p_floor, liquid_feed, sat_possible)
-        if gas_feed:
+        if gas_feed and not batch:  # (solver.batch marches only liquids together)
             # the speed of sound only where the flow is fast enough to matter (no offered gas is below
             # about 200 m/s, so under 50 m/s the Mach number stays below 0.25)
             v_nodes = np.sqrt(2.0 * ke_nodes)
@@ -398,12 +426,12 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
         q_fluid = Q_cell / dx
         T_wall_new = tm_cell + q_fluid * r_in
         T_heated_new = tm_cell + q_fluid * r_a
-        wall_step = float(np.max(np.abs(T_wall_new - T_wall)))
+        wall_step = np.max(np.abs(T_wall_new - T_wall), axis=-1)
         if any_cond:
-            wall_step = max(wall_step, float(np.max(np.abs(T_heated_new[cond_mask] - T_heated[cond_mask]))))
+            wall_step = np.maximum(wall_step, _row_max(np.abs(T_heated_new - T_heated), cond_mask))
         if heaters.follows_wall:
             # a self-limiting heater's output, a thermostat's duty and a bare heat sink's film follow the pipe wall
-            wall_step = max(wall_step, float(np.max(np.abs(T_heated_new - T_heated))))
+            wall_step = np.maximum(wall_step, np.max(np.abs(T_heated_new - T_heated), axis=-1))
         T_wall, T_heated = T_wall_new, T_heated_new
         if line.any_tracer:
             # a steam tracer only heats: where the pipe is at or above its steam temperature it gives nothing
@@ -412,14 +440,21 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
         surface_step = 0.0
         if air is not None:
             t_surf_new = _surface_temperature(T_heated[film_mask], t_inf[film_mask], r_ins_film, d_film, h_conv + h_rad)
-            surface_step = float(np.max(np.abs(t_surf_new - T_surface[film_mask])))
+            surface_step = _row_max(np.abs(_on_cells(t_surf_new, film_mask) - T_surface), film_mask)
             T_surface[film_mask] = t_surf_new
-        last_step = max(float(np.max(np.abs(T_new - T))), float(np.max(np.abs(p_new - p))) * 1e-5,
-                        wall_step, surface_step, insulation_step)
+        last_step = np.maximum.reduce([np.max(np.abs(T_new - T), axis=-1), np.max(np.abs(p_new - p), axis=-1) * 1e-5,
+                                       wall_step, np.broadcast_to(surface_step, np.shape(wall_step)),
+                                       np.broadcast_to(insulation_step, np.shape(wall_step))])
         first_pass = False
         # a phase change or a state beyond the fluid data on two passes in a row is real, not a transient
         tsat_nodes = fluid.saturation_temperature(p_new) if sat_possible else None
-        problem = _phase_or_range_problem(fluid, T_new, p_new, t_lo, t_hi, liquid_feed, tsat_nodes)
+        if batch:
+            # any variant leaving single-phase flow or the fluid data: the caller solves them one by one,
+            # which tells a transient from a real stop and says where
+            if _any_phase_or_range_problem(T_new, t_lo, t_hi, liquid_feed, tsat_nodes):
+                raise SolverError("a variant leaves single-phase flow or the fluid data", alternative=alt.name)
+        problem = None if batch else _phase_or_range_problem(fluid, T_new, p_new, t_lo, t_hi, liquid_feed,
+                                                             tsat_nodes)
         if problem is not None:
             strikes += 1
             if strikes >= 2:
@@ -436,6 +471,8 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
         h_target = h_nodes
 
     if not converged:
+        if batch:
+            raise SolverError("the variants marched together did not all settle", alternative=alt.name)
         if gas_feed and mach_peak > 0.8:
             raise _choked(alt, fluid, line, m_dot, None)
         raise SolverError(
@@ -443,19 +480,39 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
             "the flow may be near choking or the line near a phase change",
             alternative=alt.name,
         )
+    # the kept state replaces the last pass's: each variant's own stopping pass
+    T, p, h_nodes, ke_nodes, Q_cell = kept["T"], kept["p"], kept["h_nodes"], kept["ke_nodes"], kept["Q_cell"]
+    T_surface, r_out_total, Re, Pr = kept["T_surface"], kept["r_out_total"], kept["Re"], kept["Pr"]
+    velocity, rho, r_in, wall_factor = kept["velocity"], kept["rho"], kept["r_in"], kept["wall_factor"]
+    dp_friction, dp_fittings = kept["dp_friction"], kept["dp_fittings"]
+    dp_elevation, dp_accel = kept["dp_elevation"], kept["dp_accel"]
+    r_cond, g_tracer_pass, T_heated, T_wall = kept["r_cond"], kept["g_tracer_pass"], kept["T_heated"], kept["T_wall"]
+    heaters.g_heater, heaters.g_sink = kept["g_heater"], kept["g_sink"]
+    heaters.g_sink_fixed, heaters.q_fixed = kept["g_sink_fixed"], kept["q_fixed"]
+    if wall_groups:
+        wall_groups = {k: kept["wall_" + k] for k in wall_groups}
     if np.any(T < t_lo) or np.any(T > t_hi):
+        if batch:
+            raise SolverError("a variant leaves the range of the fluid data", alternative=alt.name)
         i_bad = int(np.argmax((T < t_lo) | (T > t_hi)))
         raise SolverError(
             f"bulk temperature leaves the range of the fluid data ({t_lo - 273.15:.1f} to {t_hi - 273.15:.1f} °C) "
             f"at {T[i_bad] - 273.15:.1f} °C",
             alternative=alt.name, segment=line.segment_at(i_bad).name, x_m=float(line.x_node[i_bad]),
         )
-    h_conv_out = np.full(n, np.nan)
-    h_rad_out = np.full(n, np.nan)
-    if air is not None:
-        h_conv_out[film_mask], h_rad_out[film_mask] = h_conv, h_rad
-    q_tracer = g_tracer_pass * (line.t_tracer - T_heated) if line.any_tracer else np.zeros(n)
+    h_conv_out, h_rad_out = kept["h_conv"], kept["h_rad"]
+    q_tracer = g_tracer_pass * (line.t_tracer - T_heated) if line.any_tracer else np.zeros_like(cells)
     q_heater, q_sink = heaters.delivered(line, T_heated)
+    if batch:
+        return MarchState(
+            m_dot=m_dot, h_in=h0, T=T, p=p, h_nodes=h_nodes, kinetic_nodes=ke_nodes, Q_cell=Q_cell,
+            T_surface=T_surface, r_out_total=r_out_total, Re=Re, Pr=Pr, velocity=velocity, rho=rho,
+            dp_friction=dp_friction, dp_fittings=dp_fittings, dp_elevation=dp_elevation, dp_accel=dp_accel, air=air,
+            r_in=r_in, wall_factor=wall_factor, h_conv_out=h_conv_out, h_rad_out=h_rad_out, r_cond=r_cond,
+            q_tracer=q_tracer, T_heated=T_heated, T_wall=T_wall, factors=factors, gas=bool(fluid.compressible),
+            wall_groups=wall_groups, g_tracer=g_tracer_pass, q_heater=q_heater, g_heater=heaters.g_heater,
+            duty=np.full(cells.shape[:-1] + (len(line.segments),), np.nan), g_sink=heaters.g_sink,
+            g_sink_fixed=heaters.g_sink_fixed, q_sink=q_sink)
     if kt_insulation:  # each k(T) layer at the solved temperatures, for the heat path; refused beyond its rating
         insulation.finish_line(line, T_heated, r_out_total, factors.insulation_conductivity)
     return MarchState(
@@ -473,18 +530,74 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
 # --------------------------------------------------------------------------- pieces
 
 
+def feed_sides(fluid, t_in: float, p_in: float) -> tuple[bool, bool]:
+    """(liquid feed, gas feed): which side of saturation the feed is on, as the march treats it."""
+    tsat_in = float(fluid.saturation_temperature(np.array([p_in]))[0])
+    liquid_feed = bool(math.isfinite(tsat_in) and t_in < tsat_in)
+    gas_feed = bool(fluid.compressible and not liquid_feed) or bool(
+        isinstance(fluid, PureFluidModel) and math.isfinite(tsat_in) and t_in > tsat_in)
+    return liquid_feed, gas_feed
+
+
+class _Kept:
+    """The state each variant had on the pass where it stopped (one variant: the whole state, once)."""
+
+    def __init__(self, batch: bool):
+        self.batch = batch
+        self.done = np.bool_(False)  # (an array per variant once the first stops)
+        self.store: dict = {}
+
+    def take(self, rows, **arrays) -> None:
+        if not self.batch:
+            self.store = {k: v.copy() for k, v in arrays.items()}
+            self.done = np.bool_(True)
+            return
+        if np.ndim(self.done) == 0:
+            self.done = np.zeros(rows.shape, dtype=bool)
+        for k, v in arrays.items():
+            if k not in self.store:
+                self.store[k] = np.array(v, copy=True)
+            else:
+                self.store[k][rows] = v[rows]
+        self.done = self.done | rows
+
+    def __getitem__(self, key):
+        return self.store[key]
+
+
+def _on_cells(values: np.ndarray, mask: np.ndarray) -> np.ndarray:
+    """Values given where ``mask`` is set, spread onto the cells (NaN elsewhere)."""
+    out = np.full(mask.shape, np.nan)
+    out[mask] = values
+    return out
+
+
+def _row_max(values: np.ndarray, mask: np.ndarray):
+    """The largest of ``values`` (>= 0) where ``mask`` is set, per variant (0 where none is)."""
+    return np.max(np.where(mask, values, 0.0), axis=-1)
+
+
+def _any_phase_or_range_problem(T, t_lo, t_hi, liquid_feed, tsat) -> bool:
+    """Whether any node has left single-phase flow or the fluid data (see _phase_or_range_problem)."""
+    bad = (T < t_lo) | (T > t_hi)
+    if tsat is not None:
+        finite = np.isfinite(tsat)
+        bad |= finite & ((T >= tsat) if liquid_feed else (T <= tsat))
+    return bool(bad.any())
+
+
 def _wall_property_factor(fluid, Re, Pr, mu, T_nodes, T_wall, p_nodes, t_lo, t_hi, liquid_feed, tsat_nodes):
     """The property-ratio factor on the inside coefficient per cell, from the last pass's inner wall,
     and the ratios it was formed from (for the validity check)."""
-    T_bulk = 0.5 * (T_nodes[:-1] + T_nodes[1:])
+    T_bulk = 0.5 * (T_nodes[..., :-1] + T_nodes[..., 1:])
     if fluid.compressible:
         groups = {"T_ratio": T_bulk / T_wall}
         return correlations.wall_property_factor(Re, None, None, None, None, T_bulk, T_wall, True), groups
-    p_cell = 0.5 * (p_nodes[:-1] + p_nodes[1:])
+    p_cell = 0.5 * (p_nodes[..., :-1] + p_nodes[..., 1:])
     t_eval = _clip(T_wall, t_lo, t_hi)
     if tsat_nodes is not None and liquid_feed:
         # a wall above boiling is flagged by the checks; its properties are taken just below it
-        tsat_cell = np.minimum(tsat_nodes[:-1], tsat_nodes[1:])
+        tsat_cell = np.minimum(tsat_nodes[..., :-1], tsat_nodes[..., 1:])
         t_eval = np.where(np.isfinite(tsat_cell), np.minimum(t_eval, tsat_cell - 0.05), t_eval)
     pw = fluid.props(t_eval, p_cell)
     pr_wall = pw.cp * pw.mu / pw.k
@@ -562,9 +675,9 @@ class _HeaterState:
         self.air = (air or AirAtOneAtmosphere.get()) if self.bare_computed.any() else None
         self.follows_wall = self.any_sl or self.any_thermo or bool(np.any(line.sink_bare_ratio > 0.0))
         self.duty = np.full(line.thermostat_segments.size, 0.5) if self.any_thermo else np.zeros(0)
-        self.g_heater = np.zeros(line.n)  # self-limiting slope in use [W/(m·K)]
-        self.g_sink = np.zeros(line.n)  # sink conductance in use [W/(m·K)]
-        self.g_sink_fixed = np.zeros(line.n)  # its part that does not scale with the outside path (bare, direct)
+        self.g_heater = np.zeros_like(line.dx)  # self-limiting slope in use [W/(m·K)]
+        self.g_sink = np.zeros_like(line.dx)  # sink conductance in use [W/(m·K)]
+        self.g_sink_fixed = np.zeros_like(line.dx)  # its part that does not scale with the outside path (bare, direct)
         self.q_fixed = line.q_in  # fixed heat input of the last pass [W/m] (constant + thermostats)
 
     def duty_per_segment(self, n_segments: int) -> np.ndarray:
@@ -584,7 +697,7 @@ class _HeaterState:
                                                line.wind_speed[bc], line.emissivity[bc], self.factors, **kw)
                 h[bc] = h_conv + h_rad
             g_fixed += line.sink_bare_ratio * h * (math.pi * line.d_pipe_outer)
-        g_out = np.zeros(line.n)
+        g_out = np.zeros_like(line.dx)
         finite = np.isfinite(r_out_total) & (r_out_total > 0.0)
         g_out[finite] = 1.0 / r_out_total[finite]
         self.g_sink_fixed = g_fixed
@@ -659,7 +772,7 @@ class _HeaterState:
         q = self.q_fixed.copy() if self.any_thermo else line.q_in.copy()
         if self.any_sl:
             q += self.g_heater * (line.t0_heater - T_heated)
-        q_sink = self.g_sink * (T_heated - np.nan_to_num(line.t_inf, nan=0.0)) if self.any_sink else np.zeros(line.n)
+        q_sink = self.g_sink * (T_heated - np.nan_to_num(line.t_inf, nan=0.0)) if self.any_sink else np.zeros_like(line.dx)
         return q, q_sink
 
 
@@ -684,9 +797,9 @@ def _heat_pass(line: LineGrid, r_a, r_out_total, mcp, e_corr, t_in: float, t_inf
     is the fixed heat input [W/m] (None: the line's constant heaters). ``with_u``: also return U' per cell.
     ``e_corr`` is the temperature change not explained by Q/(m cp) (pressure effect, cp curvature).
     """
-    n, dx = line.n, line.dx
+    dx = line.dx
     finite_out = np.isfinite(r_out_total)
-    g_out = np.zeros(n)
+    g_out = np.zeros_like(dx)
     with np.errstate(divide="ignore"):
         g_out[finite_out] = 1.0 / r_out_total[finite_out]  # inf where R_o = 0 (a fixed wall)
     if g_sink is not None:
@@ -702,7 +815,7 @@ def _heat_pass(line: LineGrid, r_a, r_out_total, mcp, e_corr, t_in: float, t_inf
             t_e = np.where(g_t > 0, (g_out * t_inf_eff + g_t * t_src) / np.where(g_e > 0, g_e, 1.0),
                            t_inf_eff)
         g_out = g_e
-    u_prime = np.zeros(n)
+    u_prime = np.zeros_like(dx)
     has_path = g_out > 0
     with np.errstate(divide="ignore"):
         u_prime[has_path] = 1.0 / (r_a[has_path] + 1.0 / g_out[has_path])
@@ -718,7 +831,7 @@ def _heat_pass(line: LineGrid, r_a, r_out_total, mcp, e_corr, t_in: float, t_inf
     # the cell-mean bulk of the exponential: T_i + w·ΔT with w = (1 − φ)/(1 − e^−NTU) (1/2 + NTU/12 for
     # small NTU, where the closed form cancels), so mean wall temperatures follow the same profile
     w = np.where(ntu > 1e-5, (1.0 - phi) / np.where(ntu > 1e-5, one_minus, 1.0), 0.5 + ntu / 12.0)
-    tm_cell = T_new[:-1] + w * np.diff(T_new)
+    tm_cell = T_new[..., :-1] + w * np.diff(T_new)
     if with_u:
         return T_new, Q_cell, tm_cell, u_prime
     return T_new, Q_cell, tm_cell
@@ -730,27 +843,28 @@ def _pressure_drops(line: LineGrid, fluid, m_dot: float, T, p, rho, velocity, Re
     Fittings act on their segment's mean Reynolds number, spread over its length; the
     acceleration term uses the densities of the previous iterate.
     """
-    n, dx, D, area, dz = line.n, line.dx, line.D, line.area, line.dz
+    dx, D, area, dz = line.dx, line.D, line.area, line.dz
     dyn = 0.5 * rho * velocity**2
     dp_friction = f * dx / D * dyn
     if line.any_fittings:
-        re_mean = np.add.reduceat(Re * dx, line.seg_first_cell) / np.add.reduceat(dx, line.seg_first_cell)
+        first = line.seg_first_cell
+        re_mean = np.add.reduceat(Re * dx, first, axis=-1) / np.add.reduceat(dx, first, axis=-1)
         K_seg = line.k_a / re_mean + line.k_b
-        dp_fittings = np.repeat(K_seg, line.cells_per_seg) * line.length_cell_share * dyn
+        dp_fittings = np.repeat(K_seg, line.cells_per_seg, axis=-1) * line.length_cell_share * dyn
     else:
-        dp_fittings = np.zeros(n)
+        dp_fittings = np.zeros_like(dx)
     dp_elevation = rho * GRAVITY * dz
     rho_nodes = _node_density(fluid, T, p, rho)
     G = m_dot / area
-    dp_accel = G**2 * (1.0 / rho_nodes[1:] - 1.0 / rho_nodes[:-1])
+    dp_accel = G**2 * (1.0 / rho_nodes[..., 1:] - 1.0 / rho_nodes[..., :-1])
     return dp_friction, dp_fittings, dp_elevation, dp_accel
 
 
 def _kinetic_energy(m_dot: float, area: np.ndarray, rho_nodes: np.ndarray) -> np.ndarray:
     """v²/2 at the nodes [J/kg]: the cell upstream's bore (the first cell's at the inlet), the node's density."""
-    a_up = np.empty(rho_nodes.size)
-    a_up[0] = area[0]
-    a_up[1:] = area
+    a_up = np.empty(rho_nodes.shape)
+    a_up[..., 0] = area[..., 0]
+    a_up[..., 1:] = area
     v = m_dot / (rho_nodes * a_up)
     return 0.5 * v * v
 
@@ -764,17 +878,21 @@ def _linear_recurrence(decay: np.ndarray, gain: np.ndarray, start: float) -> np.
     Where the products would underflow (a very strongly coupled line) a plain loop
     takes over.
     """
-    log_p = np.empty(decay.size + 1)
-    log_p[0] = 0.0
+    shape = decay.shape[:-1] + (decay.shape[-1] + 1,)
+    log_p = np.empty(shape)
+    log_p[..., 0] = 0.0
     with np.errstate(divide="ignore"):  # decay underflows to 0 past NTU 745: -inf sends it to the loop below
-        np.cumsum(np.log(decay), out=log_p[1:])
-    if log_p[-1] > -600.0:
-        inv = np.exp(-log_p[1:])
-        acc = np.empty(decay.size + 1)
-        acc[0] = start
-        np.cumsum(gain * inv, out=acc[1:])
-        acc[1:] += start
+        np.cumsum(np.log(decay), axis=-1, out=log_p[..., 1:])
+    if np.all(log_p[..., -1] > -600.0):
+        inv = np.exp(-log_p[..., 1:])
+        acc = np.empty(shape)
+        acc[..., :1] = start
+        np.cumsum(gain * inv, axis=-1, out=acc[..., 1:])
+        acc[..., 1:] += start
         return acc * np.exp(log_p)
+    if decay.ndim > 1:  # variants marched together: each its own recurrence
+        return np.array([_linear_recurrence(d, g, float(np.ravel(s)[0]))
+                         for d, g, s in zip(decay, gain, np.broadcast_to(start, (decay.shape[0], 1)))])
     out = [start]
     t = start
     for a, b in zip(decay.tolist(), gain.tolist()):
@@ -786,9 +904,9 @@ def _linear_recurrence(decay: np.ndarray, gain: np.ndarray, start: float) -> np.
 def _node_density(fluid, T, p, rho_cells):
     if not fluid.compressible:
         # liquids: the density change along the line is tiny; acceleration from cell densities
-        r = np.empty(T.size)
-        r[1:-1] = 0.5 * (rho_cells[:-1] + rho_cells[1:])
-        r[0], r[-1] = rho_cells[0], rho_cells[-1]
+        r = np.empty(T.shape)
+        r[..., 1:-1] = 0.5 * (rho_cells[..., :-1] + rho_cells[..., 1:])
+        r[..., 0], r[..., -1] = rho_cells[..., 0], rho_cells[..., -1]
         return r
     return fluid.props(T, p).rho
 

@@ -1,0 +1,164 @@
+"""Many variants solved together (solver.batch) give what each gives solved on its own.
+
+The reference is the solver's own one-by-one solve (solver.march.solve), whose physics the rest
+of the suite checks against published methods; the issue's criterion is agreement to 1e-9
+relative. Each case also asserts that the variants really were marched together, so a batch
+path that silently fell back to one-by-one solving would not pass.
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+
+import pytest
+
+from solver.batch import BatchOutcome, solve_batch
+from solver.errors import CalorunError
+from solver.march import solve
+from solver.model import ConstantHeater, Feed, Layer
+from solver.project_io import load_project
+
+ROOT = Path(__file__).resolve().parent.parent
+DEMO = load_project(ROOT / "app" / "demo_project.json")
+REL = 1e-9  # the issue's agreement criterion
+
+
+def _close(a: float, b: float) -> bool:
+    if isinstance(a, float) and math.isnan(a):
+        return isinstance(b, float) and math.isnan(b)
+    return a == b or abs(a - b) <= REL * max(abs(a), abs(b)) or abs(a - b) < 1e-12
+
+
+def _assert_same(outcomes: list[BatchOutcome], alts) -> None:
+    assert len(outcomes) == len(alts)
+    for o, alt in zip(outcomes, alts):
+        ref = solve(alt).key_figures()
+        assert o.ok, o.error
+        for key, value in ref.items():
+            assert _close(value, o.key_figures[key]), (alt.name, key, value, o.key_figures[key])
+
+
+def _with_heater(alt, w_per_m: float):
+    segs = [s.model_copy(update={"heater": ConstantHeater(output_W_per_m=w_per_m)}) for s in alt.segments]
+    return alt.model_copy(update={"segments": segs, "name": f"{w_per_m:g} W/m"})
+
+
+def test_heater_output_variants_equal_one_by_one():
+    base = DEMO.alternatives[1]  # constant heater, table fluid, air, wind and buried segments, fittings
+    alts = [_with_heater(base, w) for w in (5.0, 9.5, 15.0, 22.0, 31.0, 40.0)]
+    out = solve_batch(alts)
+    assert all(o.together for o in out)
+    assert all(o.result is None for o in out)  # key figures only
+    _assert_same(out, alts)
+    # the variants stop on their own passes: 5 W/m and 40 W/m are far apart, yet each equals its own solve
+    assert out[0].key_figures["outlet_temperature_K"] < out[-1].key_figures["outlet_temperature_K"]
+
+
+def test_self_limiting_heater_scaled_and_feed_variants():
+    base = DEMO.alternatives[0]  # self-limiting heater: output follows the pipe wall
+    alts = []
+    for flow in (0.15, 0.4, 1.1):
+        for t_in in (330.0, 348.15):
+            feed = base.feed.model_copy(update={"mass_flow_kg_per_s": flow, "inlet_temperature_K": t_in})
+            alts.append(base.model_copy(update={"feed": feed, "name": f"{flow} kg/s {t_in} K"}))
+    out = solve_batch(alts)
+    assert all(o.together for o in out)
+    _assert_same(out, alts)
+
+
+def test_insulation_thickness_variants_build_their_own_lines():
+    base = DEMO.alternatives[2]  # no tracing
+    alts = []
+    for t in (0.013, 0.025, 0.05, 0.1):
+        segs = [s.model_copy(update={"insulation": [Layer(material="mineral wool", thickness_m=t,
+                                                          conductivity_W_per_mK=0.045)]}) for s in base.segments]
+        alts.append(base.model_copy(update={"segments": segs, "name": f"{t * 1000:g} mm"}))
+    out = solve_batch(alts)
+    assert sum(o.together for o in out) >= 2
+    _assert_same(out, alts)
+
+
+def test_water_line_with_coolprop_properties():
+    project = load_project(ROOT / "sample_projects" / "makeup_water_freeze_protection.json")
+    base = project.alternatives[0]
+    alts = [base.model_copy(update={"feed": base.feed.model_copy(update={"inlet_temperature_K": t}),
+                                    "name": f"{t} K"}) for t in (279.15, 283.15, 288.15)]
+    out = solve_batch(alts)
+    _assert_same(out, alts)
+
+
+def test_full_results_with_profiles_equal_one_by_one():
+    base = DEMO.alternatives[1]
+    alts = [_with_heater(base, w) for w in (8.0, 25.0)]
+    out = solve_batch(alts, profiles=True)
+    for o, alt in zip(out, alts):
+        ref = solve(alt)
+        assert o.together and o.result is not None
+        assert [c.code for c in o.result.checks] == [c.code for c in ref.checks]
+        for col, values in ref.profile.columns().items():
+            got = o.result.profile.columns()[col]
+            assert all(_close(float(a), float(b)) for a, b in zip(values, got)), col
+        assert [s.heat_loss_W for s in o.result.segments] == pytest.approx([s.heat_loss_W for s in ref.segments],
+                                                                            rel=REL)
+
+
+def test_a_failing_variant_carries_its_own_error_and_spares_the_others():
+    base = DEMO.alternatives[2]  # no tracing: a trickle of flow freezes in the winter air
+    good = [base.model_copy(update={"name": "ok 1"}),
+            base.model_copy(update={"feed": base.feed.model_copy(update={"inlet_temperature_K": 340.0}),
+                                    "name": "ok 2"})]
+    bad = base.model_copy(update={"feed": base.feed.model_copy(update={"mass_flow_kg_per_s": 1e-4}), "name": "bad"})
+    alts = [good[0], bad, good[1]]
+    with pytest.raises(CalorunError) as alone:
+        solve(bad)
+    out = solve_batch(alts)
+    assert not out[1].ok
+    assert str(out[1].error) == str(alone.value)
+    _assert_same([out[0], out[2]], good)
+
+
+def test_progress_and_cancel():
+    base = DEMO.alternatives[1]
+    alts = [_with_heater(base, w) for w in (10.0, 20.0, 30.0)]
+    seen = []
+    out = solve_batch(alts, progress=lambda done, total: seen.append((done, total)))
+    assert len(out) == 3 and seen[-1] == (3, 3)
+    assert solve_batch(alts, cancelled=lambda: True) == []
+
+
+def test_volume_flow_feed_is_converted_per_variant():
+    base = DEMO.alternatives[1]
+    alts = [base.model_copy(update={"feed": Feed(**{**base.feed.model_dump(), "mass_flow_kg_per_s": None,
+                                                    "volume_flow_m3_per_s": q}), "name": f"{q}"})
+            for q in (2e-4, 5e-4)]
+    _assert_same(solve_batch(alts), alts)
+
+
+def test_steam_jacket_variants_with_heat_from_media():
+    project = load_project(ROOT / "sample_projects" / "steam_jacketed_heater.json")
+    for base in project.alternatives:
+        alts = [base.model_copy(update={"feed": base.feed.model_copy(update={"mass_flow_kg_per_s": f}),
+                                        "name": f"{f} kg/s"})
+                for f in (0.8 * base.feed.mass_flow_kg_per_s, base.feed.mass_flow_kg_per_s)]
+        out = solve_batch(alts)
+        assert all(o.together for o in out), base.name
+        _assert_same(out, alts)
+
+
+def test_cooled_wall_variants():
+    """A wall held colder than the fluid (a cooler): heat from media is negative, losses elsewhere positive."""
+    from solver.model import FixedWall
+
+    project = load_project(ROOT / "sample_projects" / "steam_jacketed_heater.json")
+    base = project.alternatives[0]
+    alts = []
+    for t_wall in (290.0, 300.0):
+        segs = [s.model_copy(update={"surroundings": FixedWall(wall_temperature_K=t_wall)})
+                if s.surroundings.kind == "fixed_wall" else s for s in base.segments]
+        alts.append(base.model_copy(update={"segments": segs, "name": f"wall {t_wall} K",
+                                            "feed": base.feed.model_copy(update={"inlet_temperature_K": 350.0})}))
+    out = solve_batch(alts)
+    assert all(o.together for o in out)
+    assert all(o.key_figures["heat_input_media_W"] < 0 for o in out)
+    _assert_same(out, alts)
