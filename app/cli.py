@@ -5,12 +5,16 @@
     calorun solve PROJECT.json [--json [--uncertainty]] [--csv DIR] [--units SI|US] [--alternative NAME ...]
     calorun report PROJECT.json -o summary.pdf [--alternative NAME ...] [--units SI|US] [--uncertainty]
     calorun schema                         print the project file's JSON Schema
+    calorun find PROJECT.json --vary PARAMETER --target KIND=VALUE ... [--alternative NAME] [--save-as OUT.json]
+    calorun sweep PROJECT.json --vary PARAMETER [--from X --to Y --points N] [--target ...] [-o table.csv]
     calorun --help                         all of the above; ``calorun COMMAND --help`` for one
 
-``solve`` and ``schema`` never import Qt. Exit codes (:data:`EXIT_CODES_HELP`): 0 every alternative
-solved (and the report written), 1 an alternative could not be solved — ``report`` still writes the
-PDF, which says which and why — or an output could not be written, 2 an invalid project or command
-line. Messages go to stderr in plain words, never a traceback.
+``solve``, ``schema``, ``find`` and ``sweep`` never import Qt. Exit codes (:data:`EXIT_CODES_HELP`): 0 every
+alternative solved (and the report written), 1 an alternative could not be solved — ``report`` still
+writes the PDF, which says which and why — or an output could not be written, 2 an invalid project or
+command line. ``find`` (:data:`FIND_EXIT_CODES_HELP`): 1 when no value meets every target; ``sweep``
+(:data:`SWEEP_EXIT_CODES_HELP`): 1 when no variant could be solved. Messages go to stderr in plain
+words, never a traceback.
 """
 
 from __future__ import annotations
@@ -32,7 +36,36 @@ EXIT_CODES_HELP = (
     "2 an invalid project file or command line. Messages go to stderr."
 )
 
-SUBCOMMANDS = ("solve", "report", "schema")
+FIND_EXIT_CODES_HELP = (
+    "exit codes: 0 a value meets every target (and --save-as written); 1 no value in the range meets every "
+    "target (the reason is printed in plain words) or an output could not be written; 2 an invalid project file "
+    "or command line (the message names the option and the value). Messages go to stderr."
+)
+SWEEP_EXIT_CODES_HELP = (
+    "exit codes: 0 the sweep ran (variants that could not be solved are marked in the table) and its outputs "
+    "were written; 1 no variant could be solved, the variant picked could not be solved, or an output could not "
+    "be written; 2 an invalid project file or command line (the message names the option and the value). "
+    "Messages go to stderr."
+)
+PARAMETER_HELP = (
+    "what to vary: heater_output, insulation_thickness, mass_flow, volume_flow, bore, inlet_temperature, "
+    "steam_pressure, medium_temperature or segment_length; after a colon the segments by number, range or name "
+    "(heater_output:2-3, insulation_thickness:all, segment_length:Road crossing); none: every segment where it applies"
+)
+TARGET_HELP = (
+    "a target to meet, KIND=VALUE (give several): outlet_min, outlet_max, bulk_min (bulk temperature everywhere "
+    "at least), inner_wall_max, surface_max (outer surface at most), heat_loss_per_m_max, pressure_drop_max, "
+    "worst_case_bulk_min, hold_time_min; e.g. surface_max=50C, bulk_min=55C, pressure_drop_max=0.5bar, "
+    "heat_loss_per_m_max=20W/m, hold_time_min=8h"
+)
+VALUE_HELP = (
+    "A bare number is read in the parameter's display unit (SI: heater output W/m of heater, insulation "
+    "thickness mm, mass flow kg/h, volume flow m³/h, inlet or medium temperature °C, steam pressure bar(a), "
+    "segment length m; --units US: W/ft, in, lb/h, gpm, °F, psia, ft); a number with a unit is read in that "
+    "unit (20W/m, 40mm, 1.2kg/s, 3bar(g), 140C); a bore is an NPS size (2, 1-1/2, NPS 3)."
+)
+
+SUBCOMMANDS = ("solve", "report", "schema", "find", "sweep")
 _HELP_FLAGS = ("-h", "--help")
 
 
@@ -83,7 +116,60 @@ def build_parser() -> argparse.ArgumentParser:
     p_report.add_argument("--uncertainty", action="store_true",
                           help="compute uncertainty bands however long the line (by default a very long line gets "
                                "none, and the report says so: they re-solve it about a dozen times)")
-    for p in (p_solve, p_report):
+    p_find = sub.add_parser(
+        "find", prog="calorun find", help="Target Finder: the smallest value of one parameter that meets every target",
+        description="Find the smallest value of one parameter (the smallest standard size for insulation and bore) "
+                    "at which the alternative meets every target; print it, the binding target, the margins and "
+                    "the Key Figures there, or why no value does. " + VALUE_HELP,
+        epilog=FIND_EXIT_CODES_HELP)
+    p_find.add_argument("project", metavar="PROJECT.json")
+    p_find.add_argument("--alternative", metavar="NAME", help="the alternative to start from (default: the baseline)")
+    p_find.add_argument("--vary", required=True, metavar="PARAMETER[:SEGMENTS]", help=PARAMETER_HELP)
+    p_find.add_argument("--target", action="append", required=True, metavar="KIND=VALUE", help=TARGET_HELP)
+    p_find.add_argument("--from", dest="lower", metavar="X", help="lowest value to search (default: a sensible range "
+                        "for the parameter; for sizes, the smallest on the list)")
+    p_find.add_argument("--to", dest="upper", metavar="Y", help="highest value to search")
+    p_find.add_argument("--values", metavar="V,V,...", help="search only these values (comma-separated)")
+    p_find.add_argument("--units", choices=("SI", "US"), default="SI", help="units of the output and of bare numbers "
+                        "(default SI)")
+    p_find.add_argument("--json", action="store_true", help="print machine-readable results (SI)")
+    p_find.add_argument("--save-as", metavar="OUT.json", help="write the project with the answer added as a new "
+                        "alternative that records how it was found (the report says so)")
+
+    p_sweep = sub.add_parser(
+        "sweep", prog="calorun sweep",
+        help="Sweep: solve one parameter over a range (or two as a grid) and tabulate the key figures",
+        description="Solve the alternative at many values of one parameter (or a grid of two) and print the chosen "
+                    "key figures at each, which rows meet every target, and the band where all are met. " + VALUE_HELP,
+        epilog=SWEEP_EXIT_CODES_HELP)
+    p_sweep.add_argument("project", metavar="PROJECT.json")
+    p_sweep.add_argument("--alternative", metavar="NAME", help="the alternative to start from (default: the baseline)")
+    p_sweep.add_argument("--vary", required=True, metavar="PARAMETER[:SEGMENTS]", help=PARAMETER_HELP)
+    p_sweep.add_argument("--from", dest="lower", metavar="X", help="first value (default: a sensible range for the "
+                         "parameter; for sizes, every size on the list)")
+    p_sweep.add_argument("--to", dest="upper", metavar="Y", help="last value")
+    p_sweep.add_argument("--points", type=_count, default=21, metavar="N", help="values from --from to --to, evenly "
+                         "spaced (default 21)")
+    p_sweep.add_argument("--values", metavar="V,V,...", help="sweep these values instead (comma-separated)")
+    p_sweep.add_argument("--vary2", metavar="PARAMETER[:SEGMENTS]", help="a second parameter, swept as a grid with the first")
+    p_sweep.add_argument("--from2", metavar="X", help="first value of the second parameter")
+    p_sweep.add_argument("--to2", metavar="Y", help="last value of the second parameter")
+    p_sweep.add_argument("--points2", type=_count, default=5, metavar="N", help="values of the second parameter (default 5)")
+    p_sweep.add_argument("--values2", metavar="V,V,...", help="values of the second parameter (comma-separated)")
+    p_sweep.add_argument("--figure", action="append", metavar="KEY", help="a key figure to show, by its key (give "
+                         "several; default outlet, min bulk, max inner-wall and max outer-surface temperature); "
+                         "`calorun solve --json` lists the keys")
+    p_sweep.add_argument("--target", action="append", metavar="KIND=VALUE", help=TARGET_HELP)
+    p_sweep.add_argument("-o", "--output", metavar="table.csv", help="write the table as CSV (units in the header)")
+    p_sweep.add_argument("--units", choices=("SI", "US"), default="SI", help="units of the output and of bare numbers "
+                         "(default SI)")
+    p_sweep.add_argument("--json", action="store_true", help="print machine-readable results (SI)")
+    p_sweep.add_argument("--pick", metavar="VALUE", help="with --save-as: the swept value to make a new alternative of")
+    p_sweep.add_argument("--pick2", metavar="VALUE", help="with --save-as on a grid: the second parameter's value")
+    p_sweep.add_argument("--save-as", metavar="OUT.json", help="write the project with the picked variant added as a "
+                         "new alternative that records the sweep (the report draws it)")
+
+    for p in (p_solve, p_report, p_find, p_sweep):
         _add_max_file_mb(p)
 
     sub.add_parser("schema", help="print the project file's JSON Schema")
@@ -112,6 +198,18 @@ def _megabytes(text: str) -> float:
     if not (mb > 0 and mb != float("inf")):
         raise argparse.ArgumentTypeError(f"must be a number of megabytes above 0, got {text!r}")
     return mb
+
+
+def _count(text: str) -> int:
+    from solver.model import MAX_SWEEP_POINTS
+
+    try:
+        n = int(text)
+    except ValueError:
+        n = 0
+    if not 2 <= n <= MAX_SWEEP_POINTS:
+        raise argparse.ArgumentTypeError(f"must be a whole number from 2 to {MAX_SWEEP_POINTS:,}, got {text!r}")
+    return n
 
 
 def _add_max_file_mb(parser: argparse.ArgumentParser) -> None:
@@ -170,6 +268,9 @@ def _headless(argv: list[str]) -> int:
         for line in lines:
             print(f"  {line}", file=sys.stderr)
         return EXIT_INVALID
+
+    if args.command in ("find", "sweep"):
+        return _find(args, project) if args.command == "find" else _sweep(args, project)
 
     names = [a.name for a in project.alternatives]
     chosen = args.alternative or names
@@ -262,6 +363,535 @@ def _headless(argv: list[str]) -> int:
     if not args.json and results:
         print(f"Cautions: {CAUTIONS_BANNER}")
     return EXIT_SOLVER if failed else EXIT_OK
+
+
+# --------------------------------------------------------------------------- find and sweep
+
+
+class _Refused(Exception):
+    """A bad option value; the message names the option and the value (exit code 2)."""
+
+
+def _search_alternative(project, name):
+    if name is None:
+        return project.baseline_alternative()
+    for alt in project.alternatives:
+        if alt.name == name:
+            return alt
+    raise _Refused(f"--alternative: no alternative named {name!r}; the project has {[a.name for a in project.alternatives]}")
+
+
+def _parameter_option(text: str, alt, option: str):
+    from solver.errors import InputError
+    from solver.variants import parse_parameter
+
+    try:
+        return parse_parameter(text, alt)
+    except InputError as exc:
+        raise _Refused(f"{option}: {exc.reason}, got {text!r}") from None
+
+
+def _target_options(texts) -> list:
+    from solver.errors import CalorunError, InputError
+    from solver.target_finder import parse_target
+
+    targets = []
+    for text in texts or ():
+        try:
+            targets.append(parse_target(text))
+        except (CalorunError, ValueError) as exc:
+            reason = exc.reason if isinstance(exc, InputError) else str(exc)
+            raise _Refused(f"--target: cannot read {text!r}: {reason}") from None
+    return targets
+
+
+def _value_option(text: str, parameter, system: str, option: str):
+    """A typed value in SI: a bare number in the parameter's display unit, a number with its unit, or a
+    bore's NPS size (its table key, e.g. "1-1/2")."""
+    import re
+
+    from app.units import UnitParseError, parse
+    from solver.errors import InputError
+
+    if parameter.kind == "bore":
+        from solver.catalogue import normalise_nps
+
+        try:
+            return normalise_nps(re.sub(r"^\s*nps\s*", "", text, flags=re.IGNORECASE).strip(), field=option)
+        except InputError as exc:
+            raise _Refused(f"{option}: {text!r} is not a nominal pipe size ({exc.reason})") from None
+    try:
+        return parse(text, parameter.quantity, system, field=option)
+    except UnitParseError as exc:
+        raise _Refused(str(exc)) from None
+
+
+def _values_option(text: str, parameter, system: str, option: str) -> list:
+    """Comma-separated values, in ascending order (sizes in the order of their list), each once."""
+    values = [_value_option(part.strip(), parameter, system, option) for part in text.split(",") if part.strip()]
+    if not values:
+        raise _Refused(f"{option}: give at least one value, got {text!r}")
+    if parameter.kind == "bore":
+        from solver.catalogue import nps_sizes
+
+        order = {nps: i for i, nps in enumerate(nps_sizes())}
+        return sorted(set(values), key=lambda v: order.get(v, 0))
+    return sorted(set(values))
+
+
+def _range_options(parameter, alt, system: str, lower, upper, suffix: str = ""):
+    """(low, high) in SI from --from/--to (each default the parameter's own range), checked low < high."""
+    low, high = parameter.default_range(alt)
+    if lower is not None:
+        low = _value_option(lower, parameter, system, f"--from{suffix}")
+    if upper is not None:
+        high = _value_option(upper, parameter, system, f"--to{suffix}")
+    if not low < high:
+        from app.reporting.search import value_text
+
+        raise _Refused(f"--from{suffix}/--to{suffix}: the first value must be below the last, got "
+                       f"{value_text(parameter, low, system)} to {value_text(parameter, high, system)}")
+    return low, high
+
+
+def _sweep_values(parameter, alt, system: str, values, lower, upper, points: int, suffix: str = "") -> list:
+    """The values a sweep solves: those given; for sizes, those on the list (between --from and --to when
+    given); else ``points`` evenly spaced from --from to --to."""
+    import numpy as np
+
+    if values:
+        return _values_option(values, parameter, system, f"--values{suffix}")
+    if parameter.discrete:
+        sizes = parameter.standard_values(alt)
+        if parameter.kind == "bore":
+            first = sizes.index(_value_option(lower, parameter, system, f"--from{suffix}")) if lower else 0
+            last = sizes.index(_value_option(upper, parameter, system, f"--to{suffix}")) if upper else len(sizes) - 1
+            chosen = sizes[first:last + 1]
+        else:
+            low, high = _range_options(parameter, alt, system, lower, upper, suffix)
+            chosen = [v for v in sizes if low * (1 - 1e-9) <= v <= high * (1 + 1e-9)]
+        if not chosen:
+            raise _Refused(f"--from{suffix}/--to{suffix}: no standard size lies between {lower} and {upper}")
+        return chosen
+    low, high = _range_options(parameter, alt, system, lower, upper, suffix)
+    return [float(v) for v in np.linspace(low, high, points)]
+
+
+def _searched_words(parameter, values, system: str) -> str:
+    from app.reporting.search import value_text
+
+    if parameter.discrete:
+        return (f"{len(values)} standard sizes from {value_text(parameter, values[0], system)} to "
+                f"{value_text(parameter, values[-1], system)}")
+    if len(values) == 1:
+        return value_text(parameter, values[0], system)
+    return (f"{len(values):,} values from {value_text(parameter, values[0], system)} to "
+            f"{value_text(parameter, values[-1], system)}")
+
+
+def _finite_or_none(figures):
+    import math
+
+    if not figures:
+        return figures
+    return {k: (v if not isinstance(v, float) or math.isfinite(v) else None) for k, v in figures.items()}
+
+
+def _with_new_alternative(project, alt):
+    """The project with ``alt`` added, named so no name repeats; validated again (the model's limits)."""
+    from app.reporting.search import unique_name
+    from solver.model import Project
+
+    name = unique_name([a.name for a in project.alternatives], alt.name)
+    data = project.model_dump()
+    data["alternatives"].append({**alt.model_dump(), "name": name})
+    return Project.model_validate(data), name
+
+
+def _save_search(args, project, alt, record) -> tuple[int, str]:
+    """Write the project with ``alt`` (carrying ``record``) added as a new alternative to --save-as; the exit
+    code and the name it was given (made unique)."""
+    from pydantic import ValidationError
+
+    from solver.project_io import save_project
+    from solver.safe_write import WriteRefused
+
+    from solver.model import TEXT_MAX_CHARS
+
+    how = "Found by the Target Finder" if record.tool == "Target Finder" else "Picked from a Sweep"
+    words = (f"{how}, starting from “{record.base_alternative}”: {record.parameter_text or 'the parameter'} set to "
+             f"{record.value_text}." + (f" The alternative it started from: {alt.description}" if alt.description else ""))
+    try:
+        new_project, name = _with_new_alternative(
+            project, alt.model_copy(update={"origin": record, "description": words[:TEXT_MAX_CHARS]}))
+    except ValidationError as exc:
+        print(f"calorun: --save-as: the new alternative cannot be added: {exc.errors()[0].get('msg', exc)}",
+              file=sys.stderr)
+        return EXIT_SOLVER, ""
+    try:
+        save_project(new_project, args.save_as)
+    except (WriteRefused, OSError) as exc:
+        print(f"calorun: cannot write {args.save_as}: {exc}", file=sys.stderr)
+        return EXIT_SOLVER, ""
+    if not args.json:
+        print(f"New alternative {name!r} (with how it was found) written to {args.save_as}")
+    return EXIT_OK, name
+
+
+def _wrapped(label: str, text: str, width: int = 12) -> list[str]:
+    lines = textwrap.wrap(text, 100 - width - 4) or [""]
+    return [f"  {label.ljust(width)}{lines[0]}", *(f"  {' ' * width}{line}" for line in lines[1:])]
+
+
+def _find(args, project) -> int:
+    """``calorun find``: the Target Finder on one alternative; exit 1 when no value meets the targets."""
+    from app.reporting.search import margin_text, target_words, value_text
+    from solver.errors import CalorunError, InputError
+    from solver.model import SearchRecord
+    from solver.results import CAUTIONS, CAUTIONS_BANNER
+
+    system = args.units
+    try:
+        alt = _search_alternative(project, args.alternative)
+        parameter = _parameter_option(args.vary, alt, "--vary")
+        targets = _target_options(args.target)
+        lower = _value_option(args.lower, parameter, system, "--from") if args.lower is not None else None
+        upper = _value_option(args.upper, parameter, system, "--to") if args.upper is not None else None
+        values = _values_option(args.values, parameter, system, "--values") if args.values else None
+        if lower is not None and upper is not None and not parameter.discrete and not lower < upper:
+            raise _Refused(f"--from/--to: the first value must be below the last, got {args.lower!r} to {args.upper!r}")
+        if parameter.kind == "bore" and (lower is not None or upper is not None):  # sizes are texts: trim the list
+            values = _sweep_values(parameter, alt, system, args.values, args.lower, args.upper, 2)
+            lower = upper = None
+    except _Refused as exc:
+        print(f"calorun: {exc}", file=sys.stderr)
+        return EXIT_INVALID
+
+    from solver.target_finder import find
+
+    design = project.design_cases  # find solves the design cases only for the targets that need them
+    try:
+        found = find(alt, parameter, targets, lower=lower, upper=upper, design=design, values=values)
+    except InputError as exc:
+        print(f"calorun: {args.project}: {exc}", file=sys.stderr)
+        return EXIT_INVALID
+    except CalorunError as exc:
+        print(f"calorun: {args.project}: the search stopped: {exc}", file=sys.stderr)
+        return EXIT_SOLVER
+
+    from solver.target_finder import figures_of
+
+    figures = figures_of(found.result) if found.result is not None else found.key_figures  # design figures too
+    margins = {target_words(t, system): (t.margin(figures) if figures else None) for t in targets}
+    binding = target_words(found.binding, system) if found.binding is not None else ""
+    shown = value_text(parameter, found.value, system) if found.feasible and found.value is not None else ""
+    if args.json:
+        out = {
+            "project": project.name, "alternative": alt.name, "parameter": parameter.to_dict(),
+            "parameter_text": parameter.label(alt), "searched": found.searched,
+            "targets": [{**t.to_dict(), "text": target_words(t, system)} for t in targets],
+            "feasible": bool(found.feasible), "value": found.value if found.feasible else None, "value_text": shown,
+            "binding": binding or None, "margins": _finite_or_none(margins), "key_figures": _finite_or_none(figures),
+            "explanation": found.explanation, "evaluations": found.evaluations,
+            "saved_as": None, "cautions": list(CAUTIONS),
+        }
+    else:
+        print(f"Target Finder — alternative {alt.name!r}")
+        for line in (_wrapped("Varied", parameter.label(alt)) + _wrapped("Searched", found.searched)
+                     + _wrapped("Targets", "; ".join(margins))):
+            print(line)
+    if not found.feasible:
+        if args.json:
+            print(json.dumps(out, indent=1))
+        else:
+            print("  No value meets every target.")
+            for line in _wrapped("Why", found.explanation):
+                print(line)
+        print(f"calorun: no value of {parameter.label(alt)} meets every target"
+              + (f" (nothing written to {args.save_as})" if args.save_as else ""), file=sys.stderr)
+        return EXIT_SOLVER
+
+    if not args.json:
+        for line in (_wrapped("Found", f"{shown}  ({found.evaluations} solves)") + _wrapped("Binding", binding or "—")):
+            print(line)
+        for i, (text, margin) in enumerate(margins.items()):
+            label = "Margins" if i == 0 else ""
+            print(f"  {label.ljust(12)}{margin_text(_target_by_text(targets, text, system), margin, system).ljust(10)}"
+                  f"  {text}")
+        for line in _wrapped("", found.explanation):
+            print(line)
+        print()
+        if found.result is not None:
+            print(key_figures_table(found.result, system, targets=project.targets))
+            print()
+    code = EXIT_OK
+    if args.save_as:
+        record = SearchRecord.model_validate({
+            **found.record(), "parameter_text": parameter.label(alt), "explanation": found.explanation,
+            "value": found.value, "target_limits": [t.to_dict() for t in targets]})
+        code, name = _save_search(args, project, found.alternative, record)
+        if args.json and code == EXIT_OK:
+            out["saved_as"] = {"path": args.save_as, "alternative": name}
+    if args.json:
+        print(json.dumps(out, indent=1))
+    else:
+        print(f"Cautions: {CAUTIONS_BANNER}")
+    return code
+
+
+def _target_by_text(targets, text: str, system: str):
+    from app.reporting.search import target_words
+
+    return next((t for t in targets if target_words(t, system) == text), None)
+
+
+def _sweep(args, project) -> int:
+    """``calorun sweep``: one parameter over a range (two as a grid); a table, CSV or JSON; a pick saved."""
+    from app.reporting.search import (
+        DEFAULT_FIGURES,
+        feasible_words,
+        meets_all,
+        sweep_record,
+        target_figure,
+        target_words,
+        value_text,
+    )
+    from solver.model import MAX_SWEEP_POINTS
+    from solver.results import CAUTIONS, CAUTIONS_BANNER, KEY_FIGURE_BY_KEY
+    from solver.target_finder import DESIGN_FIGURE_LABELS, figures_of
+
+    from app.texts import shorten
+
+    system = args.units
+    try:
+        alt = _search_alternative(project, args.alternative)
+        parameter = _parameter_option(args.vary, alt, "--vary")
+        parameter2 = _parameter_option(args.vary2, alt, "--vary2") if args.vary2 else None
+        if parameter2 is None and any(v is not None for v in (args.from2, args.to2, args.values2, args.pick2)):
+            raise _Refused("--from2/--to2/--values2/--pick2: give the second parameter with --vary2 first")
+        targets = _target_options(args.target)
+        figures = list(dict.fromkeys(args.figure or DEFAULT_FIGURES))
+        for key in figures:
+            if key not in KEY_FIGURE_BY_KEY and key not in DESIGN_FIGURE_LABELS:
+                raise _Refused(f"--figure: no key figure {key!r}; the keys are "
+                               f"{', '.join([*KEY_FIGURE_BY_KEY, *DESIGN_FIGURE_LABELS])}")
+        values = _sweep_values(parameter, alt, system, args.values, args.lower, args.upper, args.points)
+        values2 = (_sweep_values(parameter2, alt, system, args.values2, args.from2, args.to2, args.points2, "2")
+                   if parameter2 is not None else None)
+        total = len(values) * (len(values2) if values2 else 1)
+        if total > MAX_SWEEP_POINTS:
+            raise _Refused(f"--points/--points2: at most {MAX_SWEEP_POINTS:,} variants in one sweep, got {total:,}")
+        if (args.pick is not None or args.pick2 is not None) and not args.save_as:
+            raise _Refused("--pick: give --save-as OUT.json too (the picked variant becomes a new alternative there)")
+        if args.save_as and args.pick is None:
+            raise _Refused("--save-as: give --pick VALUE too (the swept value to make a new alternative of)")
+        if args.save_as and parameter2 is not None and args.pick2 is None:
+            raise _Refused("--save-as: a grid sweep needs --pick2 VALUE too")
+        pick = _value_option(args.pick, parameter, system, "--pick") if args.pick is not None else None
+        pick2 = _value_option(args.pick2, parameter2, system, "--pick2") if args.pick2 is not None else None
+    except _Refused as exc:
+        print(f"calorun: {exc}", file=sys.stderr)
+        return EXIT_INVALID
+
+    from solver.errors import CalorunError
+    from solver.sweep import sweep, sweep_csv
+
+    needs_design = any(t.needs_design for t in targets) or any(k in DESIGN_FIGURE_LABELS for k in figures)
+    design = project.design_cases if needs_design else None  # the design cases cost several solves per variant
+    show_progress = sys.stderr.isatty() and not args.json
+    variants: list = []
+    try:
+        for chunk in sweep(alt, parameter, values, parameter2=parameter2, values2=values2, design=design):
+            variants.extend(chunk)
+            if show_progress:
+                print(f"\rSolving: {len(variants):,} of {total:,} variants", end="", file=sys.stderr, flush=True)
+    except CalorunError as exc:
+        print(f"calorun: {args.project}: the sweep stopped: {exc}", file=sys.stderr)
+        return EXIT_SOLVER
+    finally:
+        if show_progress:
+            print("\r" + " " * 48 + "\r", end="", file=sys.stderr, flush=True)
+
+    solved = [v for v in variants if v.outcome.ok]
+    met = [meets_all(targets, figures_of(v)) if targets else None for v in variants]
+    shown_keys = list(dict.fromkeys([*figures, *(target_figure(t) for t in targets if target_figure(t))]))
+
+    def words(p, x):
+        return value_text(p, x, system)
+
+    bands = []
+    if targets:
+        if parameter2 is None:
+            bands.append(feasible_words([v.value for v in variants], met, lambda x: words(parameter, x)))
+        else:
+            for w in values2:
+                rows = [(v.value, m) for v, m in zip(variants, met) if v.value2 == w]
+                bands.append(f"with {words(parameter2, w)}: "
+                             + feasible_words([r[0] for r in rows], [r[1] for r in rows], lambda x: words(parameter, x)))
+
+    code = EXIT_OK
+    if args.output:
+        from solver.safe_write import WriteRefused, atomic_write_text
+
+        try:
+            from app.units import unit
+
+            atomic_write_text(args.output, sweep_csv(variants, parameter, figures, system=system, parameter2=parameter2,
+                                                     unit_of=unit))
+        except (WriteRefused, OSError) as exc:
+            print(f"calorun: cannot write {args.output}: {exc}", file=sys.stderr)
+            code = EXIT_SOLVER
+    if args.json:
+        out = {
+            "project": project.name, "alternative": alt.name,
+            "parameter": parameter.to_dict(), "parameter_text": parameter.label(alt),
+            "parameter2": parameter2.to_dict() if parameter2 is not None else None,
+            "parameter2_text": parameter2.label(alt) if parameter2 is not None else None,
+            "targets": [{**t.to_dict(), "text": target_words(t, system)} for t in targets],
+            "figures": shown_keys,
+            "points": [{"value": v.value, "value2": v.value2,
+                        "key_figures": _finite_or_none({k: (figures_of(v) or {}).get(k) for k in shown_keys})
+                        if v.outcome.ok else None,
+                        "meets_targets": m, "error": None if v.outcome.ok else str(v.outcome.error)}
+                       for v, m in zip(variants, met)],
+            "feasible": bands, "saved_as": None, "cautions": list(CAUTIONS),
+        }
+    else:
+        print(f"Sweep — alternative {alt.name!r}")
+        for line in _wrapped("Varied", parameter.label(alt) + (f"; {parameter2.label(alt)}" if parameter2 else "")):
+            print(line)
+        searched = _searched_words(parameter, values, system)
+        if parameter2 is not None:
+            searched += f" × {_searched_words(parameter2, values2, system)}"
+        for line in _wrapped("Searched", searched):
+            print(line)
+        if targets:
+            for line in _wrapped("Targets", "; ".join(target_words(t, system) for t in targets)):
+                print(line)
+        if not args.output:
+            print(_sweep_table(variants, met, parameter, parameter2, figures, system, bool(targets)))
+        else:
+            print(f"Table written: {args.output} ({len(variants):,} rows)")
+        for band in bands:
+            for line in _wrapped("Feasible", band[:1].upper() + band[1:] + "."):
+                print(line)
+        failed = len(variants) - len(solved)
+        if failed:
+            first = next(v for v in variants if not v.outcome.ok)
+            print(f"  {failed:,} of {len(variants):,} variants could not be solved; the first "
+                  f"({words(parameter, first.value)}): {shorten(str(first.outcome.error), 300)}")
+    if not solved:
+        print(f"calorun: {args.project}: no variant of the sweep could be solved", file=sys.stderr)
+        if args.json:
+            print(json.dumps(out, indent=1))
+        return EXIT_SOLVER
+
+    if args.save_as:
+        from app.reporting.search import _same
+
+        picked = next((v for v in variants if _same(v.value, pick) and (parameter2 is None or _same(v.value2, pick2))),
+                      None)
+        if picked is None:
+            offered = ", ".join(words(parameter, v) for v in values[:12]) + (", …" if len(values) > 12 else "")
+            print(f"calorun: --pick: the sweep has no variant at {args.pick!r}"
+                  + (f" and {args.pick2!r}" if parameter2 is not None else "") + f"; its values are {offered}",
+                  file=sys.stderr)
+            return EXIT_INVALID
+        if not picked.outcome.ok or picked.alternative is None:
+            print(f"calorun: --pick: the variant at {args.pick!r} could not be solved: {picked.outcome.error}",
+                  file=sys.stderr)
+            return EXIT_SOLVER
+        searched = _searched_words(parameter, values, system)
+        if parameter2 is not None:
+            searched += f" × {parameter2.label(alt)}: {_searched_words(parameter2, values2, system)}"
+        record = sweep_record(alt, parameter, variants, targets=targets, pick=picked.value, pick2=picked.value2,
+                              figures=figures, searched=searched, system=system, parameter2=parameter2)
+        from solver.target_finder import answer_name
+
+        name = answer_name(alt, parameter, picked.value)  # named after what changed, as the finder names
+        if parameter2 is not None:
+            name = f"{name}, {answer_name(alt, parameter2, picked.value2).rpartition(' — ')[2]}"
+        new_alt = picked.alternative.model_copy(update={"name": name[:200]})
+        saved, name = _save_search(args, project, new_alt, record)
+        code = code if saved == EXIT_OK else saved
+        if args.json and saved == EXIT_OK:
+            out["saved_as"] = {"path": args.save_as, "alternative": name}
+    if args.json:
+        print(json.dumps(out, indent=1))
+    else:
+        print(f"Cautions: {CAUTIONS_BANNER}")
+    return code
+
+
+#: Short column heads of the sweep table for the figures most swept (the label otherwise).
+_SHORT_HEADS = {
+    "outlet_temperature_K": "Outlet", "min_bulk_temperature_K": "Min bulk",
+    "max_inner_wall_temperature_K": "Max inner wall", "max_outer_surface_temperature_K": "Max surface",
+    "pressure_drop_Pa": "Pressure drop", "max_heat_loss_per_length_W_per_m": "Max loss per m",
+    "heat_input_W": "Heat input", "heat_loss_W": "Heat loss", "duty_W": "Heat to fluid",
+    "worst_case_min_bulk_temperature_K": "Worst-case bulk", "hold_time_s": "Hold time",
+}
+
+
+def _sweep_table(variants, met, parameter, parameter2, figures, system: str, with_targets: bool) -> str:
+    """The sweep as a text table: the value(s), the chosen figures (one unit per column, under its head),
+    and whether the row meets every target."""
+    from app.reporting.search import number_text
+    from app.units import display_unit_for, format_value, label
+    from solver.sweep import figure_label
+    from solver.target_finder import figures_of
+
+    specs = [(key, *figure_label(key)) for key in figures]
+    values = [figures_of(v) if v.outcome.ok else None for v in variants]
+    column_units = [display_unit_for([f.get(key) for f in values if f], quantity, system) if quantity != "time"
+                    else None for key, _, quantity in specs]
+    heads = [(_kind_words(parameter), f"[{label(parameter.quantity, system)}]" if parameter.quantity else "[NPS]")]
+    if parameter2 is not None:
+        heads.append((_kind_words(parameter2),
+                      f"[{label(parameter2.quantity, system)}]" if parameter2.quantity else "[NPS]"))
+    heads += [(_SHORT_HEADS.get(key, name), f"[{u.label}]" if u is not None and u.label else "")
+              for (key, name, _), u in zip(specs, column_units)]
+    if with_targets:
+        heads.append(("Targets", ""))
+
+    def bare(p, x):
+        return str(x) if p.kind == "bore" else number_text(x, p.quantity, system)
+
+    def cell(value, quantity, u):
+        if quantity == "time":
+            from app.design_figures import duration_text
+
+            return duration_text(value) if value is not None else "—"
+        return format_value(value, quantity, system, display_unit=u, with_unit=False)
+
+    rows = []
+    for v, figs, ok in zip(variants, values, met):
+        row = [bare(parameter, v.value)]
+        if parameter2 is not None:
+            row.append(bare(parameter2, v.value2))
+        if figs is not None:
+            row += [cell(figs.get(key), quantity, u) for (key, _, quantity), u in zip(specs, column_units)]
+            if with_targets:
+                row.append("\u2713 all met" if ok else "\u2717 missed")
+        else:
+            row += ["not solved"] + [""] * (len(specs) - 1)
+            if with_targets:
+                row.append("—")
+        rows.append(row)
+    table = [[h[0] for h in heads], [h[1] for h in heads], *rows]
+    widths = [max(len(r[i]) for r in table) for i in range(len(heads))]
+    lines = []
+    for r in table:
+        cells = [c.ljust(w) if with_targets and i == len(r) - 1 else c.rjust(w)
+                 for i, (c, w) in enumerate(zip(r, widths))]
+        lines.append("  " + "  ".join(cells).rstrip())
+    return "\n".join(lines)
+
+
+def _kind_words(parameter) -> str:
+    from solver.variants import PARAMETER_KINDS
+
+    return PARAMETER_KINDS.get(parameter.kind, parameter.kind)
 
 
 def project_problems(exc, system: str = "SI") -> tuple[str, list[str]]:

@@ -133,6 +133,15 @@ FIELDS: dict[str, FieldInfo] = {
     "baseline": FieldInfo("Baseline"),
     "format": FieldInfo("File format"),
     "schema_version": FieldInfo("File version"),
+    # SearchRecord, SweepPoint: how a Target Finder or Sweep made an alternative (numbers in SI)
+    "origin": FieldInfo("Search record"),
+    "sweep_points": FieldInfo("Sweep points"),
+    "parameter": FieldInfo("Varied parameter", "dimensionless"),
+    "parameter2": FieldInfo("Second varied parameter", "dimensionless"),
+    "target_limits": FieldInfo("Search targets", "dimensionless"),
+    "value": FieldInfo("Value found", "dimensionless"),
+    "value2": FieldInfo("Second parameter's value", "dimensionless"),
+    "figures": FieldInfo("Key figures at the point", "dimensionless"),
 }
 
 #: (the part of the path the field sits in, field name) -> label where the bare name says too little.
@@ -161,6 +170,7 @@ CONTEXT_FIELDS: dict[tuple[str, str], FieldInfo] = {
     ("heat_sinks", "kind"): FieldInfo("Heat sink"),
     ("heat_sinks", "label"): FieldInfo("Heat sink label"),
     ("design_cases", "design_margin"): FieldInfo("Project design margin", "fraction"),
+    ("sweep_points", "value"): FieldInfo("Swept value", "dimensionless"),
 }
 
 #: Parts of a path that set the context of the fields below them (lists, sub-models, union tags).

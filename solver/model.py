@@ -817,6 +817,61 @@ class Segment(_Model):
         return self
 
 
+# --------------------------------------------------------------------------- where an alternative came from
+
+# A Sweep kept with the alternative it made: 2 000 points is a fine 1-D sweep or a 45 × 45 grid; each
+# point keeps at most 60 figures (Result.key_figures() has about 35). A 2 000-point record with every
+# figure is about 2 MB of JSON, inside the default file limit (solver.project_io.DEFAULT_MAX_FILE_MB).
+MAX_SWEEP_POINTS = 2_000
+MAX_POINT_FIGURES = 60
+# Targets of one search: the finder offers nine kinds, each at most once or twice.
+MAX_SEARCH_TARGETS = 20
+# A parameter as its to_dict() gives it: a kind and the segments it applies to (one key each, a few more spare).
+MAX_PARAMETER_KEYS = 8
+
+# A key-figure key as Result.key_figures() names it (``outlet_temperature_K``), or a parameter key.
+FigureKey = Annotated[str, Field(pattern=r"^[A-Za-z][A-Za-z0-9_]{0,63}$")]
+# A swept value: a number in SI (W/m, m, kg/s, m³/s, K, Pa) or a standard size's name ("2", "1-1/2" for NPS).
+SweptValue = Union[float, Name]
+# What a parameter's to_dict() holds: its kind, the segments (0-based) it applies to, a segment's name.
+ParameterEntry = Union[Name, int, float, bool, None,
+                       Annotated[list[Annotated[int, Field(ge=0, lt=MAX_SEGMENTS)]], Field(max_length=MAX_SEGMENTS)]]
+
+
+class SweepPoint(_Model):
+    """One variant of a Sweep: the value(s) it was solved at and its key figures (SI, keys of
+    ``Result.key_figures()``); a variant that could not be solved keeps no figures."""
+
+    value: SweptValue
+    value2: Optional[SweptValue] = Field(None, description="the second parameter's value of a grid sweep")
+    figures: Annotated[dict[FigureKey, float], Field(max_length=MAX_POINT_FIGURES)] = Field(default_factory=dict)
+
+
+class SearchRecord(_Model):
+    """How a Target Finder answer or a point picked from a Sweep was found, kept with the alternative
+    it became (``Alternative.origin``) so the report can say what was searched, over what range,
+    against which targets, which one binds and the value found. Words are as the tool wrote them (the
+    unit system of the search); numbers are SI."""
+
+    tool: Literal["Target Finder", "Sweep"]
+    base_alternative: Name = Field(description="the alternative the search started from")
+    parameter: Annotated[dict[FigureKey, ParameterEntry], Field(max_length=MAX_PARAMETER_KEYS)] = Field(
+        description="what was varied, as solver.variants.Parameter.to_dict() gives it")
+    parameter_text: Text = ""
+    parameter2: Optional[Annotated[dict[FigureKey, ParameterEntry], Field(max_length=MAX_PARAMETER_KEYS)]] = None
+    parameter2_text: Text = ""
+    searched: Text = Field("", description="what was searched, over what range, in plain words")
+    targets: Annotated[list[Text], Field(max_length=MAX_SEARCH_TARGETS)] = Field(default_factory=list)
+    target_limits: Annotated[list[dict[FigureKey, Union[Name, float]]], Field(max_length=MAX_SEARCH_TARGETS)] = Field(
+        default_factory=list, description="the targets as solver.target_finder.Target.to_dict() gives them (SI)")
+    binding: Text = Field("", description="the target with the least margin at the value found; '' if none")
+    value_text: Name = ""
+    value: Optional[SweptValue] = None
+    value2: Optional[SweptValue] = None
+    explanation: Text = ""
+    sweep_points: Annotated[list[SweepPoint], Field(max_length=MAX_SWEEP_POINTS)] = Field(default_factory=list)
+
+
 class Alternative(_Model):
     """One complete design of the line: fluid, feed, segments in flow order, limits."""
 
@@ -826,6 +881,9 @@ class Alternative(_Model):
     feed: Feed = Field(default_factory=Feed)
     segments: list[Segment] = Field(min_length=1, max_length=MAX_SEGMENTS)
     limits: Limits = Field(default_factory=Limits)
+    # written only when there is one, so a file without search records stays as earlier versions wrote it
+    origin: Optional[SearchRecord] = Field(None, description="how a Target Finder or Sweep made it; None = by hand",
+                                           exclude_if=lambda value: value is None)
 
     required_in_file: ClassVar[tuple[str, ...]] = ("fluid", "feed")
 

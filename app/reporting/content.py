@@ -17,6 +17,7 @@ from typing import Optional, Sequence
 from app import comparison, heat_path, heat_path_style, units
 from app.reporting.chart import alternative_chart, overlay_chart
 from app.reporting.design import design_section, property_table
+from app.reporting.search import search_section
 from app.reporting.pdf import Body
 from app.style import (
     ACCENT,
@@ -289,6 +290,7 @@ def _alternative_section(doc: Body, project: Project, o: Outcome, system: str, b
         doc.add(f"<p>{esc(capped(alt.description, what='description'))}</p>")
     if r is not None:
         doc.add(f"<p><b>Verdict:</b> {verdict_html(comparison.design_verdict(project.targets, r))}</p>")
+    search_section(doc, alt, system, project)  # how a Target Finder or Sweep made it (nothing for one made by hand)
     _feed_and_segments(doc, alt, r, system)
     if r is None:
         doc.box(f"<b>This alternative could not be solved.</b><br>{esc(capped(o.error, what='message'))}",
