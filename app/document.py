@@ -169,6 +169,22 @@ def run_hold_time(result) -> str:
     return ""
 
 
+def run_search(work, what: str, words=str) -> str:
+    """Run ``work()`` (a Target Finder or Sweep search, on a worker thread); "" or the error. Never
+    raises: a CalorunError gives ``words(exc)``, any other exception is a bug, logged with its traceback
+    and reported as "internal error (…)" — the same boundary as :func:`run_solver`."""
+    from solver.errors import CalorunError
+
+    try:
+        work()
+    except CalorunError as exc:
+        return words(exc)
+    except Exception as exc:  # noqa: BLE001 - the boundary between the app and a solver bug: log it, keep running
+        log.exception("internal error in %s", what)
+        return f"internal error ({type(exc).__name__}: {exc})"
+    return ""
+
+
 class _HoldJob(QRunnable):
     """The Hold Time of a result solved inline on the GUI thread, worked out on the worker."""
 

@@ -69,6 +69,8 @@ class _WrappingLabel(QLabel):
 PROJECT_FILTER = "Calorun project (*.json);;All files (*)"
 AUTOSAVE_INTERVAL_MS = 60_000
 AUTOSAVE_AFTER_EDIT_MS = 3_000
+#: height the Target Finder and Sweep docks are given when shown [px]
+TOOL_HEIGHT = 400
 
 
 def load_demo_project():
@@ -253,6 +255,7 @@ class MainWindow(QMainWindow):
         self.tabifyDockWidget(self.checks_dock, self.hold_time_dock)
         self.checks_dock.raise_()  # the Checks first; the Hold Time one tab away (View menu)
         self.hold_time_dock.visibilityChanged.connect(self._on_hold_time_shown)
+        self._build_design_tools()
         self.splitDockWidget(self.feed_dock, self.card_dock, Qt.Vertical)
         # the strip spans the full width; the side columns sit below it
         self.setCorner(Qt.TopLeftCorner, Qt.TopDockWidgetArea)
@@ -274,7 +277,7 @@ class MainWindow(QMainWindow):
         """
         comparing = self.centre_tabs.widget(index) is self.side_by_side
         docks = [self.line_strip_dock, self.feed_dock, self.card_dock, self.key_dock, self.alternatives_dock,
-                 self.checks_dock, self.hold_time_dock]
+                 self.checks_dock, self.hold_time_dock, self.finder_dock, self.sweep_dock]
         if comparing and self._docks_before_comparison is None:
             self._docks_before_comparison = [d for d in docks if not d.isHidden()]
             for d in self._docks_before_comparison:
@@ -285,6 +288,54 @@ class MainWindow(QMainWindow):
             for d in self._docks_before_comparison:
                 d.show()
             self._docks_before_comparison = None
+
+    def _build_design_tools(self) -> None:
+        """Target Finder and Sweep: tabs beside the Line Strip, across the full width (a plot and three columns
+        of set-up need it), hidden until asked for (Tools menu, View menu) so the main screen stays as it is;
+        in front, a tool takes the height it needs and the strip is one tab away."""
+        from app.panels.sweep_panel import SweepPanel
+        from app.panels.target_finder_panel import TargetFinderPanel
+
+        self.target_finder = TargetFinderPanel(self.doc)
+        self.sweep_panel = SweepPanel(self.doc)
+        self.finder_dock = self._dock("Target Finder", self.target_finder, Qt.TopDockWidgetArea)
+        self.sweep_dock = self._dock("Sweep", self.sweep_panel, Qt.TopDockWidgetArea)
+        self.tabifyDockWidget(self.line_strip_dock, self.finder_dock)
+        self.tabifyDockWidget(self.finder_dock, self.sweep_dock)
+        for dock in (self.finder_dock, self.sweep_dock):
+            dock.hide()
+            dock.visibilityChanged.connect(lambda visible, d=dock: QTimer.singleShot(0, lambda: self._tool_shown(d)))
+        # (once a tool is closed the dock layout settles after its own signal: the strip's says when)
+        self.line_strip_dock.visibilityChanged.connect(
+            lambda visible: visible and QTimer.singleShot(0, lambda: self._tool_shown(self.finder_dock)))
+        self.line_strip_dock.raise_()
+
+    def show_tool(self, dock: QDockWidget) -> None:
+        """Tools ▸ Target Finder… / Sweep…: show the dock (a tab beside the Line Strip) and bring it to the front."""
+        if self.centre_tabs.currentWidget() is self.side_by_side:
+            self.centre_tabs.setCurrentWidget(self.profiles)  # the editing panels and the tools come back
+        strip = self.line_strip_dock
+        if strip.isVisible() and not strip.visibleRegion().isEmpty():
+            self._strip_height = strip.height()  # given back when the tools are closed
+        dock.show()
+        dock.raise_()
+        QTimer.singleShot(0, lambda: self._grow_bottom(dock, TOOL_HEIGHT))
+
+    def _grow_bottom(self, dock: QDockWidget, height: int) -> None:
+        if dock.isVisible() and not dock.visibleRegion().isEmpty() and not dock.isFloating() and dock.height() < height:
+            self.resizeDocks([dock], [height], Qt.Vertical)
+
+    def _tool_shown(self, dock: QDockWidget) -> None:
+        """A tool in front gets its height; back on the Line Strip (or both tools closed), the strip its own."""
+        if dock.isVisible() and not dock.visibleRegion().isEmpty():
+            self._grow_bottom(dock, TOOL_HEIGHT)
+            self._tool_was_shown = True
+        elif getattr(self, "_tool_was_shown", False) and not any(d.isVisible() and not d.visibleRegion().isEmpty() for d in (self.finder_dock, self.sweep_dock)):
+            strip = self.line_strip_dock
+            height = getattr(self, "_strip_height", None) or strip.sizeHint().height()
+            if strip.isVisible() and not strip.isFloating() and strip.height() > height:
+                self.resizeDocks([strip], [height], Qt.Vertical)  # back to the height it had before
+                self._tool_was_shown = False
 
     def _on_hold_time_shown(self, visible: bool) -> None:
         """Drawn when shown (it waits while out of sight); the plot and its table need more height than
@@ -460,6 +511,14 @@ class MainWindow(QMainWindow):
                      self.checks_dock, self.hold_time_dock):
             view_menu.addAction(dock.toggleViewAction())
         view_menu.addAction(self.banner_bar.toggleViewAction())
+        view_menu.addSeparator()
+        view_menu.addActions([self.finder_dock.toggleViewAction(), self.sweep_dock.toggleViewAction()])
+
+        tools_menu = mb.addMenu("&Tools")
+        self.finder_action = tools_menu.addAction("&Target Finder…", lambda: self.show_tool(self.finder_dock))
+        self.finder_action.setStatusTip("The smallest heater, insulation, bore... that meets the targets")
+        self.sweep_action = tools_menu.addAction("&Sweep…", lambda: self.show_tool(self.sweep_dock))
+        self.sweep_action.setStatusTip("Key figures against one parameter (or two), with the targets and where they are met")
 
         help_menu = mb.addMenu("&Help")
         help_menu.addActions([self.cautions_action, self.about_action])
@@ -838,6 +897,8 @@ class MainWindow(QMainWindow):
             return
         self._autosave_timer.stop()
         self._edit_autosave.stop()
+        self.target_finder.shutdown()
+        self.sweep_panel.shutdown()
         self.doc.shutdown()
         if self.recovery_slot is not None:  # a clean exit leaves no recovery file and no lock
             self.recovery_slot.release(remove_files=True)

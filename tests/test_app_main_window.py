@@ -68,7 +68,7 @@ def test_window_has_real_panels_and_cautions(win):
         assert phrase in text
     assert win.banner.isVisible()
     titles = [a.text().replace("&", "") for a in win.menuBar().actions()]
-    assert titles == ["File", "Edit", "View", "Help"]
+    assert titles == ["File", "Edit", "View", "Tools", "Help"]
 
 
 def test_edit_length_with_unit_updates_model_key_figures_and_plot(win, qtbot):
