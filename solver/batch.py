@@ -20,6 +20,8 @@ methods list are not. ``profiles=True`` gives the full Result, equal to :func:`s
 from __future__ import annotations
 
 import json
+import os
+from concurrent.futures import ThreadPoolExecutor, as_completed
 from dataclasses import dataclass, fields
 from typing import Callable, Optional, Sequence
 
@@ -52,11 +54,12 @@ class BatchOutcome:
 
 def solve_batch(alternatives: Sequence[Alternative], *, profiles: bool = False, design: DesignCases | None = None,
                 progress: Callable[[int, int], None] | None = None,
-                cancelled: Callable[[], bool] | None = None) -> list[BatchOutcome]:
+                cancelled: Callable[[], bool] | None = None, threads: int | None = None) -> list[BatchOutcome]:
     """Solve every alternative; see the module docstring. ``design`` evaluates the design cases too
     (each variant then gets ``result.design``; such variants are solved one by one, with profiles).
     ``progress(done, total)`` is called as variants finish; ``cancelled()`` returning True stops the
-    work early (the outcomes not reached are missing: the list is shorter)."""
+    work early (the outcomes not reached are missing: the list is shorter). ``threads``: how many chunks of
+    stacked variants march at once (None: one per processor core; 1: one after the other)."""
     total = len(alternatives)
     out: list[Optional[BatchOutcome]] = [None] * total
     done = 0
@@ -69,19 +72,40 @@ def solve_batch(alternatives: Sequence[Alternative], *, profiles: bool = False, 
             progress(done, total)
 
     groups, alone = ({}, list(range(total))) if design is not None else _groups(alternatives)
+    chunks = []
     for members in groups.values():
-        if cancelled is not None and cancelled():
-            break
-        for start in range(0, len(members), max(1, MAX_STACK_CELLS // max(1, members[0][1].n))):
-            chunk = members[start:start + max(1, MAX_STACK_CELLS // max(1, members[0][1].n))]
-            solved = _march_together(alternatives, chunk, profiles) if len(chunk) > 1 else None
+        step = max(1, MAX_STACK_CELLS // max(1, members[0][1].n))
+        chunks.extend(members[start:start + step] for start in range(0, len(members), step))
+    alone.extend(i for chunk in chunks if len(chunk) == 1 for i, *_ in chunk)
+    chunks = [c for c in chunks if len(c) > 1]
+    workers = min(len(chunks), threads if threads is not None else (os.cpu_count() or 1))
+    if workers > 1:
+        # numpy lets go of the interpreter lock inside its array operations, which are most of a stacked
+        # march: chunks on threads use the other cores. Each chunk is marched on its own, so the answers
+        # do not depend on the number of threads.
+        with ThreadPoolExecutor(max_workers=workers) as pool:
+            pending = {pool.submit(_march_together, alternatives, chunk, profiles): chunk for chunk in chunks}
+            for future in as_completed(pending):
+                solved = future.result()
+                if solved is None:
+                    alone.extend(i for i, *_ in pending[future])
+                    continue
+                for i, outcome in solved:
+                    finish(i, outcome)
+                if cancelled is not None and cancelled():
+                    for f in pending:
+                        f.cancel()
+                    break
+    else:
+        for chunk in chunks:
+            if cancelled is not None and cancelled():
+                break
+            solved = _march_together(alternatives, chunk, profiles)
             if solved is None:
                 alone.extend(i for i, *_ in chunk)
                 continue
             for i, outcome in solved:
                 finish(i, outcome)
-            if cancelled is not None and cancelled():
-                break
     for i in sorted(alone):
         if cancelled is not None and cancelled():
             break

@@ -162,3 +162,16 @@ def test_cooled_wall_variants():
     assert all(o.together for o in out)
     assert all(o.key_figures["heat_input_media_W"] < 0 for o in out)
     _assert_same(out, alts)
+
+
+def test_answers_do_not_depend_on_chunks_or_threads(monkeypatch):
+    """Chunks of stacked variants may march on several threads: the answers are the same bits either way."""
+    import solver.batch as batch_mod
+
+    base = DEMO.alternatives[1]
+    alts = [_with_heater(base, w) for w in (6.0, 12.0, 18.0, 24.0, 30.0, 36.0, 40.0, 8.0)]
+    one = solve_batch(alts, threads=1)
+    monkeypatch.setattr(batch_mod, "MAX_STACK_CELLS", 2 * 700)  # two variants of the demo per chunk
+    many = solve_batch(alts, threads=3)
+    assert all(o.together for o in many)
+    assert [o.key_figures for o in many] == [o.key_figures for o in one]
