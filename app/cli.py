@@ -545,6 +545,7 @@ def _wrapped(label: str, text: str, width: int = 12) -> list[str]:
 
 def _find(args, project) -> int:
     """``calorun find``: the Target Finder on one alternative; exit 1 when no value meets the targets."""
+    from app import units
     from app.reporting.search import margin_text, target_words, value_text
     from solver.errors import CalorunError, InputError
     from solver.model import SearchRecord
@@ -571,7 +572,8 @@ def _find(args, project) -> int:
 
     design = project.design_cases  # find solves the design cases only for the targets that need them
     try:
-        found = find(alt, parameter, targets, lower=lower, upper=upper, design=design, values=values)
+        found = find(alt, parameter, targets, lower=lower, upper=upper, design=design, values=values,
+                     system=system, formatter=units.search_words)
     except InputError as exc:
         print(f"calorun: {args.project}: {exc}", file=sys.stderr)
         return EXIT_INVALID

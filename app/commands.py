@@ -15,11 +15,12 @@ move, remove, set the baseline. Project fields. New names come from :func:`uniqu
 
 from __future__ import annotations
 
-from typing import Any, Iterable, Mapping, Optional
+from typing import Any, Mapping, Optional
 
 from pydantic import BaseModel
 from PySide6.QtGui import QUndoCommand
 
+from app.texts import unique_name  # the one rule for names the program makes up
 from solver.model import Alternative, Project, Segment
 
 # Readable names for the Edit menu ("Undo Set length of 'Rack run'").
@@ -121,21 +122,6 @@ def updated_model(model: BaseModel, changes: Mapping[str, Any]) -> BaseModel:
     for path, value in changes.items():
         set_path(data, path, value)
     return type(model).model_validate(data)
-
-
-def unique_name(existing: Iterable[str], wanted: str) -> str:
-    """``wanted``, or ``wanted (2)``, ``wanted (3)``... whichever is not taken.
-
-    The one rule for every name the program makes up (new and copied segments and
-    alternatives), so names look alike wherever they come from.
-    """
-    taken = set(existing)
-    if wanted not in taken:
-        return wanted
-    n = 2
-    while f"{wanted} ({n})" in taken:
-        n += 1
-    return f"{wanted} ({n})"
 
 
 class _AlternativeSwap(QUndoCommand):

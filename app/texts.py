@@ -317,3 +317,17 @@ def plus_minus_text(pm, spec: KeyFigure, system: str) -> str:
         return ""
     return "± " + shown
 
+
+def unique_name(existing: Iterable[str], wanted: str) -> str:
+    """``wanted``, or ``wanted (2)``, ``wanted (3)``... whichever is not taken.
+
+    The one rule for every name the program makes up (new and copied segments and
+    alternatives), so names look alike wherever they come from.
+    """
+    taken = set(existing)
+    if wanted not in taken:
+        return wanted
+    n = 2
+    while f"{wanted} ({n})" in taken:
+        n += 1
+    return f"{wanted} ({n})"

@@ -390,6 +390,20 @@ def _trim(text: str) -> str:
     return text.rstrip("0").rstrip(".") if "." in text else text
 
 
+def search_words(value_si: float, quantity: str, system: UnitSystem) -> str:
+    """A value in the Target Finder's and Sweep's words (the formatter they take): a time in hours, a
+    thickness as a size is written ("100 mm", not "100.0 mm"), anything else as :func:`format_value`."""
+    if quantity == "time":
+        return f"{format_number(float(value_si) / 3600.0, digits=3)} h"
+    if not quantity:
+        return str(value_si)
+    text = format_value(value_si, quantity, system)
+    if quantity != "thickness":
+        return text
+    number, sep, rest = text.partition(" ")
+    return _trim(number) + sep + rest
+
+
 def format_exact(value_si: float, quantity: str, system: UnitSystem, digits: int = 5) -> str:
     """A value as a person would type it: up to ``digits`` significant digits, no trailing zeros.
 

@@ -805,8 +805,10 @@ def _find_work(ticket: Ticket, _report) -> None:
     from solver.target_finder import find
 
     i = ticket.inputs
+    # the explanation and the words of the search in the user's units
     ticket.answer = find(i["alternative"], i["parameter"], i["targets"], lower=i.get("lower"),
-                         upper=i.get("upper"), design=i.get("design"))
+                         upper=i.get("upper"), design=i.get("design"), system=i.get("system", "SI"),
+                         formatter=units.search_words)
 
 
 def alternative_combo() -> QComboBox:
@@ -1060,7 +1062,7 @@ class TargetFinderPanel(QWidget):
         self._clear_answer("Searching…")
         design = self.doc.project.design_cases if needs_design(targets) else None
         self.runner.start(_find_work, alternative=alt, parameter=parameter, targets=targets, lower=lower,
-                          upper=upper, design=design)
+                          upper=upper, design=design, system=self.doc.unit_system)
         self.find_button.setEnabled(False)
         self.cancel_button.setEnabled(True)
         self._say(f"Searching {parameter.label(alt).lower()} for '{alt.name}'…", style.INK_MUTED)

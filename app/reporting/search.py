@@ -18,6 +18,7 @@ import re
 from typing import Callable, Optional, Sequence
 
 from app import units
+from app import texts
 from app.texts import esc, shorten
 from solver.model import NAME_MAX_CHARS, MAX_POINT_FIGURES, MAX_SWEEP_POINTS, Alternative, SearchRecord, SweepPoint
 from solver.results import KEY_FIGURE_BY_KEY, KEY_FIGURES
@@ -154,16 +155,8 @@ def feasible_words(values: Sequence, met: Sequence[Optional[bool]], words: Calla
 
 
 def unique_name(existing: Sequence[str], wanted: str) -> str:
-    """``wanted``, or ``wanted (2)``, ``wanted (3)``... whichever is not taken (the rule of
-    app.commands.unique_name, without Qt), kept within the model's name length."""
-    wanted = wanted[:NAME_MAX_CHARS - 6]
-    taken = set(existing)
-    if wanted not in taken:
-        return wanted
-    n = 2
-    while f"{wanted} ({n})" in taken:
-        n += 1
-    return f"{wanted} ({n})"
+    """:func:`app.texts.unique_name`, kept within the model's name length."""
+    return texts.unique_name(existing, wanted[:NAME_MAX_CHARS - 6])
 
 
 def _number_or_text(value):
