@@ -587,6 +587,7 @@ def _find(args, project) -> int:
     margins = {target_words(t, system): (t.margin(figures) if figures else None) for t in targets}
     binding = target_words(found.binding, system) if found.binding is not None else ""
     shown = value_text(parameter, found.value, system) if found.feasible and found.value is not None else ""
+    out: dict = {}  # the JSON answer (with --json)
     if args.json:
         out = {
             "project": project.name, "alternative": alt.name, "parameter": parameter.to_dict(),
@@ -628,17 +629,9 @@ def _find(args, project) -> int:
             print()
     code = EXIT_OK
     if args.save_as:
-        record = SearchRecord.model_validate({
-            **found.record(), "parameter_text": parameter.label(alt), "explanation": found.explanation,
-            "value": found.value, "target_limits": [t.to_dict() for t in targets]})
-        code, name = _save_search(args, project, found.alternative, record)
-        if args.json and code == EXIT_OK:
-            out["saved_as"] = {"path": args.save_as, "alternative": name}
-    if args.json:
-        print(json.dumps(out, indent=1))
-    else:
-        print(f"Cautions: {CAUTIONS_BANNER}")
-    return code
+        record = SearchRecord.model_validate(found.record())
+        code = _save_and_close(args, project, found.alternative, record, out, code)
+    return _close(args, out, code)
 
 
 def _target_by_text(targets, text: str, system: str):
@@ -743,6 +736,7 @@ def _sweep(args, project) -> int:
         except (WriteRefused, OSError) as exc:
             print(f"calorun: cannot write {args.output}: {exc}", file=sys.stderr)
             code = EXIT_SOLVER
+    out: dict = {}  # the JSON answer (with --json)
     if args.json:
         out = {
             "project": project.name, "alternative": alt.name,
@@ -814,10 +808,22 @@ def _sweep(args, project) -> int:
         if parameter2 is not None:
             name = f"{name}, {answer_name(alt, parameter2, picked.value2).rpartition(' — ')[2]}"
         new_alt = picked.alternative.model_copy(update={"name": name[:200]})
-        saved, name = _save_search(args, project, new_alt, record)
-        code = code if saved == EXIT_OK else saved
-        if args.json and saved == EXIT_OK:
-            out["saved_as"] = {"path": args.save_as, "alternative": name}
+        code = _save_and_close(args, project, new_alt, record, out, code)
+    return _close(args, out, code)
+
+
+def _save_and_close(args, project, alt, record, out: dict, code: int) -> int:
+    """Write ``alt`` (with its search record) into ``--save-as``; the exit code after it."""
+    saved, name = _save_search(args, project, alt, record)
+    if args.json and saved == EXIT_OK:
+        out["saved_as"] = {"path": args.save_as, "alternative": name}
+    return code if saved == EXIT_OK else saved
+
+
+def _close(args, out: dict, code: int) -> int:
+    """The end of a search's output: the JSON, or the cautions under the words."""
+    from solver.results import CAUTIONS_BANNER
+
     if args.json:
         print(json.dumps(out, indent=1))
     else:
