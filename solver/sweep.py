@@ -66,6 +66,8 @@ def figure_label(key: str) -> tuple[str, str]:
     except KeyError:
         known = ", ".join([*KEY_FIGURE_BY_KEY, *DESIGN_FIGURE_LABELS])
         raise InputError("figures", key, f"no such figure; known: {known}") from None
+    if kf.part_of:  # "tracing" alone says little in a table: "Heat input: tracing"
+        return f"{KEY_FIGURE_BY_KEY[kf.part_of].label}: {kf.label}", kf.quantity
     return kf.label, kf.quantity
 
 

@@ -186,7 +186,7 @@ def test_sweep_writes_a_csv_with_units_and_one_row_per_value(capsys, tmp_path):
                          "-o", str(table))
     assert code == 0, err
     rows = list(csv.reader(io.StringIO(table.read_text(encoding="utf-8"))))
-    assert rows[0][:3] == ["Heater output [W/m]", "Outlet temperature [°C]", "tracing [kW]"]
+    assert rows[0][:3] == ["Heater output [W/m]", "Outlet temperature [°C]", "Heat input: tracing [kW]"]
     body = rows[1:]
     assert len(body) == 36
     assert [float(r[0]) for r in body] == pytest.approx([5.0 + i for i in range(36)])
