@@ -71,8 +71,9 @@ from solver.model import Alternative, DesignCases, Project, Segment
 
 log = logging.getLogger(__name__)
 
-# documents alive in this process: at interpreter exit each one's worker is stopped and waited for, so
-# no solve thread is still running Python while the interpreter and Qt tear down
+# documents alive in this process (and other owners of a worker: shut_down_at_exit): at interpreter exit
+# each one's worker is stopped and waited for, so no solve thread is still running Python while the
+# interpreter and Qt tear down
 _LIVE_DOCUMENTS: "weakref.WeakSet[Document]" = weakref.WeakSet()
 
 
@@ -83,6 +84,13 @@ def _shut_down_live_documents() -> None:
             doc.shutdown()
         except RuntimeError:
             pass  # its Qt side is already gone, and with it its pool
+
+
+def shut_down_at_exit(owner) -> None:
+    """Have ``owner.shutdown()`` (stop its worker and wait for it) called at interpreter exit, as every
+    Document's is; held weakly, so this keeps nothing alive."""
+    _LIVE_DOCUMENTS.add(owner)
+
 
 #: debounce interval of a burst of edits [ms]
 SOLVE_DEBOUNCE_MS = 30
@@ -185,14 +193,19 @@ def run_search(work, what: str, words=str) -> str:
     return ""
 
 
-class _HoldJob(QRunnable):
-    """The Hold Time of a result solved inline on the GUI thread, worked out on the worker."""
+class TicketJob(QRunnable):
+    """One job of a worker pool: its ticket (plain data: what to do, and the outcome once done) and the sink on
+    the GUI thread it emits the ticket into when done (a queued signal). ``run`` is the subclass's."""
 
-    def __init__(self, ticket: "_HoldTicket", sink: "_SolveSink"):
+    def __init__(self, ticket, sink: QObject):
         super().__init__()
         self.setAutoDelete(True)
         self._ticket = ticket
         self._sink = sink
+
+
+class _HoldJob(TicketJob):
+    """The Hold Time of a result solved inline on the GUI thread, worked out on the worker."""
 
     def run(self) -> None:  # worker thread
         self._ticket.error = run_hold_time(self._ticket.result)
@@ -242,13 +255,7 @@ class _BandsTicket:
         self.handled = False
 
 
-class _BandsJob(QRunnable):
-    def __init__(self, ticket: _BandsTicket, sink: "_SolveSink"):
-        super().__init__()
-        self.setAutoDelete(True)
-        self._ticket = ticket
-        self._sink = sink
-
+class _BandsJob(TicketJob):
     def run(self) -> None:  # worker thread
         t = self._ticket
         if not t.cancelled:
@@ -292,13 +299,7 @@ class _SolveSink(QObject):
     finished = Signal(object)
 
 
-class _SolveJob(QRunnable):
-    def __init__(self, ticket: _Ticket, sink: _SolveSink):
-        super().__init__()
-        self.setAutoDelete(True)
-        self._ticket = ticket
-        self._sink = sink
-
+class _SolveJob(TicketJob):
     def run(self) -> None:  # worker thread (or the GUI thread for an inline solve)
         t = self._ticket
         t.started = True

@@ -144,10 +144,15 @@ def _parsed_colour(hex_colour: str, alpha: int):
 
 def curve_pen(key: str, width: float = 2.0, style: str = "solid"):
     """A cosmetic pen for a plot curve; ``style`` is solid | dash | dot | dashdot."""
+    return colour_pen(CURVE_COLOURS[key], width, style)
+
+
+def colour_pen(colour: str, width: float = 2.0, style: str = "solid"):
+    """A cosmetic pen of ``colour`` (hex) for a plot; ``style`` is solid | dash | dot | dashdot."""
     from PySide6.QtCore import Qt
     from PySide6.QtGui import QPen
 
-    pen = QPen(qcolor(CURVE_COLOURS[key]))
+    pen = QPen(qcolor(colour))
     pen.setWidthF(width)
     pen.setCosmetic(True)
     pen.setStyle(

@@ -15,8 +15,8 @@ from pathlib import Path
 import pytest
 
 ROOT = Path(__file__).resolve().parent.parent
-MODULES = ["app.commands", "app.document", "app.main_window", "app.panels.target_finder_panel",
-           "app.panels.sweep_panel", "app.reporting.search"]
+MODULES = ["app.commands", "app.document", "app.main_window", "app.panels.search_tools",
+           "app.panels.target_finder_panel", "app.panels.sweep_panel", "app.reporting.search"]
 
 
 @pytest.mark.parametrize("module", MODULES)

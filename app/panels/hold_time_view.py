@@ -31,7 +31,7 @@ from PySide6.QtWidgets import (
 )
 
 from app import design_figures, style, units
-from app.panels.profiles import LegendStrip
+from app.panels.profiles import LegendStrip, plain_plot, plot_stack
 from solver.hold_time import BIOT_LIMIT
 
 #: Curves closer than this all along [K] are drawn as one (one would hide the other); the table has each.
@@ -56,19 +56,7 @@ _COLUMN_TIPS = (
 
 
 def _pen(colour: str, dashed: bool) -> QPen:
-    pen = QPen(style.qcolor(colour))
-    pen.setWidthF(2.0)
-    pen.setCosmetic(True)
-    pen.setStyle(Qt.DashLine if dashed else Qt.SolidLine)
-    return pen
-
-
-def _line_pen(colour: str, pen_style) -> QPen:
-    pen = QPen(style.qcolor(colour))
-    pen.setWidthF(1.5)
-    pen.setCosmetic(True)
-    pen.setStyle(pen_style)
-    return pen
+    return style.colour_pen(colour, 2.0, "dash" if dashed else "solid")
 
 
 def coldest_segments(hold, limit: int = MAX_CURVES) -> list[list[int]]:
@@ -123,13 +111,7 @@ class HoldTimeView(QWidget):
         self.graphics = pg.PlotWidget(background=style.PANEL_BG)
         self.graphics.setMinimumHeight(120)  # (in the main window the dock scrolls below this view's minimum)
         self.plot: pg.PlotItem = self.graphics.getPlotItem()
-        self.plot.showGrid(x=True, y=True, alpha=0.25)
-        self.plot.setMenuEnabled(False)
-        self.plot.hideButtons()
-        for name in ("left", "bottom"):
-            ax = self.plot.getAxis(name)
-            ax.setPen(pg.mkPen(style.INK_MUTED))
-            ax.setTextPen(pg.mkPen(style.INK))
+        plain_plot(self.plot)
         self.plot.setLabel("bottom", "Hours since the flow stopped", color=style.INK)
         self.curves: list[tuple[pg.PlotDataItem, pg.PlotDataItem]] = []
         for k in range(MAX_CURVES):
@@ -140,8 +122,8 @@ class HoldTimeView(QWidget):
             self.plot.addItem(on)
             self.curves.append((off, on))
         # the two temperatures are named in the legend strip (with their values), never over the curves
-        self.freezing_line = pg.InfiniteLine(angle=0, movable=False, pen=_line_pen(style.OKABE_ITO["blue"], Qt.DashDotLine))
-        self.limit_line = pg.InfiniteLine(angle=0, movable=False, pen=_line_pen(style.CURVE_COLOURS["limit"], Qt.DotLine))
+        self.freezing_line = pg.InfiniteLine(angle=0, movable=False, pen=style.colour_pen(style.OKABE_ITO["blue"], 1.5, "dashdot"))
+        self.limit_line = pg.InfiniteLine(angle=0, movable=False, pen=style.colour_pen(style.CURVE_COLOURS["limit"], 1.5, "dot"))
         self.cursor = pg.InfiniteLine(angle=90, movable=False,
                                       pen=pg.mkPen(style.CURVE_COLOURS["cursor"], width=1, style=Qt.DotLine))
         for line in (self.freezing_line, self.limit_line, self.cursor):
@@ -169,13 +151,7 @@ class HoldTimeView(QWidget):
         self.warnings = QLabel("")
         self.warnings.setStyleSheet(f"color: {style.WARNING_TEXT}; padding: 2px 6px;")
 
-        top = QWidget()
-        top_lay = QVBoxLayout(top)
-        top_lay.setContentsMargins(0, 0, 0, 0)
-        top_lay.setSpacing(0)
-        top_lay.addWidget(self.legend)
-        top_lay.addWidget(self.graphics, 1)
-        top_lay.addWidget(self.readout)
+        top = plot_stack(self.legend, self.graphics, self.readout)
         bottom = QWidget()
         bottom_lay = QVBoxLayout(bottom)
         bottom_lay.setContentsMargins(0, 0, 0, 0)

@@ -14,12 +14,14 @@ shortest hold after a power failure, with the hot case's caution under them.
 
 from __future__ import annotations
 
-from PySide6.QtCore import QEvent, Qt, QTimer
+from PySide6.QtCore import QEvent, QSize, Qt, QTimer
 from PySide6.QtGui import QBrush, QFont
 from PySide6.QtWidgets import (
     QAbstractItemView,
+    QFrame,
     QHeaderView,
     QLabel,
+    QScrollArea,
     QStyle,
     QTableWidget,
     QTableWidgetItem,
@@ -36,6 +38,8 @@ from solver.results import KEY_FIGURES, KeyFigure, key_figure
 
 COLUMNS = ("Figure", "Value", "Note", "±")
 PM_COLUMN = 3  # shown beside the value (moved there on screen; the columns keep their indices)
+#: The figures' table is never lower than this [px] (its header and a few rows); below it the panel scrolls.
+MIN_TABLE_HEIGHT = 120
 
 #: Two figures shown together as "min – max" by :meth:`KeyFiguresPanel.value_text`.
 RANGES: dict[str, tuple[str, str]] = {
@@ -195,11 +199,24 @@ class DesignCasesTable(QWidget):
         raise KeyError(f"no design-case row {key!r}; shown: {', '.join(r.key for r in self.rows)}")
 
 
+class _FiguresTable(QTableWidget):
+    """The figures' table: it asks for :data:`MIN_TABLE_HEIGHT` and takes whatever height is left over (the
+    panel's scroll area sizes its body to the heights its parts ask for, when the dock is lower than that)."""
+
+    def __init__(self, *args):
+        super().__init__(*args)
+        self.setMinimumHeight(MIN_TABLE_HEIGHT)
+
+    def sizeHint(self) -> QSize:  # noqa: N802 (Qt)
+        return QSize(super().sizeHint().width(), MIN_TABLE_HEIGHT)
+
+
 class KeyFiguresPanel(QWidget):
     """``KeyFiguresPanel(doc)``: the verdict and a table of headline results; observes the Document.
 
     Public: ``table`` (QTableWidget), ``verdict`` (QLabel), ``verdict_level`` (the shown
-    ``DesignVerdict.level`` or ""), :meth:`value_text` (key -> displayed value text).
+    ``DesignVerdict.level`` or ""), ``scroll_area`` (all under the verdict: it scrolls when the dock is
+    too low for the design cases and a few rows of the table), :meth:`value_text` (key -> displayed value text).
     """
 
     def __init__(self, doc, parent=None):
@@ -224,7 +241,7 @@ class KeyFiguresPanel(QWidget):
         self.note.setWordWrap(True)
         self.note.setStyleSheet(f"color: {style.INK_MUTED}; padding: 3px 6px;")
 
-        self.table = QTableWidget(0, len(COLUMNS), self)
+        self.table = _FiguresTable(0, len(COLUMNS), self)
         self.table.setHorizontalHeaderLabels(list(COLUMNS))
         self.table.verticalHeader().hide()
         self.table.setEditTriggers(QAbstractItemView.NoEditTriggers)
@@ -257,15 +274,28 @@ class KeyFiguresPanel(QWidget):
         self._fit_timer.setInterval(0)
         self._fit_timer.timeout.connect(self.fit_rows)
 
+        self.design = DesignCasesTable(self)
+        self.design.hide()
+        # under the verdict, the rest scrolls as one when the dock is lower than the note, the design cases
+        # and a few rows of the table need at its width (a Target Finder or Sweep open above it), rather than
+        # being drawn over each other; when they fit, the table takes the rest of the height as before
+        body = QWidget()
+        body.setObjectName("KeyFiguresBody")
+        body_lay = QVBoxLayout(body)
+        body_lay.setContentsMargins(0, 0, 0, 0)
+        body_lay.setSpacing(0)
+        for part, stretch in ((self.note, 0), (self.design, 0), (self.table, 1)):
+            body_lay.addWidget(part, stretch)
+        self.scroll_area = QScrollArea()
+        self.scroll_area.setWidget(body)
+        self.scroll_area.setWidgetResizable(True)
+        self.scroll_area.setFrameShape(QFrame.NoFrame)
+        self.scroll_area.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
         lay = QVBoxLayout(self)
         lay.setContentsMargins(0, 0, 0, 0)
         lay.setSpacing(0)
-        self.design = DesignCasesTable(self)
-        self.design.hide()
         lay.addWidget(self.verdict)
-        lay.addWidget(self.note)
-        lay.addWidget(self.design)
-        lay.addWidget(self.table, 1)
+        lay.addWidget(self.scroll_area, 1)
 
         # the document holds the result and whether it is stale; this view only redraws
         doc.result_ready.connect(lambda _r: self.refresh())

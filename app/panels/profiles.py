@@ -308,6 +308,34 @@ class LegendStrip(QWidget):
         p.end()
 
 
+def style_axes(plot: pg.PlotItem, names=("left", "bottom")) -> None:
+    """The app's axes: lines in muted ink, tick labels in ink (Profiles, Hold Time, Sweep)."""
+    for name in names:
+        ax = plot.getAxis(name)
+        ax.setPen(pg.mkPen(style.INK_MUTED))
+        ax.setTextPen(pg.mkPen(style.INK))
+
+
+def plain_plot(plot: pg.PlotItem) -> None:
+    """A plot of the design views (Hold Time, Sweep): a light grid, the app's axes, no menu or buttons."""
+    plot.showGrid(x=True, y=True, alpha=0.25)
+    plot.setMenuEnabled(False)
+    plot.hideButtons()
+    style_axes(plot)
+
+
+def plot_stack(legend: QWidget, graphics: QWidget, readout: QWidget) -> QWidget:
+    """The legend strip above the plot (which takes the height) and the readout under it, without gaps."""
+    stack = QWidget()
+    lay = QVBoxLayout(stack)
+    lay.setContentsMargins(0, 0, 0, 0)
+    lay.setSpacing(0)
+    lay.addWidget(legend)
+    lay.addWidget(graphics, 1)
+    lay.addWidget(readout)
+    return stack
+
+
 class ProfilesPanel(QWidget):
     """``ProfilesPanel(doc)``: plots of the current result; observes the Document.
 
@@ -369,10 +397,9 @@ class ProfilesPanel(QWidget):
             self._grid_lines.append(grid)
             plot.setMenuEnabled(True)
             plot.hideButtons()
+            style_axes(plot)
             for name in ("left", "bottom"):
                 ax = plot.getAxis(name)
-                ax.setPen(pg.mkPen(style.INK_MUTED))
-                ax.setTextPen(pg.mkPen(style.INK))
                 ax.enableAutoSIPrefix(False)
                 ax.setStyle(tickLength=0)  # the grid lines (_GridLines) mark the ticks, as pyqtgraph's grid did
             plot.getAxis("left").setWidth(64)
@@ -821,18 +848,28 @@ class ProfilesPanel(QWidget):
             label.show()
 
     def _fit_axis_labels(self, *_args) -> None:
-        """Title each value axis in full where the plot is tall enough, else in short ("T [°C]")."""
+        """Title each value axis in full where the plot is tall enough, else in short ("T [°C]"); where
+        not even that fits (a short plot while a tool dock is open) no title, so two titles never run into
+        each other: the legend and the hover readout still say what the curve is and its unit."""
         system = self.doc.unit_system
         fm = QFontMetrics(self.font())
         for plot, quantity, full, short in ((self.temperature_plot, "temperature", "Temperature", "T"),
                                             (self.pressure_plot, "pressure", "Pressure", "p")):
             u = unit_label(quantity, system)
-            long_text = f"{full} [{u}]"
-            use_short = fm.horizontalAdvance(long_text) + 6 > plot.vb.height()
-            state = (system, use_short)
+            long_text, short_text = f"{full} [{u}]", f"{short} [{u}]"
+            room = plot.vb.height()
+            text = long_text if fm.horizontalAdvance(long_text) + 6 <= room else (
+                short_text if fm.horizontalAdvance(short_text) + 6 <= room else "")
+            state = (system, text)
             if self._short_labels.get(id(plot)) != state:  # setLabel re-lays out the axis
                 self._short_labels[id(plot)] = state
-                plot.setLabel("left", f"{short} [{u}]" if use_short else long_text, color=style.INK)
+                axis = plot.getAxis("left")
+                if text:
+                    plot.setLabel("left", text, color=style.INK)
+                    axis.showLabel(True)
+                else:
+                    axis.showLabel(False)
+                axis.setToolTip(long_text)
 
     # ------------------------------------------------------------------ position marker and hover
 

@@ -1,9 +1,9 @@
 """Sweep: one parameter (or two, as a grid) over a range, the chosen key figures plotted live against it.
 
-Left, the set-up: the alternative, what to vary (:class:`~app.panels.target_finder_panel.ParameterPicker`:
+Left, the set-up: the alternative, what to vary (:class:`~app.panels.search_tools.ParameterPicker`:
 from, to and the number of points, or the standard sizes), optionally a second parameter (one curve per
-value of it), the key figures to plot and the targets (the Target Finder's
-:class:`~app.panels.target_finder_panel.TargetEditor`). Right, the plot: one chart per kind of quantity
+value of it), the key figures to plot and the targets (:class:`~app.panels.search_tools.TargetEditor`, as
+in the Target Finder). Right, the plot: one chart per kind of quantity
 (temperatures together, a pressure drop on its own...) sharing the x axis, the targets as dashed limit lines
 on the figure they limit, the values where every target is met shaded (one-parameter sweeps; in a grid the
 points that meet them all are drawn filled, the others hollow), and under it a table of every point.
@@ -44,19 +44,16 @@ from PySide6.QtWidgets import (
 )
 
 from app import style, units
-from app.panels.profiles import LegendStrip
-from app.panels.target_finder_panel import (
+from app.panels.profiles import LegendStrip, plain_plot, plot_stack
+from app.panels.search_tools import (
     TARGET_FIGURE,
     ParameterPicker,
-    SearchRunner,
-    TargetEditor,
     ToolBody,
-    alternative_combo,
+    ToolDock,
     error_words,
-    fill_alternatives,
     fmt,
+    html_text,
     interactive,
-    make_alternative,
     needs_design,
     outer_scroll,
     scrolling,
@@ -67,7 +64,6 @@ from app.panels.target_finder_panel import (
 #: Plotted unless the user chooses otherwise.
 DEFAULT_FIGURES = ("outlet_temperature_K", "min_bulk_temperature_K", "max_outer_surface_temperature_K")
 _SYMBOLS = ("o", "s", "t", "d", "+", "x")
-_PEN_STYLES = {"solid": Qt.SolidLine, "dash": Qt.DashLine, "dot": Qt.DotLine, "dashdot": Qt.DashDotLine}
 _QUANTITY_TITLES = {"temperature": "Temperature", "pressure_difference": "Pressure drop", "power": "Heat",
                     "power_per_length": "Heat per metre", "pressure": "Pressure", "velocity": "Velocity",
                     "dimensionless": "Number", "time": "Time", "mass_flow": "Mass flow"}
@@ -142,15 +138,7 @@ def _sweep_work(ticket, report) -> None:  # worker thread: plain data only
             break
 
 
-def _pen(colour: str, pen_style: str = "solid", width: float = 2.0) -> QPen:
-    pen = QPen(style.qcolor(colour))
-    pen.setWidthF(width)
-    pen.setCosmetic(True)
-    pen.setStyle(_PEN_STYLES[pen_style])
-    return pen
-
-
-class SweepPanel(QWidget):
+class SweepPanel(ToolDock):
     """``SweepPanel(doc)``: the Sweep dock. Public for tests: ``picker``, ``picker2``, ``grid_box``,
     ``figure_list``, ``targets``, ``run_button``, ``cancel_button``, ``progress``, ``status``, ``table``,
     ``plots`` (quantity -> PlotItem), ``curves`` ((figure key, value2 index) -> PlotDataItem),
@@ -161,11 +149,10 @@ class SweepPanel(QWidget):
     run_finished = Signal()
     points_added = Signal(int)
 
+    keeps_alternative_while_running = True  # the points drawn belong to the alternative swept
+
     def __init__(self, doc, parent: Optional[QWidget] = None):
-        super().__init__(parent)
-        self.doc = doc
-        self.setObjectName("Sweep")
-        self.runner = SearchRunner(self)
+        super().__init__(doc, "Sweep", "Choose what to vary, then Run.", parent)
         self.runner.progressed.connect(self._on_progress)
         self.runner.finished.connect(self._on_finished)
         self.variants: list = []
@@ -182,13 +169,12 @@ class SweepPanel(QWidget):
         self._ticket = None
 
         # ---- set-up column
-        self.alternative_combo = alternative_combo()
-        self.alternative_combo.activated.connect(lambda _i: self._on_alternative())
         self.picker = ParameterPicker(doc.unit_system, "sweep", default_kind="heater_output", points=8)
         self.grid_box = QCheckBox("Second parameter (a grid: one curve per value)")
         self.grid_box.toggled.connect(self._on_grid)
         self.picker2 = ParameterPicker(doc.unit_system, "sweep", default_kind="insulation_thickness", points=3)
         self.picker2.hide()
+        self.pickers = (self.picker, self.picker2)
         self.figure_list = QListWidget()
         self.figure_list.setSelectionMode(QAbstractItemView.NoSelection)
         self.figure_list.setMinimumHeight(110)
@@ -199,30 +185,16 @@ class SweepPanel(QWidget):
             item.setCheckState(Qt.Checked if f.key in DEFAULT_FIGURES else Qt.Unchecked)
             item.setToolTip(f.method)
             self.figure_list.addItem(item)
-        self.targets = TargetEditor(doc.unit_system)
-        self.run_button = QPushButton("Run")
-        self.run_button.setDefault(True)
-        self.run_button.setToolTip("Solve every value on a worker thread; the curves grow as the values are solved")
-        self.run_button.clicked.connect(self.run)
-        self.cancel_button = QPushButton("Cancel")
-        self.cancel_button.setEnabled(False)
-        self.cancel_button.clicked.connect(self.cancel)
+        buttons = self.start_buttons("Run", "Solve every value on a worker thread; the curves grow as the values "
+                                     "are solved", self.run)
+        self.run_button = self.go_button
         self.progress = QProgressBar()
         self.progress.setRange(0, 1)
         self.progress.setValue(0)
         self.progress.setFormat("%v of %m")
-        self.status = QLabel("Choose what to vary, then Run.")
-        self.status.setWordWrap(True)
-        self.status.setStyleSheet(f"color: {style.INK_MUTED};")
 
         # set-up in two columns (what to vary and plot | the targets and Run), each scrolling in a low dock
-        vary = QGroupBox("1  Vary")
-        v = QVBoxLayout(vary)
-        row = QHBoxLayout()
-        row.addWidget(QLabel("Start from"))
-        row.addWidget(self.alternative_combo, 1)
-        v.addLayout(row)
-        v.addWidget(self.picker)
+        vary, v = self.vary_box("1  Vary", self.picker)
         v.addWidget(self.grid_box)
         v.addWidget(self.picker2)
         plot_box = QGroupBox("2  Plot these key figures")
@@ -236,9 +208,6 @@ class SweepPanel(QWidget):
         meet = QGroupBox("3  Targets: limit lines, shaded where all are met")
         mlay = QVBoxLayout(meet)
         mlay.addWidget(self.targets)
-        buttons = QHBoxLayout()
-        buttons.addWidget(self.run_button)
-        buttons.addWidget(self.cancel_button)
         buttons.addWidget(self.progress, 1)
         mlay.addLayout(buttons)
         mlay.addWidget(self.status)
@@ -282,13 +251,7 @@ class SweepPanel(QWidget):
         self.table.setMinimumHeight(70)
         self.table.itemSelectionChanged.connect(self._on_table_pick)
 
-        top = QWidget()
-        t = QVBoxLayout(top)
-        t.setContentsMargins(0, 0, 0, 0)
-        t.setSpacing(0)
-        t.addWidget(self.legend)
-        t.addWidget(self.graphics, 1)
-        t.addWidget(self.readout)
+        top = plot_stack(self.legend, self.graphics, self.readout)
         # the plot and the table of every point, one tab each: in a low dock the plot keeps its height
         split = QTabWidget()
         split.setDocumentMode(True)
@@ -303,65 +266,22 @@ class SweepPanel(QWidget):
         for area in self.setup_areas:
             lay.addWidget(area, 0)
         # what the sweep found and what to do with it stay in view above the plot
-        right = QWidget()
-        r = QVBoxLayout(right)
-        r.setContentsMargins(0, 0, 0, 0)
-        r.setSpacing(2)
-        r.addLayout(actions)
-        r.addWidget(split, 1)
-        lay.addWidget(right, 1)
-
-        doc.project_replaced.connect(self._on_project)
-        doc.project_changed.connect(self._on_project)
-        doc.current_alternative_changed.connect(self._on_current)
-        doc.units_changed.connect(self._on_units)
-        self._on_project()
-
-    # ------------------------------------------------------------------ following the document
-
-    @property
-    def base_alternative(self):
-        name = self.alternative_combo.currentData()
-        for alt in self.doc.project.alternatives:
-            if alt.name == name:
-                return alt
-        return self.doc.current_alternative
-
-    def _on_project(self) -> None:
-        fill_alternatives(self.alternative_combo, self.doc, self.alternative_combo.currentData())
-        self._on_alternative()
-
-    def _on_current(self, _index: int) -> None:
-        if self.runner.running:
-            return  # the sweep under way keeps its alternative
-        fill_alternatives(self.alternative_combo, self.doc, self.doc.current_alternative.name)
-        self._on_alternative()
-
-    def _on_alternative(self) -> None:
-        alt = self.base_alternative
-        for picker in (self.picker, self.picker2):
-            if alt is not picker.alternative:
-                picker.set_alternative(alt)
-        self.targets.set_context(self.doc.project, alt)
+        right = QVBoxLayout()
+        right.setSpacing(2)
+        right.addLayout(actions)
+        right.addWidget(split, 1)
+        lay.addLayout(right, 1)
+        self.follow_document()
 
     def _on_grid(self, on: bool) -> None:
         self.picker2.setVisible(on)
 
-    def _on_units(self, system: str) -> None:
-        for w in (self.picker, self.picker2, self.targets):
-            w.set_unit_system(system)
+    def _units_changed(self, system: str) -> None:
         if self._run is not None:
             self._run["system"] = system
             self._build_plots()
             self._redraw()
             self._refill_table()
-
-    def set_alternative(self, name: str) -> None:
-        i = self.alternative_combo.findData(name)
-        if i < 0:
-            raise ValueError(f"no alternative named {name!r}")
-        self.alternative_combo.setCurrentIndex(i)
-        self._on_alternative()
 
     def chosen_figures(self) -> list[str]:
         return [self.figure_list.item(i).data(Qt.UserRole) for i in range(self.figure_list.count())
@@ -413,28 +333,17 @@ class SweepPanel(QWidget):
         design = self.doc.project.design_cases if needs_design(targets) else None
         self._ticket = self.runner.start(_sweep_work, alternative=alt, parameter=parameter, values=list(values),
                                          parameter2=parameter2, values2=values2, chunk=chunk, design=design)
-        self.run_button.setEnabled(False)
-        self.cancel_button.setEnabled(True)
+        self._set_running(True)
         self.make_button.setEnabled(False)
         self.export_button.setEnabled(False)
         self.feasible_label.setText("")
         self._say(f"Solving {total} variants of '{alt.name}'…", style.INK_MUTED)
         return True
 
-    def cancel(self) -> None:
-        """Stop the sweep after the chunk under way; the points drawn stay."""
-        if not self.runner.running:
-            return
-        self.runner.cancel()
+    def _cancelled(self) -> None:
+        """Cancel stops the sweep after the chunk under way; the points drawn stay."""
         self._ticket = None
         self._finish(f"Cancelled after {len(self.variants)} of {self._run['total']} points.")
-
-    @property
-    def running(self) -> bool:
-        return self.runner.running
-
-    def shutdown(self) -> None:
-        self.runner.shutdown()
 
     def _on_progress(self, ticket) -> None:
         new = ticket.items[self._taken:]
@@ -461,16 +370,11 @@ class SweepPanel(QWidget):
         self._finish(text)
 
     def _finish(self, text: str, colour: str = style.INK_MUTED) -> None:
-        self.run_button.setEnabled(True)
-        self.cancel_button.setEnabled(False)
+        self._set_running(False)
         self.export_button.setEnabled(bool(self.variants))
         self._say(text, colour)
         self._show_feasible_words()
         self.run_finished.emit()
-
-    def _say(self, text: str, colour: str) -> None:
-        self.status.setText(text)
-        self.status.setStyleSheet(f"color: {colour};")
 
     # ------------------------------------------------------------------ x values and figures
 
@@ -528,13 +432,7 @@ class SweepPanel(QWidget):
         entries = []
         for row, (quantity, keys) in enumerate(groups.items()):
             plot = self.graphics.addPlot(row=row, col=0)
-            plot.showGrid(x=True, y=True, alpha=0.25)
-            plot.setMenuEnabled(False)
-            plot.hideButtons()
-            for name in ("left", "bottom"):
-                ax = plot.getAxis(name)
-                ax.setPen(pg.mkPen(style.INK_MUTED))
-                ax.setTextPen(pg.mkPen(style.INK))
+            plain_plot(plot)
             y_unit = units.label(quantity, system)
             plot.setLabel("left", f"{_QUANTITY_TITLES.get(quantity, quantity)}" + (f" [{y_unit}]" if y_unit else ""),
                           color=style.INK)
@@ -552,7 +450,7 @@ class SweepPanel(QWidget):
                     colour = style.ALTERNATIVE_COLOURS[colour_index % len(style.ALTERNATIVE_COLOURS)]
                     pen_style = style.ALTERNATIVE_STYLES[k % len(style.ALTERNATIVE_STYLES)] if n2 > 1 else \
                         style.ALTERNATIVE_STYLES[k % len(style.ALTERNATIVE_STYLES)]
-                    pen = _pen(colour, pen_style)
+                    pen = style.colour_pen(colour, style=pen_style)
                     curve = pg.PlotDataItem([], [], pen=pen, symbol=_SYMBOLS[k % len(_SYMBOLS)], symbolSize=6,
                                             symbolPen=pg.mkPen(colour), symbolBrush=pg.mkBrush(colour),
                                             connect="finite")
@@ -581,7 +479,8 @@ class SweepPanel(QWidget):
             if plot is None:
                 continue
             y = units.to_display(t.value, quantity, system)
-            line = pg.InfiniteLine(pos=y, angle=0, movable=False, pen=_pen(style.CURVE_COLOURS["limit"], "dash", 1.5),
+            line = pg.InfiniteLine(pos=y, angle=0, movable=False,
+                                   pen=style.colour_pen(style.CURVE_COLOURS["limit"], 1.5, "dash"),
                                    label=target_words(t, system),
                                    # the labels of lines close together side by side, not on top of each other
                                    labelOpts={"position": 0.02 + 0.32 * (k % 3), "color": style.INK,
@@ -591,7 +490,7 @@ class SweepPanel(QWidget):
             plot.addItem(line)  # (its bounds count: the line stays in view)
             self.limit_lines.append(line)
         if self.limit_lines:
-            entries.append(("target (limit)", _pen(style.CURVE_COLOURS["limit"], "dash", 1.5)))
+            entries.append(("target (limit)", style.colour_pen(style.CURVE_COLOURS["limit"], 1.5, "dash")))
             if not r["values2"]:
                 shade = QPen(style.qcolor(style.MET_COLOUR))
                 shade.setWidthF(8.0)
@@ -804,7 +703,7 @@ class SweepPanel(QWidget):
             if r["values2"]:
                 bits.append(f"<i>{value_words(r['parameter2'], v.value2, system)}</i>:")
             if not v.ok:
-                bits.append(f"did not solve ({_html(error_words(v.outcome.error))})")
+                bits.append(f"did not solve ({html_text(error_words(v.outcome.error))})")
             else:
                 kf = v.key_figures
                 bits.append(" · ".join(f"{key_figure(k).label} {fmt(kf.get(k), key_figure(k).quantity, system)}"
@@ -814,7 +713,7 @@ class SweepPanel(QWidget):
                     bits.append(f"<span style='color:{style.MET_COLOUR}'>{style.VERDICT_SYMBOLS['met']} all "
                                 "targets met</span>" if not missed else
                                 f"<span style='color:{style.MISSED_COLOUR}'>{style.VERDICT_SYMBOLS['missed']} "
-                                + "; ".join(_html(target_words(t, system)) for t in missed) + " missed</span>")
+                                + "; ".join(html_text(target_words(t, system)) for t in missed) + " missed</span>")
             parts.append(" ".join(bits))
         return "<br>".join(parts) if r["values2"] else " — ".join(parts)
 
@@ -964,13 +863,7 @@ class SweepPanel(QWidget):
         if r["parameter2"] is not None:
             name = answer_name(r["alternative"].model_copy(update={"name": name}), r["parameter2"], v.value2)
         alt = v.alternative.model_copy(update={"name": name})
-        try:
-            made = make_alternative(self.doc, r["base"], alt, self.record(v))
-        except ValueError as exc:
-            self._say(f"Not added: {exc}", style.MISSED_COLOUR)
-            return None
-        self._say(f"Added alternative '{made}' (Undo takes it back).", style.INK_MUTED)
-        return made
+        return self.add_alternative(r["base"], alt, self.record(v))
 
     # ------------------------------------------------------------------ CSV
 
@@ -1009,10 +902,6 @@ def _plain(value):
     if isinstance(value, str):
         return value
     return float(value)
-
-
-def _html(text: str) -> str:
-    return (text or "").replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
 
 
 __all__ = ["SweepPanel", "feasible_bands", "figure_choices"]
