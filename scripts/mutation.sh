@@ -137,6 +137,8 @@ cd "$WORK"
     for f in ${MUTATION_FILES:-solver/correlations.py solver/films.py solver/line.py solver/march.py}; do echo "    $f"; done
     echo "also_copy ="
     echo "    sample_projects"
+    echo "    app/demo_project.json"  # the demo the finder and batch tests search
+    echo "    scripts/fuzz_solver.py"  # the generator tests/test_batch_fuzz.py shares with the fuzz
     echo "pytest_add_cli_args_test_selection ="
     for t in "${TESTS[@]}" "${DESELECT[@]}"; do echo "    $t"; done
     echo "pytest_add_cli_args ="

@@ -730,6 +730,8 @@ def _find_continuous(ev: _Evaluator, lower, upper) -> FinderResult:
         binding = _binding_words(ev, value)
         return _result(ev, True, value, _sentence(why + (f" ({binding})" if binding else "")), searched, lo, hi)
 
+    unsearched: set[int] = set()  # windows where Brent's method met a value that fails to solve
+
     def window(i: int) -> Optional[float]:
         """The smallest value meeting every target between grid[i] and grid[i+1] (None when there is none)."""
         a, b = grid[i], grid[i + 1]
@@ -742,6 +744,9 @@ def _find_continuous(ev: _Evaluator, lower, upper) -> FinderResult:
         try:
             low_end = max((_root(ev, j, a, b) for j in rising), default=a)
         except _SolveFailed:
+            # (fix, mutation review) a value between failed to solve: what lies below the answer is not known,
+            # so the words must not call it the least (the caller says the line could not be searched there)
+            unsearched.add(i)
             return ev.smallest_feasible_in(a, b)
         # the smallest value solved at or just past the roots that meets every target; a target met at a and
         # missed at b (monotone between) that is missed there is missed beyond too: no window
@@ -761,14 +766,19 @@ def _find_continuous(ev: _Evaluator, lower, upper) -> FinderResult:
                 return done(grid[0], f"{_pv(parameter, grid[0])}, the lowest {what} searched, already meets "
                                      "every target")
             found = window(i - 1)
-            if found is None:  # the search between the two values failed to solve: keep the value scanned
-                return done(grid[i], f"{_pv(parameter, grid[i])} meets every target; below it, down to "
+            if found is None or i - 1 in unsearched:  # the search between the two values failed to solve
+                found = grid[i] if found is None else found  # the value scanned, or the least solved below it
+                return done(found, f"{_pv(parameter, found)} meets every target; below it, down to "
                                      f"{_pv(parameter, grid[i - 1])}, the line could not be searched "
                                      "(it fails to solve there), so a smaller value may exist")
             return done(found, f"{_pv(parameter, found)} is the least {what} from {_pv(parameter, lo)} "
                                f"to {_pv(parameter, hi)} that meets every target")
         if i + 1 < SCAN_POINTS and not ok[i + 1]:
             found = window(i)
+            if found is not None and i in unsearched:  # (fix, as above: the least is not known)
+                return done(found, f"{_pv(parameter, found)} meets every target (a narrow band between two "
+                                   "values scanned, part of which could not be searched: it fails to solve "
+                                   "there, so a smaller value may exist)")
             if found is not None:
                 return done(found, f"{_pv(parameter, found)} is the least {what} from "
                                    f"{_pv(parameter, lo)} to {_pv(parameter, hi)} that meets every "
