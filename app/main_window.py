@@ -277,7 +277,7 @@ class MainWindow(QMainWindow):
         """
         comparing = self.centre_tabs.widget(index) is self.side_by_side
         docks = [self.line_strip_dock, self.feed_dock, self.card_dock, self.key_dock, self.alternatives_dock,
-                 self.checks_dock, self.hold_time_dock, self.finder_dock, self.sweep_dock]
+                 self.checks_dock, self.hold_time_dock, self.finder_dock, self.sweep_dock, self.line_list_dock]
         if comparing and self._docks_before_comparison is None:
             self._docks_before_comparison = [d for d in docks if not d.isHidden()]
             for d in self._docks_before_comparison:
@@ -302,9 +302,18 @@ class MainWindow(QMainWindow):
         self.sweep_dock = self._dock("Sweep", self.sweep_panel, Qt.TopDockWidgetArea)
         self.tabifyDockWidget(self.line_strip_dock, self.finder_dock)
         self.tabifyDockWidget(self.finder_dock, self.sweep_dock)
-        for dock in (self.finder_dock, self.sweep_dock):
+        # the Line List (File ▸ Open Line List…): a batch run's lines, one tab further
+        from app.panels.line_list_view import LineListView
+
+        self.line_list = LineListView()
+        self.line_list_dock = self._dock("Line List", self.line_list, Qt.TopDockWidgetArea)
+        self.tabifyDockWidget(self.sweep_dock, self.line_list_dock)
+        self.line_list.open_requested.connect(self.open_line)
+        self.line_list.status.connect(lambda text: self.statusBar().showMessage(text, 10000))
+        for dock in (self.finder_dock, self.sweep_dock, self.line_list_dock):
             dock.hide()
-            dock.visibilityChanged.connect(lambda visible, d=dock: QTimer.singleShot(0, lambda: self._tool_shown(d)))
+            dock.visibilityChanged.connect(  # (the dock as the timer's context: no call after it is gone)
+                lambda visible, d=dock: QTimer.singleShot(0, d, lambda: self._tool_shown(d)))
         # (once a tool is closed the dock layout settles after its own signal: the strip's says when)
         self.line_strip_dock.visibilityChanged.connect(
             lambda visible: visible and QTimer.singleShot(0, lambda: self._tool_shown(self.finder_dock)))
@@ -330,7 +339,7 @@ class MainWindow(QMainWindow):
         if dock.isVisible() and not dock.visibleRegion().isEmpty():
             self._grow_bottom(dock, TOOL_HEIGHT)
             self._tool_was_shown = True
-        elif getattr(self, "_tool_was_shown", False) and not any(d.isVisible() and not d.visibleRegion().isEmpty() for d in (self.finder_dock, self.sweep_dock)):
+        elif getattr(self, "_tool_was_shown", False) and not any(d.isVisible() and not d.visibleRegion().isEmpty() for d in (self.finder_dock, self.sweep_dock, self.line_list_dock)):
             strip = self.line_strip_dock
             height = getattr(self, "_strip_height", None) or strip.sizeHint().height()
             if strip.isVisible() and not strip.isFloating() and strip.height() > height:
@@ -454,6 +463,8 @@ class MainWindow(QMainWindow):
 
         self.new_action = act("&New", self.new_project, QKeySequence.New, "Start a new project")
         self.open_action = act("&Open…", self.open_dialog, QKeySequence.Open, "Open a project file")
+        self.open_line_list_action = act("Open &Line List…", self.open_line_list_dialog, None,
+                                         "A batch run's results: every line with its verdict; double-click one to open it")
         self.save_action = act("&Save", self.save, QKeySequence.Save, "Save the project")
         self.save_as_action = act("Save &As…", self.save_as, QKeySequence.SaveAs, "Save the project under a new name")
         self.pdf_action = act("Export &PDF report…", self.export_pdf, None, "Summary report with inputs, results, plots, checks and cautions")
@@ -485,7 +496,7 @@ class MainWindow(QMainWindow):
     def _build_menus(self) -> None:
         mb = self.menuBar()
         file_menu = mb.addMenu("&File")
-        file_menu.addActions([self.new_action, self.open_action])
+        file_menu.addActions([self.new_action, self.open_action, self.open_line_list_action])
         self.recent_menu = file_menu.addMenu("Open &Recent")
         self.recent_menu.aboutToShow.connect(self._fill_recent_menu)
         self._fill_recent_menu()
@@ -512,7 +523,8 @@ class MainWindow(QMainWindow):
             view_menu.addAction(dock.toggleViewAction())
         view_menu.addAction(self.banner_bar.toggleViewAction())
         view_menu.addSeparator()
-        view_menu.addActions([self.finder_dock.toggleViewAction(), self.sweep_dock.toggleViewAction()])
+        view_menu.addActions([self.finder_dock.toggleViewAction(), self.sweep_dock.toggleViewAction(),
+                              self.line_list_dock.toggleViewAction()])
 
         tools_menu = mb.addMenu("&Tools")
         self.finder_action = tools_menu.addAction("&Target Finder…", lambda: self.show_tool(self.finder_dock))
@@ -660,6 +672,45 @@ class MainWindow(QMainWindow):
         self._showing_demo = False
         self.doc.set_project(project, path=p)
         self._add_recent(p)
+        return True
+
+    def choose_line_list_path(self) -> Optional[str]:
+        """A batch run's folder (or its results.csv); None when cancelled or not interactive."""
+        if not self.interactive:
+            return None
+        dialog = QFileDialog(self, "Open Line List: pick a batch run's folder", self._start_dir())
+        dialog.setFileMode(QFileDialog.Directory)  # a folder; its results.csv can be picked too
+        dialog.setOption(QFileDialog.ShowDirsOnly, False)
+        dialog.setNameFilter("Results list (results.csv);;All files (*)")
+        if not dialog.exec() or not dialog.selectedFiles():
+            return None
+        return dialog.selectedFiles()[0]
+
+    def open_line_list_dialog(self) -> None:
+        """File ▸ Open Line List…"""
+        path = self.choose_line_list_path()
+        if path:
+            self.open_line_list(path)
+
+    def open_line_list(self, path) -> bool:
+        """Show a batch run's results (its folder or results.csv) in the Line List tab; a list that cannot
+        be read says why and leaves the tab as it was."""
+        from app.panels.line_list_view import LineListError
+
+        try:
+            self.line_list.load(path)
+        except LineListError as exc:
+            self.error_dialog("Cannot open line list", str(exc))
+            return False
+        self.show_tool(self.line_list_dock)
+        return True
+
+    def open_line(self, path) -> bool:
+        """A line of the Line List as the project, through the normal open path (unsaved changes are
+        asked about; Save then writes back to the line's own file)."""
+        if not self.open_file(path):
+            return False
+        self.statusBar().showMessage(f"Opened line {Path(path).stem}: Save writes back to {path}", 10000)
         return True
 
     def save(self) -> bool:
