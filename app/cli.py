@@ -7,14 +7,16 @@
     calorun schema                         print the project file's JSON Schema
     calorun find PROJECT.json --vary PARAMETER --target KIND=VALUE ... [--alternative NAME] [--save-as OUT.json]
     calorun sweep PROJECT.json --vary PARAMETER [--from X --to Y --points N] [--target ...] [-o table.csv]
+    calorun batch LINELIST --template T.json -o OUTDIR [--columns MAP.json] [--workers N] [--scheduler ADDRESS]
     calorun --help                         all of the above; ``calorun COMMAND --help`` for one
 
-``solve``, ``schema``, ``find`` and ``sweep`` never import Qt. Exit codes (:data:`EXIT_CODES_HELP`): 0 every
-alternative solved (and the report written), 1 an alternative could not be solved — ``report`` still
-writes the PDF, which says which and why — or an output could not be written, 2 an invalid project or
-command line. ``find`` (:data:`FIND_EXIT_CODES_HELP`): 1 when no value meets every target; ``sweep``
-(:data:`SWEEP_EXIT_CODES_HELP`): 1 when no variant could be solved. Messages go to stderr in plain
-words, never a traceback.
+``solve``, ``schema``, ``find``, ``sweep`` and ``batch`` never import Qt (``batch`` only to write its PDF).
+Exit codes (:data:`EXIT_CODES_HELP`): 0 every alternative solved (and the report written), 1 an alternative
+could not be solved — ``report`` still writes the PDF, which says which and why — or an output could not be
+written, 2 an invalid project or command line. ``find`` (:data:`FIND_EXIT_CODES_HELP`): 1 when no value meets
+every target; ``sweep`` (:data:`SWEEP_EXIT_CODES_HELP`): 1 when no variant could be solved; ``batch``
+(:data:`BATCH_EXIT_CODES_HELP`): 1 when a line fails or could not be designed (every output is still written),
+130 when stopped by Ctrl-C. Messages go to stderr in plain words, never a traceback.
 """
 
 from __future__ import annotations
@@ -29,6 +31,7 @@ import textwrap
 EXIT_OK = 0
 EXIT_SOLVER = 1
 EXIT_INVALID = 2
+EXIT_INTERRUPTED = 130  # batch stopped by Ctrl-C (the shell's code for SIGINT); the lines done are kept
 
 EXIT_CODES_HELP = (
     "exit codes: 0 every alternative solved (and the report written); 1 an alternative could not be "
@@ -46,6 +49,13 @@ SWEEP_EXIT_CODES_HELP = (
     "were written; 1 no variant could be solved, the variant picked could not be solved, or an output could not "
     "be written; 2 an invalid project file or command line (the message names the option and the value). "
     "Messages go to stderr."
+)
+BATCH_EXIT_CODES_HELP = (
+    "exit codes: 0 every line was designed and none fails (warnings allowed); 1 a line fails or could not be "
+    "designed (a bad row, a line the solver refused: the results list and the summary PDF say which and why; "
+    "every other line still ran and every output was written) or an output could not be written; 2 an unusable "
+    "line list, template, columns file, output folder or option (the message names it and the value); 130 "
+    "stopped by Ctrl-C (the lines designed so far are kept: the same command continues). Messages go to stderr."
 )
 PARAMETER_HELP = (
     "what to vary: heater_output, insulation_thickness, mass_flow, volume_flow, bore, inlet_temperature, "
@@ -65,7 +75,7 @@ VALUE_HELP = (
     "unit (20W/m, 40mm, 1.2kg/s, 3bar(g), 140C); a bore is an NPS size (2, 1-1/2, NPS 3)."
 )
 
-SUBCOMMANDS = ("solve", "report", "schema", "find", "sweep")
+SUBCOMMANDS = ("solve", "report", "schema", "find", "sweep", "batch")
 _HELP_FLAGS = ("-h", "--help")
 
 
@@ -169,7 +179,33 @@ def build_parser() -> argparse.ArgumentParser:
     p_sweep.add_argument("--save-as", metavar="OUT.json", help="write the project with the picked variant added as a "
                          "new alternative that records the sweep (the report draws it)")
 
-    for p in (p_solve, p_report, p_find, p_sweep):
+    p_batch = sub.add_parser(
+        "batch", prog="calorun batch", help="Line List: design every line of a line list (CSV or XLSX) at once",
+        description="Design every line of a line list: each row becomes a project on the template and is designed "
+                    "(heater output, insulation where asked, checks, hold time) in parallel on this machine's cores "
+                    "or on a Dask cluster. Writes OUTDIR/results.csv and results.xlsx (one row per line, in list "
+                    "order), OUTDIR/summary.pdf and OUTDIR/lines/<tag>.json (a project per line, opens in the app). "
+                    "A rerun skips the lines already designed with the same row and template.",
+        epilog=BATCH_EXIT_CODES_HELP)
+    p_batch.add_argument("line_list", metavar="LINELIST", help="the line list: .csv or .xlsx, one row per line")
+    p_batch.add_argument("--template", required=True, metavar="T.json",
+                         help="a project file that supplies what the list does not (pipe material, insulation, "
+                              "heater kind, design margin, design cases, default fluid and flow)")
+    p_batch.add_argument("-o", "--output", required=True, metavar="OUTDIR", help="folder for the results")
+    p_batch.add_argument("--columns", metavar="MAP.json", help="a JSON object {\"their header\": \"our column\"} "
+                         "for a list whose headers differ from ours")
+    p_batch.add_argument("--workers", type=_workers, default=None, metavar="N",
+                         help="worker processes on this machine (default: one per processor core)")
+    p_batch.add_argument("--scheduler", metavar="ADDRESS", help="run on a running Dask distributed cluster at "
+                         "this scheduler address (e.g. tcp://10.0.0.5:8786); needs the optional install "
+                         "pip install \"calorun[cluster]\"")
+    p_batch.add_argument("--pages", choices=("table", "per-line"), default="table",
+                         help="the summary PDF after its portfolio page: one table of every line (default) or "
+                              "one compact page per line")
+    p_batch.add_argument("--units", choices=("SI", "US"), default="SI", help="units of the results (default SI)")
+    p_batch.add_argument("--no-progress", action="store_true", help="no progress bar on stderr")
+
+    for p in (p_solve, p_report, p_find, p_sweep, p_batch):
         _add_max_file_mb(p)
 
     sub.add_parser("schema", help="print the project file's JSON Schema")
@@ -212,6 +248,16 @@ def _count(text: str) -> int:
     return n
 
 
+def _workers(text: str) -> int:
+    try:
+        n = int(text)
+    except ValueError:
+        n = 0
+    if not 1 <= n <= 1024:
+        raise argparse.ArgumentTypeError(f"must be a whole number from 1 to 1,024, got {text!r}")
+    return n
+
+
 def _add_max_file_mb(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--max-file-mb", type=_megabytes, default=None, metavar="MB",
                         help="open project files up to this size in MB (default 32, or the environment variable "
@@ -250,6 +296,9 @@ def _gui(argv: list[str]) -> int:
 
 def _headless(argv: list[str]) -> int:
     args = build_parser().parse_args(argv)
+
+    if args.command == "batch":
+        return _batch(args)
 
     if args.command == "schema":
         from solver.model import Project
@@ -363,6 +412,58 @@ def _headless(argv: list[str]) -> int:
     if not args.json and results:
         print(f"Cautions: {CAUTIONS_BANNER}")
     return EXIT_SOLVER if failed else EXIT_OK
+
+
+# --------------------------------------------------------------------------- batch (line list)
+
+
+def _batch(args) -> int:
+    """``calorun batch``: design a line list (app.line_batch); a summary on stdout, what went wrong on stderr."""
+    from app.line_batch import BatchRefused, run_batch
+    from app.texts import shorten
+    from solver.errors import ProjectFileError
+    from solver.project_io import load_project
+
+    try:
+        template = load_project(args.template,
+                                max_bytes=None if args.max_file_mb is None else int(args.max_file_mb * 1e6))
+    except ProjectFileError as exc:
+        summary, lines = project_problems(exc, args.units)
+        print(f"calorun: --template: {args.template}: {summary}", file=sys.stderr)
+        for line in lines:
+            print(f"  {line}", file=sys.stderr)
+        return EXIT_INVALID
+    try:
+        done = run_batch(args.line_list, template, args.output, columns=args.columns, workers=args.workers,
+                         scheduler=args.scheduler, progress=not args.no_progress, system=args.units, pages=args.pages)
+    except BatchRefused as exc:
+        print(f"calorun: {exc}", file=sys.stderr)
+        return EXIT_INVALID
+    except OSError as exc:
+        print(f"calorun: cannot write into {args.output}: {exc}", file=sys.stderr)
+        return EXIT_SOLVER
+    except KeyboardInterrupt:
+        print(f"\ncalorun: stopped; the lines designed so far are kept in {args.output}: the same command "
+              "continues where it stopped", file=sys.stderr)
+        return EXIT_INTERRUPTED
+    counts = ", ".join(f"{n} {verdict}" for verdict, n in done.counts.items() if n)
+    print(f"{done.total} lines ({counts}): {done.designed} designed on {done.workers} in {done.elapsed_s:.1f} s"
+          + (f", {done.reused} kept from an earlier run (same row and template)" if done.reused else ""))
+    print(f"Results written: {done.results_csv}")
+    print(f"Results written: {done.results_xlsx}")
+    if done.summary_pdf is not None:
+        print(f"Summary written: {done.summary_pdf}")
+    else:
+        print(f"calorun: no summary PDF: {done.pdf_note}", file=sys.stderr)
+    print(f"Line projects: {done.out_dir / 'lines'}")
+    shown = 20
+    for row, tag, verdict, message in done.failing[:shown]:
+        who = f"{shorten(tag)!r} (row {row})" if tag else f"row {row}"
+        print(f"calorun: {who}: {verdict}: {shorten(message, 300)}", file=sys.stderr)
+    if len(done.failing) > shown:
+        print(f"calorun: … and {len(done.failing) - shown} more; the results list and the summary say which and why",
+              file=sys.stderr)
+    return EXIT_SOLVER if done.failing else EXIT_OK
 
 
 # --------------------------------------------------------------------------- find and sweep
