@@ -29,18 +29,8 @@ from typing import Optional, Sequence
 from app import units
 from app.design_figures import duration_text
 from app.messages import plural
-from app.style import (
-    ACCENT,
-    INK,
-    INK_MUTED,
-    MET_COLOUR,
-    MISSED_COLOUR,
-    OKABE_ITO,
-    RULE,
-    SHADE,
-    VERDICT_COLOURS,
-    VERDICT_SYMBOLS,
-)
+from app.reporting.content import CSS as REPORT_CSS
+from app.style import OKABE_ITO, VERDICT_COLOURS, VERDICT_SYMBOLS
 from app.texts import HEADING_NAME_CHARS, capped, esc, shorten
 from solver.results import CAUTIONS, CAUTIONS_BANNER, CHECK_TITLES
 
@@ -185,23 +175,10 @@ def portfolio(results: Sequence) -> Portfolio:
 
 # --------------------------------------------------------------------------- the document
 
-CSS = f"""
-body {{ color: {INK}; }}
-h1 {{ font-size: 17pt; color: {ACCENT}; margin-top: 0px; margin-bottom: 2px; }}
-h2 {{ font-size: 12.5pt; color: {ACCENT}; margin-top: 14px; margin-bottom: 5px; }}
-h3 {{ font-size: 10pt; color: {ACCENT}; margin-top: 10px; margin-bottom: 4px; }}
-p {{ margin-top: 2px; margin-bottom: 4px; }}
-.muted {{ color: {INK_MUTED}; }}
-.small {{ font-size: 7.5pt; }}
-.kicker {{ font-size: 8pt; color: {INK_MUTED}; }}
-table.grid {{ border-collapse: collapse; }}
-table.grid th {{ background-color: {SHADE}; color: {ACCENT}; font-weight: bold; text-align: left;
-               border-bottom: 1px solid {ACCENT}; padding: 2px 4px 2px 4px; }}
-table.grid td {{ border-bottom: 0.5px solid {RULE}; padding: 1px 4px 1px 4px; vertical-align: top; }}
-td.num, th.num {{ text-align: right; }}
-.met {{ color: {MET_COLOUR}; font-weight: bold; }}
-.missed {{ color: {MISSED_COLOUR}; font-weight: bold; }}
-.diff {{ color: {INK_MUTED}; font-size: 7.5pt; }}
+# the report's style, with tighter cells: a line list's table has many columns
+CSS = REPORT_CSS + """
+table.grid th { padding: 2px 4px 2px 4px; }
+table.grid td { padding: 1px 4px 1px 4px; }
 """
 
 
