@@ -20,6 +20,7 @@ methods list are not. ``profiles=True`` gives the full Result, equal to :func:`s
 from __future__ import annotations
 
 import json
+import logging
 import os
 from concurrent.futures import ThreadPoolExecutor, as_completed
 from dataclasses import dataclass, fields
@@ -31,6 +32,8 @@ from solver.errors import CalorunError
 from solver.factors import NEUTRAL
 from solver.line import LineGrid, build_line
 from solver.model import Alternative, DesignCases
+
+log = logging.getLogger(__name__)
 
 #: Cells marched together at most (a group of more variants goes in chunks; beyond about this many the
 #: arrays outgrow the processor caches and nothing is gained).
@@ -265,14 +268,16 @@ def _march_together(alternatives, members, profiles: bool):
         with np.errstate(all="ignore"):
             stacked, stacked_fluid = stack_lines(lines), _Stacked(fluid)
             state = _march(alts[0], stacked_fluid, stacked, m_dot, h0, 60, 1e-3, NEUTRAL, {}, feed=(t_in, p_in))
-    except Exception:  # noqa: BLE001 - any failure: the variants are solved one by one, which says what and where
+    except Exception as exc:  # noqa: BLE001 - any failure: the variants are solved one by one, which says what and where
+        _fell_back(exc)
         return None
     out = []
     if not profiles:
         try:
             with np.errstate(all="ignore"):
                 figures = stacked_key_figures(alts, stacked_fluid, stacked, state)
-        except Exception:  # noqa: BLE001 - as above
+        except Exception as exc:  # noqa: BLE001 - as above
+            _fell_back(exc)
             return None
         return [(i, BatchOutcome(key_figures=kf, together=True)) for i, kf in zip(idx, figures)]
     for v, (i, line) in enumerate(zip(idx, lines)):
@@ -285,6 +290,14 @@ def _march_together(alternatives, members, profiles: bool):
         out.append((i, BatchOutcome(key_figures=result.key_figures(), result=result if profiles else None,
                                     together=True)))
     return out
+
+
+def _fell_back(exc: Exception) -> None:
+    """A stacked march that failed: a solver refusal is expected (the one-by-one solves say which variant and
+    why); anything else may be a bug of the stacked path, so it is logged with its traceback rather than hidden
+    (the answers stay right: the variants are solved one by one)."""
+    if not isinstance(exc, (CalorunError, FloatingPointError, ZeroDivisionError, OverflowError)):
+        log.warning("variants could not be marched together; solving them one by one", exc_info=exc)
 
 
 def _row(state, v: int):

@@ -405,6 +405,8 @@ def _march(alt: Alternative, fluid, line: LineGrid, m_dot: float, h0: float, max
         np.cumsum(dp_cell, axis=-1, out=p_new[..., 1:])
         p_new[..., 1:] = p_in - p_new[..., 1:]
         if np.any(p_new <= p_floor):
+            if batch:  # which variant and where: the one-by-one solves say it
+                raise SolverError("a variant runs out of pressure", alternative=alt.name)
             # no pressure left: a gas has choked, a liquid with a boiling point has flashed on the way
             raise _pressure_failure(alt, fluid, line, m_dot, T_new, p_new, p_floor, liquid_feed, sat_possible)
         if gas_feed and not batch:  # (solver.batch marches only liquids together)

@@ -309,3 +309,19 @@ def test_profiles_on_threads_and_a_group_of_one(monkeypatch):
     assert all(o.together and o.result is not None for o in out[:4])
     assert not out[4].together and out[4].result is not None
     _assert_same(out, [*alts, lone])
+
+
+def test_a_variant_out_of_pressure_is_a_refusal_not_an_internal_error(caplog):
+    """A group with a variant whose pressure runs out falls back to one-by-one solves as a solver refusal;
+    the stacked path once broke on the way (formatting an array in the message), which only a log showed."""
+    import logging
+
+    base = DEMO.alternatives[1]
+    alts = [base.model_copy(update={"feed": base.feed.model_copy(update={"mass_flow_kg_per_s": f}),
+                                    "name": f"{f} kg/s"}) for f in (0.4, 40.0)]
+    with pytest.raises(CalorunError) as alone:
+        solve(alts[1])
+    with caplog.at_level(logging.WARNING, logger="solver.batch"):
+        out = solve_batch(alts)
+    assert [r for r in caplog.records if r.name == "solver.batch"] == []
+    assert out[0].ok and not out[1].ok and str(out[1].error) == str(alone.value)

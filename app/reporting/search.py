@@ -20,6 +20,11 @@ from typing import Callable, Optional, Sequence
 from app import units
 from app import texts
 from app.texts import esc, shorten
+from solver.errors import InputError
+
+#: What a search record written by another version (or for an alternative edited since) can raise when it is
+#: read back: the report then words it as the record wrote it. Anything else is a bug and is raised.
+_RECORD_ERRORS = (InputError, ValueError, TypeError, KeyError, IndexError)
 from solver.model import NAME_MAX_CHARS, MAX_POINT_FIGURES, MAX_SWEEP_POINTS, Alternative, SearchRecord, SweepPoint
 from solver.results import KEY_FIGURE_BY_KEY, KEY_FIGURES
 
@@ -284,7 +289,7 @@ def _parameter(data: Optional[dict]):
         from solver.variants import Parameter
 
         return Parameter.from_dict(dict(data))
-    except Exception:  # noqa: BLE001 — a record from another version still reports in words
+    except _RECORD_ERRORS:  # a record from another version still reports in words
         return None
 
 
@@ -298,7 +303,7 @@ def _targets(record: SearchRecord) -> list:
     for d in record.target_limits:
         try:
             out.append(Target.from_dict(dict(d)))
-        except Exception:  # noqa: BLE001 — shown in the record's own words instead
+        except _RECORD_ERRORS:  # shown in the record's own words instead
             continue
     return out
 
@@ -314,7 +319,7 @@ def record_rows(record: SearchRecord, system: str) -> list[tuple[str, str]]:
     if parameter is not None and record.value is not None and record.parameter2 is None:
         try:
             found_text = value_text(parameter, record.value, system)
-        except Exception:  # noqa: BLE001 — the words the search wrote
+        except _RECORD_ERRORS:  # the words the search wrote
             pass
     binding = record.binding
     if binding and targets and binding in record.targets:
@@ -359,7 +364,7 @@ def still_as_found(alt: Alternative, project=None) -> Optional[str]:
         expected = parameter.apply(base, record.value)
         if parameter2 is not None:
             expected = parameter2.apply(expected, record.value2)
-    except Exception:  # noqa: BLE001 — the base was changed so that the value no longer applies
+    except _RECORD_ERRORS:  # the base was changed so that the value no longer applies
         return f"“{shorten(base.name)}” has changed since, and the value found no longer applies to it"
     skip = {"name", "description", "origin"}
     if expected.model_dump(exclude=skip) == alt.model_dump(exclude=skip):
@@ -465,7 +470,7 @@ def sweep_chart(record: SearchRecord, system: str):
         if parameter2 is not None:
             try:
                 return value_text(parameter2, v, system)
-            except Exception:  # noqa: BLE001
+            except _RECORD_ERRORS:  # the words the sweep wrote
                 pass
         return str(v)
 
